@@ -1,0 +1,398 @@
+// Data types shared by every layer of Rakeline (core, store, import, UI).
+// Units: SI throughout (Pa, m, K, kg/m³, m/s) unless a field says otherwise; angles in degrees
+// where a field name says `Deg`, else radians. Pressure channels in logs may use other units;
+// they are converted to Pa on import (app/units.ts) before anything else sees them.
+
+export const CORE_VERSION = '0.1.0';
+
+export type PressureUnit =
+  | 'Pa' | 'kPa' | 'hPa' | 'mbar' | 'psi' | 'inH2O' | 'mmH2O' | 'mmHg' | 'torr';
+export type ChannelUnit = PressureUnit | 'deg';
+
+/** Tunnel facility: closed 2-D test section. */
+export interface Facility {
+  name: string;
+  /** Test-section height h (floor to ceiling), m. */
+  sectionHeight: number;
+  /** Test-section width (= model span for a spanning model), m. */
+  sectionWidth: number;
+  /** Tunnel calibration constant k_q: q_u = k_q · Δp_ref. */
+  qCalibration: number;
+  /** Standard uncertainty of k_q (absolute, dimensionless). */
+  qCalibrationUncertainty?: number;
+}
+
+/** Airfoil geometry: a NACA 4-digit code, or coordinates in x/c, y/c ordered
+ *  trailing edge → upper surface → leading edge → lower surface → trailing edge. */
+export type Geometry =
+  | { kind: 'naca4'; code: string }
+  | { kind: 'coordinates'; x: number[]; y: number[] };
+
+export type Surface = 'upper' | 'lower';
+
+/** A chordwise surface-pressure tap. x, y are x/c and y/c of the tap on the contour. */
+export interface Tap {
+  id: string;
+  x: number;
+  y: number;
+  surface: Surface;
+  /** Spanwise row name; the main (centre) row is usually 'C'. */
+  row: string;
+  /** Spanwise station of the row, m from the tunnel centreline. */
+  z: number;
+}
+
+export type RakeProbeKind = 'total' | 'static' | 'angle';
+/** A wake-rake probe. y is vertical, m, from the tunnel centreline (positive up). */
+export interface RakeProbe {
+  id: string;
+  y: number;
+  kind: RakeProbeKind;
+}
+export interface Rake {
+  /** Rake plane, m downstream of the model quarter chord. */
+  x: number;
+  probes: RakeProbe[];
+}
+
+/** A floor or ceiling static tap. x is m from the model quarter chord, positive downstream. */
+export interface WallTap {
+  id: string;
+  x: number;
+}
+
+export type ReferenceKind = 'dpRef' | 'pStatic' | 'pTotal';
+export type ChannelTarget =
+  | { kind: 'tap'; id: string }
+  | { kind: 'rake'; id: string }
+  | { kind: 'floor'; id: string }
+  | { kind: 'ceiling'; id: string }
+  /** dpRef: tunnel reference Δp (q_u = k_q·dpRef); pStatic: free-stream static p∞;
+   *  pTotal: free-stream total H∞ (optional). */
+  | { kind: 'reference'; ref: ReferenceKind };
+
+/** Instrument uncertainty, standard (k = 1), in the channel's own unit. */
+export interface InstrumentUncertainty {
+  fullScale: number;
+  /** Percent of full scale. */
+  percentFullScale: number;
+  /** Fixed offset uncertainty. */
+  offset: number;
+}
+
+/** One column of the run logs. All pressure channels are differential against one common
+ *  reference (e.g. the plenum); only differences of them enter the reduction. */
+export interface Channel {
+  name: string;
+  target: ChannelTarget;
+  unit: ChannelUnit;
+  uncertainty: InstrumentUncertainty;
+}
+
+export interface ModelDef {
+  name: string;
+  /** Chord c, m. */
+  chord: number;
+  /** Span b, m. */
+  span: number;
+  geometry: Geometry;
+  /** Standard uncertainty of α, degrees. */
+  alphaUncertaintyDeg: number;
+  /** Standard uncertainty of tap positions, in x/c. */
+  tapPositionUncertainty: number;
+}
+
+export interface SessionInfo {
+  title: string;
+  /** ISO date of the test day. */
+  date: string;
+  operators: string[];
+  notes?: string;
+}
+
+/** The setup file of a session. */
+export interface Setup {
+  formatVersion: 1;
+  session: SessionInfo;
+  facility: Facility;
+  model: ModelDef;
+  taps: Tap[];
+  rake: Rake;
+  floor: WallTap[];
+  ceiling: WallTap[];
+  channels: Channel[];
+  /** Session defaults overriding DEFAULT_SETTINGS. */
+  settings?: Partial<Settings>;
+}
+
+export type CorrectionMethod = 'barlow-rae-pope' | 'allen-vincenti' | 'none';
+
+/** Reduction settings (per session, overridable per reduction). */
+export interface Settings {
+  /** Lift cross-check tolerance: |cl_mom − cl_p| > liftTolAbs + liftTolRel·|cl_p| flags. */
+  liftTolAbs: number;
+  liftTolRel: number;
+  /** Spike rejection: samples beyond median ± spikeK·MAD (scaled to σ) are dropped. */
+  spikeK: number;
+  /** Unsteadiness: std(q)/mean(q) above this flags the run. */
+  unsteadyThreshold: number;
+  /** Wake captured when both rake edges have (H_w − p∞)/q∞ within this of 1. */
+  wakeEdgeTol: number;
+  /** A tap is bad if Cp > 1 + stagnationMargin. */
+  stagnationMargin: number;
+  /** A tap is bad if it departs from a robust local fit of its neighbours by more than this (Cp). */
+  tapOutlierCp: number;
+  /** Wind-off leak: a tap whose wind-off zero departs from the median zero of the taps by more
+   *  than this many Pa is flagged as leaking. */
+  leakPa: number;
+  /** Zero drift between the wind-off zeros bracketing a run, as a fraction of q, that flags. */
+  zeroDriftFraction: number;
+  /** M above this flags the run as compressible. */
+  machLimit: number;
+  /** Spread of section cl across spanwise rows that flags poor two-dimensionality. */
+  spanSpreadTol: number;
+  /** Monte Carlo draws for uncertainty (0 = skip). */
+  mcDraws: number;
+  mcSeed: number;
+  correction: CorrectionMethod;
+  /** Taps the user marked bad (ids). */
+  badTaps: string[];
+}
+
+export const DEFAULT_SETTINGS: Settings = {
+  liftTolAbs: 0.02,
+  liftTolRel: 0.03,
+  spikeK: 5,
+  unsteadyThreshold: 0.02,
+  wakeEdgeTol: 0.01,
+  stagnationMargin: 0.05,
+  tapOutlierCp: 0.25,
+  leakPa: 15,
+  zeroDriftFraction: 0.01,
+  machLimit: 0.3,
+  spanSpreadTol: 0.05,
+  mcDraws: 400,
+  mcSeed: 20261202,
+  correction: 'barlow-rae-pope',
+  badTaps: [],
+};
+
+export type RunKind = 'zero' | 'data';
+
+/** One line of the run index. */
+export interface RunInfo {
+  run: number;
+  kind: RunKind;
+  /** ISO 8601 start time. */
+  time: string;
+  /** Geometric angle of attack, degrees (0 for wind-off zeros as logged). */
+  alphaDeg: number;
+  /** Barometric pressure, Pa. */
+  baro: number;
+  /** Air temperature, °C. */
+  temperatureC: number;
+  /** Relative humidity, %. */
+  humidity: number;
+  /** Source file name, if any. */
+  file?: string;
+}
+
+/** Raw samples of one run: channel name → samples, already converted to Pa (or deg). */
+export interface RawRun {
+  info: RunInfo;
+  channels: Record<string, Float64Array>;
+}
+
+/** Statistics of one channel over one run (app/samples.ts). */
+export interface ChannelStats {
+  mean: number;
+  std: number;
+  /** Samples kept after spike rejection. */
+  n: number;
+  /** std/√n. */
+  stdErr: number;
+  /** Samples rejected as spikes. */
+  rejected: number;
+}
+
+/** A data run after averaging and wind-off-zero subtraction: what the run reducer consumes. */
+export interface ZeroedRun {
+  info: RunInfo;
+  /** Channel name → zero-corrected mean, Pa (or deg for angle channels). */
+  values: Record<string, number>;
+  /** Channel name → statistics of the raw samples (before zero subtraction). */
+  stats: Record<string, ChannelStats>;
+  /** Channel name → zero value subtracted, Pa. */
+  zero: Record<string, number>;
+  /** Channel name → change of the zero between the bracketing wind-off runs, Pa (0 if one side). */
+  drift: Record<string, number>;
+  /** Run numbers of the wind-off zeros used. */
+  zeroRuns: number[];
+  /** Channel name → wind-off zero of the nearest zero run (for leak detection). */
+  zeroRaw?: Record<string, number>;
+}
+
+export type FlagCode =
+  | 'lift-mismatch'
+  | 'wake-not-captured'
+  | 'unsteady'
+  | 'bad-tap'
+  | 'leaking-tap'
+  | 'zero-drift'
+  | 'no-zero'
+  | 'compressible'
+  | 'span-spread';
+
+export interface Flag {
+  code: FlagCode;
+  /** Human-readable reason, with numbers. */
+  reason: string;
+  /** 'warn': look at it; 'reject': do not use without review. */
+  severity: 'warn' | 'reject';
+}
+
+/** A value with its Monte Carlo 95 % coverage interval. */
+export interface Interval {
+  value: number;
+  /** Standard uncertainty. */
+  u: number;
+  lo: number;
+  hi: number;
+}
+
+export interface TapCp {
+  id: string;
+  x: number;
+  y: number;
+  surface: Surface;
+  row: string;
+  cp: number;
+  bad: boolean;
+  /** Why the tap is bad ('marked', 'stagnation', 'outlier', 'leak'). */
+  badReason?: string;
+}
+
+/** Surface-pressure integration of one row (app/surface.ts). */
+export interface SurfaceLoads {
+  cn: number;
+  ca: number;
+  cl: number;
+  cdp: number;
+  cmLE: number;
+  cmc4: number;
+  /** Trailing-edge Cp used to close the contour, and how. */
+  teCp: number;
+  teMethod: string;
+  /** Ids of taps dropped and bridged. */
+  bridged: string[];
+}
+
+export interface RowLoads extends SurfaceLoads {
+  row: string;
+  z: number;
+}
+
+export interface WakeResult {
+  cd: number;
+  /** Wake centre, m (y of the total-pressure deficit centroid). */
+  centre: number;
+  /** Wake width, m (between the points where the deficit falls to 5 % of its peak). */
+  width: number;
+  captured: boolean;
+  /** True when rake static probes gave p_w; false = far-wake assumption p_w = p∞. */
+  staticUsed: boolean;
+  /** (H_w − p∞)/q∞ at the edges (lower, upper). */
+  edgeCpt: [number, number];
+  profile: { y: number; cpt: number }[];
+}
+
+export interface WallResult {
+  /** Momentum lift coefficient from floor − ceiling pressures, F-corrected. */
+  clMom: number;
+  /** Circulation from the wall line integral (F-corrected), m²/s. */
+  gammaWall: number;
+  /** cl from gammaWall via Kutta–Joukowski. */
+  clWall: number;
+  /** Finite-length capture fraction F. */
+  F: number;
+  /** Flow-angle flux term added to clMom (0 if no angle probes). */
+  angleFluxCl: number;
+  floor: { x: number; cp: number }[];
+  ceiling: { x: number; cp: number }[];
+}
+
+export interface CorrectionResult {
+  method: CorrectionMethod;
+  sigma: number;
+  epsSb: number;
+  epsWb: number;
+  eps: number;
+}
+
+export interface Coefficients {
+  cl: number;
+  /** Wake (Jones) drag, NaN when no wake. */
+  cd: number;
+  cdp: number;
+  cmc4: number;
+  alphaDeg: number;
+  q: number;
+  V: number;
+  Re: number;
+}
+
+export interface AirState {
+  /** Static pressure used for density, Pa. */
+  p: number;
+  T: number;
+  rh: number;
+  rho: number;
+  mu: number;
+  a: number;
+}
+
+export interface RunResult {
+  run: number;
+  coreVersion: string;
+  settings: Settings;
+  air: AirState;
+  M: number;
+  /** Cp of every tap, all rows. */
+  taps: TapCp[];
+  /** Section loads of each spanwise row (main row first). */
+  rows: RowLoads[];
+  /** Loads of the main row (uncorrected). */
+  surface: SurfaceLoads;
+  wake: WakeResult | null;
+  walls: WallResult | null;
+  /** Bound circulation Γ by Kutta–Joukowski from each method, m²/s. */
+  circulation: { pressure: number; momentum: number; wall: number };
+  correction: CorrectionResult;
+  uncorrected: Coefficients;
+  corrected: Coefficients;
+  /** cl by the wall-momentum method (uncorrected), for the cross-check. */
+  clMomentum: number;
+  spanwise: { spread: number; CL: number } | null;
+  /** 95 % intervals (Monte Carlo) of the corrected coefficients and circulations. */
+  uncertainty: Partial<Record<'cl' | 'cd' | 'cdp' | 'cmc4' | 'clMom' | 'gammaPressure' | 'gammaMomentum', Interval>>;
+  flags: Flag[];
+  /** Inviscid panel-method Cp at the corrected α (x/c, Cp, surface). */
+  inviscid: { x: number; cp: number; surface: Surface }[];
+}
+
+export interface SessionStats {
+  /** dcl/dα per degree over the linear range, with its fit range. */
+  liftSlopePerDeg: number;
+  linearRange: [number, number];
+  alphaL0Deg: number;
+  clMax: number;
+  alphaClMaxDeg: number;
+  cdMin: number;
+  clAtCdMin: number;
+  ldMax: number;
+  alphaLdMaxDeg: number;
+  /** Largest |cl_down − cl_up| at matching α between up- and down-sweeps. */
+  hysteresis: { maxDeltaCl: number; alphaDeg: number } | null;
+  /** Repeat-run spread: largest cl range among runs at the same α and sweep direction. */
+  repeatSpread: number | null;
+}
