@@ -304,6 +304,8 @@ export interface WakeResult {
   /** (H_w − p∞)/q∞ at the edges (lower, upper). */
   edgeCpt: [number, number];
   profile: { y: number; cpt: number }[];
+  /** Number of negative radicands in the Jones integrand clamped to 0 (noise or bad probes). */
+  clampedRadicands?: number;
 }
 
 export interface WallResult {
@@ -317,6 +319,9 @@ export interface WallResult {
   F: number;
   /** Flow-angle flux term added to clMom (0 if no angle probes). */
   angleFluxCl: number;
+  /** Capture fraction used for clMom when the momentum contour closes at the rake plane
+   *  (angle flux given with rakeX); absent when clMom uses F. */
+  FMom?: number;
   floor: { x: number; cp: number }[];
   ceiling: { x: number; cp: number }[];
 }
@@ -395,4 +400,36 @@ export interface SessionStats {
   hysteresis: { maxDeltaCl: number; alphaDeg: number } | null;
   /** Repeat-run spread: largest cl range among runs at the same α and sweep direction. */
   repeatSpread: number | null;
+}
+
+/** One point of the session polars. */
+export interface PolarPoint {
+  run: number;
+  alphaDeg: number;
+  cl: number;
+  clMom: number;
+  cd: number;
+  cdp: number;
+  cmc4: number;
+  time: string;
+  flagged: boolean;
+}
+
+export interface SessionConditions {
+  qMin: number; qMax: number;
+  ReMin: number; ReMax: number;
+  alphaMin: number; alphaMax: number;
+  tempMin: number; tempMax: number;
+  baroMin: number; baroMax: number;
+}
+
+/** What the session reducer returns (app/reduce.ts summariseSession). */
+export interface SessionSummary {
+  stats: SessionStats | null;
+  flagged: { run: number; flags: Flag[] }[];
+  conditions: SessionConditions | null;
+  /** Corrected coefficients of every reduced data run, in time order. */
+  polar: PolarPoint[];
+  /** Span loading of every run with several rows. */
+  span: { run: number; alphaDeg: number; z: number[]; cl: number[]; CL: number }[];
 }

@@ -1,0 +1,519 @@
+// The run and session reducers: one place where the methods of the other app/ modules are put
+// together, in the order of REDUCTION.md (air state → Cp → surface loads → wake → walls →
+// Kutta–Joukowski cross-check → wall corrections → Monte Carlo uncertainty → flags).
+// Conventions (common practice, no source): every pressure channel is a differential against one
+// common reference taken to be the ambient (barometric) pressure, so the absolute test-section
+// static pressure used for density is baro + p∞(gauge). Cp = (p − p∞)/q_u with q_u = k_q·Δp_ref.
+// The lift cross-check compares uncorrected values (REDUCTION.md §6).
+import {
+  CORE_VERSION, DEFAULT_SETTINGS,
+  type Channel, type ChannelStats, type Coefficients, type Flag, type Interval, type PolarPoint,
+  type RawRun, type RunInfo, type RunResult, type SessionSummary, type Settings, type Setup,
+  type SurfaceLoads, type TapCp, type WakeResult, type WallResult, type ZeroedRun, type RowLoads,
+} from './types';
+import { freeStream } from './air';
+import { averageRun, applyZeros, unsteadiness } from './samples';
+import { detectBadTaps, reduceSurface } from './surface';
+import { inviscidCp } from './panel';
+import { spanLoading } from './spanwise';
+import { jonesDrag, interpolateStatic } from './wake';
+import { interpLinear } from './quadrature';
+import { wallLoads, angleFlux } from './walls';
+import { gammaFromCl, liftCrossCheck } from './crosscheck';
+import { sectionArea, wallCorrections, applyCorrections } from './corrections';
+import { monteCarlo, instrumentStd } from './uncertainty';
+import { sessionStats } from './session';
+import { toPascal, isPressureUnit } from './units';
+
+export function resolveSettings(setup: Setup, overrides?: Partial<Settings>): Settings {
+  return { ...DEFAULT_SETTINGS, ...(setup.settings ?? {}), ...(overrides ?? {}) };
+}
+
+export function averageRuns(raws: RawRun[], settings: Settings): { info: RunInfo; stats: Record<string, ChannelStats> }[] {
+  return raws.map((r) => averageRun(r, settings.spikeK));
+}
+
+/** Channels that must not be zeroed (flow angles). */
+function angleChannels(setup: Setup): Set<string> {
+  return new Set(setup.channels.filter((c) => c.unit === 'deg').map((c) => c.name));
+}
+
+export function prepareRuns(
+  setup: Setup,
+  averaged: { info: RunInfo; stats: Record<string, ChannelStats> }[],
+): ZeroedRun[] {
+  const zeros = averaged.filter((a) => a.info.kind === 'zero');
+  const skip = angleChannels(setup);
+  return averaged.filter((a) => a.info.kind === 'data').map((a) => applyZeros(a, zeros, skip));
+}
+
+// ---------------------------------------------------------------------------------------------
+// Channel lookup, built once per setup object.
+
+interface Layout {
+  byTarget: Map<string, Channel>;
+  dpRef: Channel;
+  pStatic: Channel;
+  pTotal: Channel | undefined;
+  taps: { tap: Setup['taps'][number]; ch: Channel }[];
+  rakeTotal: { y: number; ch: Channel }[];
+  rakeStatic: { y: number; ch: Channel }[];
+  rakeAngle: { y: number; ch: Channel }[];
+  floor: { x: number; ch: Channel }[];
+  ceiling: { x: number; ch: Channel }[];
+  mainRow: string;
+  areaC2: number;
+  /** Pa per channel unit (1 for deg). */
+  scale: Map<string, number>;
+}
+
+const layouts = new WeakMap<Setup, Layout>();
+
+function key(kind: string, id: string): string {
+  return `${kind}:${id}`;
+}
+
+export function layoutOf(setup: Setup): Layout {
+  const hit = layouts.get(setup);
+  if (hit) return hit;
+  const byTarget = new Map<string, Channel>();
+  const scale = new Map<string, number>();
+  for (const ch of setup.channels) {
+    const t = ch.target;
+    byTarget.set(t.kind === 'reference' ? key('reference', t.ref) : key(t.kind, t.id), ch);
+    scale.set(ch.name, isPressureUnit(ch.unit) ? toPascal(1, ch.unit) : 1);
+  }
+  const need = (ref: string): Channel => {
+    const c = byTarget.get(key('reference', ref));
+    if (!c) throw new Error(`Setup has no channel mapped to the reference "${ref}".`);
+    return c;
+  };
+  const pick = <T extends { id: string }>(kind: string, items: T[]) =>
+    items.flatMap((it) => {
+      const ch = byTarget.get(key(kind, it.id));
+      return ch ? [{ it, ch }] : [];
+    });
+  const rake = pick('rake', setup.rake.probes);
+  const rowCounts = new Map<string, number>();
+  for (const t of setup.taps) rowCounts.set(t.row, (rowCounts.get(t.row) ?? 0) + 1);
+  const mainRow = rowCounts.has('C')
+    ? 'C'
+    : [...rowCounts.entries()].sort((a, b) => b[1] - a[1])[0]?.[0] ?? 'C';
+  const layout: Layout = {
+    byTarget,
+    dpRef: need('dpRef'),
+    pStatic: need('pStatic'),
+    pTotal: byTarget.get(key('reference', 'pTotal')),
+    taps: pick('tap', setup.taps).map(({ it, ch }) => ({ tap: it, ch })),
+    rakeTotal: rake.filter((r) => r.it.kind === 'total').map(({ it, ch }) => ({ y: it.y, ch })),
+    rakeStatic: rake.filter((r) => r.it.kind === 'static').map(({ it, ch }) => ({ y: it.y, ch })),
+    rakeAngle: rake.filter((r) => r.it.kind === 'angle').map(({ it, ch }) => ({ y: it.y, ch })),
+    floor: pick('floor', setup.floor).map(({ it, ch }) => ({ x: it.x, ch })),
+    ceiling: pick('ceiling', setup.ceiling).map(({ it, ch }) => ({ x: it.x, ch })),
+    mainRow,
+    areaC2: sectionArea(setup.model.geometry),
+    scale,
+  };
+  layouts.set(setup, layout);
+  return layout;
+}
+
+// ---------------------------------------------------------------------------------------------
+// The deterministic core of one run: used once for the nominal result and once per Monte Carlo
+// draw (with perturbed inputs and the bad-tap list fixed by the nominal pass).
+
+interface CoreInput {
+  values: (name: string) => number;
+  alphaDeg: number;
+  kq: number;
+  /** Offsets added to every tap's x/c (Monte Carlo), by tap index in layout.taps. */
+  tapDx?: Float64Array;
+  bad: { id: string; reason: string }[];
+}
+
+interface CoreOutput {
+  fs: ReturnType<typeof freeStream>;
+  pInf: number;
+  taps: TapCp[];
+  rows: RowLoads[];
+  main: SurfaceLoads;
+  wake: WakeResult | null;
+  walls: WallResult | null;
+  uncorrected: Coefficients;
+  corrected: Coefficients;
+  correction: ReturnType<typeof wallCorrections>;
+  clMomentum: number;
+  gamma: { pressure: number; momentum: number; wall: number };
+}
+
+function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp: CoreInput): CoreOutput {
+  const v = inp.values;
+  const pInf = v(L.pStatic.name);
+  const fs = freeStream({
+    dpRef: v(L.dpRef.name),
+    kq: inp.kq,
+    p: info.baro + pInf,
+    T: info.temperatureC + 273.15,
+    rh: info.humidity,
+    chord: setup.model.chord,
+  });
+  const q = fs.qu;
+  const taps: TapCp[] = L.taps.map(({ tap, ch }, i) => ({
+    id: tap.id,
+    x: tap.x + (inp.tapDx ? inp.tapDx[i] : 0),
+    y: tap.y,
+    surface: tap.surface,
+    row: tap.row,
+    cp: (v(ch.name) - pInf) / q,
+    bad: false,
+  }));
+  const badById = new Map(inp.bad.map((b) => [b.id, b.reason]));
+  for (const t of taps) {
+    const r = badById.get(t.id);
+    if (r !== undefined) {
+      t.bad = true;
+      t.badReason = r;
+    }
+  }
+  const rowNames = [...new Set(taps.map((t) => t.row))].sort((a, b) =>
+    a === L.mainRow ? -1 : b === L.mainRow ? 1 : a.localeCompare(b),
+  );
+  const rows: RowLoads[] = [];
+  for (const row of rowNames) {
+    const rt = taps.filter((t) => t.row === row);
+    // A row needs both surfaces to be integrated; short rows that cover one side only are skipped.
+    if (!rt.some((t) => t.surface === 'upper') || !rt.some((t) => t.surface === 'lower')) continue;
+    const loads = reduceSurface(rt, inp.alphaDeg, inp.bad);
+    const z = setup.taps.find((t) => t.row === row)?.z ?? 0;
+    rows.push({ ...loads, row, z });
+  }
+  const main = rows.find((r) => r.row === L.mainRow) ?? rows[0];
+  if (!main) throw new Error('No spanwise row has taps on both surfaces: cannot integrate the section loads.');
+
+  // Wake rake.
+  let wake: WakeResult | null = null;
+  let angleCl = 0;
+  if (L.rakeTotal.length >= 3) {
+    const statics = L.rakeStatic.map((s) => ({ y: s.y, p: v(s.ch.name) }));
+    wake = jonesDrag({
+      probes: L.rakeTotal.map((r) => ({ y: r.y, H: v(r.ch.name), ps: statics.length ? interpolateStatic(statics, r.y) : undefined })),
+      pInf,
+      qInf: q,
+      chord: setup.model.chord,
+      edgeTol: settings.wakeEdgeTol,
+    });
+    if (L.rakeAngle.length && wake) {
+      const ys = wake.profile.map((p) => p.y);
+      const cpts = wake.profile.map((p) => p.cpt);
+      angleCl = angleFlux({
+        probes: L.rakeAngle.map((a) => ({ y: a.y, angleDeg: v(a.ch.name), cpt: interpLinear(ys, cpts, a.y) })),
+        chord: setup.model.chord,
+      });
+    }
+  }
+
+  // Walls.
+  let walls: WallResult | null = null;
+  if (L.floor.length >= 2 && L.ceiling.length >= 2) {
+    walls = wallLoads({
+      floor: L.floor.map((f) => ({ x: f.x, cp: (v(f.ch.name) - pInf) / q })),
+      ceiling: L.ceiling.map((c) => ({ x: c.x, cp: (v(c.ch.name) - pInf) / q })),
+      chord: setup.model.chord,
+      height: setup.facility.sectionHeight,
+      V: fs.V,
+      angleFluxCl: angleCl,
+    });
+  }
+
+  const cdU = wake ? wake.cd : NaN;
+  const uncorrected: Coefficients = {
+    cl: main.cl,
+    cd: cdU,
+    cdp: main.cdp,
+    cmc4: main.cmc4,
+    alphaDeg: inp.alphaDeg,
+    q,
+    V: fs.V,
+    Re: fs.Re,
+  };
+  const correction = wallCorrections({
+    chord: setup.model.chord,
+    height: setup.facility.sectionHeight,
+    width: setup.facility.sectionWidth,
+    sectionAreaC2: L.areaC2,
+    cdU: Number.isFinite(cdU) ? cdU : main.cdp,
+    method: settings.correction,
+  });
+  const corrected = applyCorrections(uncorrected, correction, main.cmc4);
+  const clMomentum = walls ? walls.clMom : NaN;
+  return {
+    fs,
+    pInf,
+    taps,
+    rows,
+    main,
+    wake,
+    walls,
+    uncorrected,
+    corrected,
+    correction,
+    clMomentum,
+    gamma: {
+      pressure: gammaFromCl(main.cl, fs.V, setup.model.chord),
+      momentum: walls ? gammaFromCl(walls.clMom, fs.V, setup.model.chord) : NaN,
+      wall: walls ? walls.gammaWall : NaN,
+    },
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
+
+function fmt(x: number, d = 3): string {
+  return Number.isFinite(x) ? x.toFixed(d) : '—';
+}
+
+/** Reduce one data run to its result: every figure, its uncertainty and its flags. */
+export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings): RunResult {
+  const L = layoutOf(setup);
+  const info = run.info;
+  const values = (name: string): number => {
+    const x = run.values[name];
+    if (x === undefined || !Number.isFinite(x)) throw new Error(`Run ${info.run}: channel ${name} has no value.`);
+    return x;
+  };
+
+  // First pass: Cp with no taps dropped, to detect bad taps.
+  const first = runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad: [] });
+  const zeroByTap: Record<string, number> | undefined = run.zeroRaw
+    ? Object.fromEntries(L.taps.map(({ tap, ch }) => [tap.id, run.zeroRaw![ch.name]]).filter(([, z]) => Number.isFinite(z as number)))
+    : undefined;
+  const bad = detectBadTaps(first.taps, settings, zeroByTap, settings.leakPa);
+  const nominal = bad.length
+    ? runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad })
+    : first;
+
+  // Flags.
+  const flags: Flag[] = [];
+  const cross = Number.isFinite(nominal.clMomentum)
+    ? liftCrossCheck({
+        clPressure: nominal.main.cl,
+        clMomentum: nominal.clMomentum,
+        clWall: nominal.walls?.clWall,
+        tolAbs: settings.liftTolAbs,
+        tolRel: settings.liftTolRel,
+      })
+    : null;
+  if (cross) flags.push(cross);
+  if (nominal.wake && !nominal.wake.captured) {
+    const [lo, hi] = nominal.wake.edgeCpt;
+    flags.push({
+      code: 'wake-not-captured',
+      severity: 'reject',
+      reason: `Wake not captured by the rake: edge total pressure (H − p∞)/q∞ = ${fmt(lo)} (lower) and ${fmt(hi)} (upper), both should be within ${settings.wakeEdgeTol} of 1; the wake centre is at y = ${fmt(nominal.wake.centre * 1000, 0)} mm. The wake drag is not reliable.`,
+    });
+  }
+  const qStats = run.stats[L.dpRef.name];
+  if (qStats) {
+    const u = unsteadiness(qStats);
+    if (u > settings.unsteadyThreshold) {
+      flags.push({
+        code: 'unsteady',
+        severity: 'warn',
+        reason: `Unsteady run: the reference pressure fluctuates by ${fmt(u * 100, 1)} % (std/mean), above the ${fmt(settings.unsteadyThreshold * 100, 1)} % limit.`,
+      });
+    }
+  }
+  const leaks = bad.filter((b) => b.reason === 'leak');
+  if (leaks.length) {
+    flags.push({
+      code: 'leaking-tap',
+      severity: 'warn',
+      reason: `Leaking tap${leaks.length > 1 ? 's' : ''} ${leaks.map((b) => b.id).join(', ')}: the wind-off zero sits more than ${settings.leakPa} Pa from the other taps'; dropped and bridged.`,
+    });
+  }
+  // Taps the user marked are bridged without a flag: the user already knows about them.
+  const others = bad.filter((b) => b.reason !== 'leak' && b.reason !== 'marked');
+  if (others.length) {
+    flags.push({
+      code: 'bad-tap',
+      severity: 'warn',
+      reason: `Bad tap${others.length > 1 ? 's' : ''} dropped and bridged: ${others.map((b) => `${b.id} (${badWords(b.reason)})`).join(', ')}.`,
+    });
+  }
+  if (!run.zeroRuns.length) {
+    flags.push({ code: 'no-zero', severity: 'warn', reason: 'No wind-off zero was found for this run; channels are not zero-corrected.' });
+  } else {
+    const limit = settings.zeroDriftFraction * nominal.uncorrected.q;
+    const drifting = Object.entries(run.drift).filter(([n, d]) => L.scale.has(n) && !angleChannels(setup).has(n) && Math.abs(d) > limit);
+    if (drifting.length) {
+      const worst = drifting.reduce((a, b) => (Math.abs(b[1]) > Math.abs(a[1]) ? b : a));
+      flags.push({
+        code: 'zero-drift',
+        severity: 'warn',
+        reason: `Zero drift: ${drifting.length} channel${drifting.length > 1 ? 's' : ''} changed by more than ${fmt(settings.zeroDriftFraction * 100, 1)} % of q between the wind-off zeros (runs ${run.zeroRuns.join(' and ')}); largest ${worst[0]} ${fmt(worst[1], 1)} Pa.`,
+      });
+    }
+  }
+  const M = nominal.fs.M;
+  if (M > settings.machLimit) {
+    flags.push({
+      code: 'compressible',
+      severity: 'warn',
+      reason: `Mach ${fmt(M, 3)} exceeds ${settings.machLimit}: the incompressible reduction is no longer adequate.`,
+    });
+  }
+  let spanwise: RunResult['spanwise'] = null;
+  if (nominal.rows.length > 1) {
+    const s = spanLoading(nominal.rows, setup.model.chord, setup.model.span, settings.spanSpreadTol);
+    spanwise = { spread: s.spread, CL: s.CL };
+    if (s.flag) flags.push(s.flag);
+  }
+
+  // Monte Carlo uncertainty on the corrected coefficients and circulations.
+  const uncertainty = settings.mcDraws > 0 ? runUncertainty(setup, L, run, settings, bad) : {};
+
+  return {
+    run: info.run,
+    coreVersion: CORE_VERSION,
+    settings,
+    air: nominal.fs.air,
+    M,
+    taps: nominal.taps,
+    rows: nominal.rows,
+    surface: nominal.main,
+    wake: nominal.wake,
+    walls: nominal.walls,
+    circulation: nominal.gamma,
+    correction: nominal.correction,
+    uncorrected: nominal.uncorrected,
+    corrected: nominal.corrected,
+    clMomentum: nominal.clMomentum,
+    spanwise,
+    uncertainty,
+    flags,
+    inviscid: inviscidCp(setup.model.geometry, nominal.corrected.alphaDeg),
+  };
+}
+
+function badWords(reason: string): string {
+  switch (reason) {
+    case 'marked': return 'marked bad by the user';
+    case 'stagnation': return 'Cp above stagnation';
+    case 'outlier': return 'outlier against its neighbours';
+    case 'leak': return 'leak at wind-off';
+    default: return reason;
+  }
+}
+
+type UKey = 'cl' | 'cd' | 'cdp' | 'cmc4' | 'clMom' | 'gammaPressure' | 'gammaMomentum';
+
+function runUncertainty(
+  setup: Setup, L: Layout, run: ZeroedRun, settings: Settings, bad: { id: string; reason: string }[],
+): Partial<Record<UKey, Interval>> {
+  const names = setup.channels.map((c) => c.name).filter((n) => run.values[n] !== undefined);
+  const sd = new Map<string, number>();
+  for (const ch of setup.channels) {
+    const x = run.values[ch.name];
+    if (x === undefined) continue;
+    const ui = instrumentStd(ch.uncertainty, x, L.scale.get(ch.name) ?? 1);
+    const se = run.stats[ch.name]?.stdErr ?? 0;
+    sd.set(ch.name, Math.sqrt(ui * ui + se * se));
+  }
+  const kq0 = setup.facility.qCalibration;
+  const ukq = setup.facility.qCalibrationUncertainty ?? 0;
+  const tapDx = new Float64Array(L.taps.length);
+  const perturbed: Record<string, number> = {};
+  const values = (n: string) => perturbed[n];
+  return monteCarlo<UKey>(settings.mcDraws, settings.mcSeed + run.info.run, (d) => {
+    for (const n of names) perturbed[n] = d.normal(run.values[n], sd.get(n) ?? 0);
+    for (let i = 0; i < tapDx.length; i++) tapDx[i] = d.normal(0, setup.model.tapPositionUncertainty);
+    const out = runCore(setup, L, run.info, settings, {
+      values,
+      alphaDeg: d.normal(run.info.alphaDeg, setup.model.alphaUncertaintyDeg),
+      kq: ukq > 0 ? d.normal(kq0, ukq) : kq0,
+      tapDx,
+      bad,
+    });
+    return {
+      cl: out.corrected.cl,
+      cd: out.corrected.cd,
+      cdp: out.corrected.cdp,
+      cmc4: out.corrected.cmc4,
+      clMom: out.clMomentum,
+      gammaPressure: out.gamma.pressure,
+      gammaMomentum: out.gamma.momentum,
+    };
+  });
+}
+
+// ---------------------------------------------------------------------------------------------
+// Session.
+
+/** The momentum-method cl put on the corrected basis of the pressure cl (same factor). */
+export function correctedMomentumCl(r: RunResult): number {
+  const f = r.uncorrected.cl !== 0 ? r.corrected.cl / r.uncorrected.cl : 1 - r.correction.sigma - 2 * r.correction.eps;
+  return r.clMomentum * f;
+}
+
+export function summariseSession(setup: Setup, results: RunResult[], infos: RunInfo[]): SessionSummary {
+  const byRun = new Map(infos.map((i) => [i.run, i]));
+  const rows = results
+    .map((r) => ({ r, info: byRun.get(r.run) }))
+    .filter((x): x is { r: RunResult; info: RunInfo } => x.info !== undefined)
+    .sort((a, b) => a.info.time.localeCompare(b.info.time));
+  const polar: PolarPoint[] = rows.map(({ r, info }) => ({
+    run: r.run,
+    alphaDeg: r.corrected.alphaDeg,
+    cl: r.corrected.cl,
+    clMom: correctedMomentumCl(r),
+    cd: Number.isFinite(r.corrected.cd) ? r.corrected.cd : r.corrected.cdp,
+    cdp: r.corrected.cdp,
+    cmc4: r.corrected.cmc4,
+    time: info.time,
+    flagged: r.flags.length > 0,
+  }));
+  // Statistics from the runs nobody should reject (runs with a 'reject' flag are left out).
+  const usable = rows.filter(({ r }) => !r.flags.some((f) => f.severity === 'reject'));
+  const stats = usable.length >= 3
+    ? sessionStats(usable.map(({ r, info }) => ({
+        run: r.run,
+        alphaDeg: r.corrected.alphaDeg,
+        cl: r.corrected.cl,
+        cd: Number.isFinite(r.corrected.cd) ? r.corrected.cd : r.corrected.cdp,
+        cmc4: r.corrected.cmc4,
+        time: info.time,
+      })))
+    : null;
+  const span = rows
+    .filter(({ r }) => r.rows.length > 1)
+    .map(({ r }) => {
+      const s = spanLoading(r.rows, setup.model.chord, setup.model.span, r.settings.spanSpreadTol);
+      return { run: r.run, alphaDeg: r.corrected.alphaDeg, z: s.z, cl: s.cl, CL: s.CL };
+    });
+  const range = (f: (x: { r: RunResult; info: RunInfo }) => number): [number, number] => {
+    const v = rows.map(f).filter(Number.isFinite);
+    return v.length ? [Math.min(...v), Math.max(...v)] : [NaN, NaN];
+  };
+  const [qMin, qMax] = range(({ r }) => r.corrected.q);
+  const [ReMin, ReMax] = range(({ r }) => r.corrected.Re);
+  const [alphaMin, alphaMax] = range(({ r }) => r.corrected.alphaDeg);
+  const [tempMin, tempMax] = range(({ info }) => info.temperatureC);
+  const [baroMin, baroMax] = range(({ info }) => info.baro);
+  return {
+    stats,
+    flagged: rows.filter(({ r }) => r.flags.length).map(({ r }) => ({ run: r.run, flags: r.flags })),
+    conditions: rows.length ? { qMin, qMax, ReMin, ReMax, alphaMin, alphaMax, tempMin, tempMax, baroMin, baroMax } : null,
+    polar,
+    span,
+  };
+}
+
+/** Raw runs → results and summary (tests, bench, CLI without a store). */
+export function reduceRawSession(
+  setup: Setup, raws: RawRun[], overrides?: Partial<Settings>,
+): { results: RunResult[]; summary: SessionSummary } {
+  const settings = resolveSettings(setup, overrides);
+  const zeroed = prepareRuns(setup, averageRuns(raws, settings));
+  const results = zeroed.map((z) => reduceRun(setup, z, settings));
+  return { results, summary: summariseSession(setup, results, raws.map((r) => r.info)) };
+}

@@ -1,0 +1,284 @@
+// Surface-pressure integration of one chordwise row on the closed contour, with the taps' real
+// (x/c, y/c) and Cp linear between taps:
+//   cn = ∫₀¹ (Cp_l − Cp_u) d(x/c),  ca = ∫₀¹ (Cp_u dy_u/dx − Cp_l dy_l/dx) d(x/c),
+//   cm_LE (nose-up +) = −∮ Cp [(x/c) d(x/c) + (y/c) d(y/c)] for the counter-clockwise contour
+//   TE → upper → LE → lower → TE (Anderson's ∫(Cp_u − Cp_l) x dx + … form), cm_c/4 = cm_LE + cn/4,
+//   cl = cn cos α − ca sin α,  cd_p = cn sin α + ca cos α.
+// Anderson, Fundamentals of Aerodynamics, ch. 1 §1.5, eqs. 1.7–1.22 (memory). The trailing edge is
+// closed by extrapolating each surface linearly to x/c = 1 and taking the mean (common practice,
+// no source). Bad-tap detection (stagnation margin, robust local fit of neighbours, wind-off leak)
+// is common practice, no source.
+
+import { DEFAULT_SETTINGS } from './types';
+import type { Settings, Surface, SurfaceLoads, TapCp } from './types';
+
+/** A point of the contour: what integrateContour needs of a tap. */
+export interface ContourPoint {
+  id: string;
+  x: number;
+  y: number;
+  surface: Surface;
+  cp: number;
+}
+
+type Placed = { id: string; x: number; y: number; surface: Surface };
+
+/** How the trailing-edge Cp was found on each surface. */
+export type TeSurfaceMethod = 'linear' | 'nearest';
+
+/** teMethod when both surfaces were extrapolated linearly (the normal case). */
+export const TE_METHOD_LINEAR = 'mean of the surfaces, each extrapolated linearly to x/c = 1';
+
+/** The teMethod text for a pair of per-surface methods. */
+export function teMethodText(upper: TeSurfaceMethod, lower: TeSurfaceMethod): string {
+  if (upper === 'linear' && lower === 'linear') return TE_METHOD_LINEAR;
+  const word = (m: TeSurfaceMethod) => (m === 'linear' ? 'linear extrapolation' : 'nearest tap, fewer than 2 taps');
+  return `mean of the surfaces at x/c = 1 (upper: ${word(upper)}; lower: ${word(lower)})`;
+}
+
+function cmpId(a: string, b: string): number {
+  return a < b ? -1 : a > b ? 1 : 0;
+}
+
+/** Orders taps around the closed contour: trailing edge → upper surface (decreasing x) → leading
+ *  edge → lower surface (increasing x) → trailing edge. A leading-edge tap belongs to whichever
+ *  surface the tap says. Ties in x are broken by y (higher first, which is the contour order near
+ *  the leading edge on both surfaces), then by id, so the result never depends on input order. */
+export function orderContour<T extends Placed>(taps: readonly T[]): T[] {
+  const upper = taps
+    .filter((t) => t.surface === 'upper')
+    .sort((a, b) => b.x - a.x || b.y - a.y || cmpId(a.id, b.id));
+  const lower = taps
+    .filter((t) => t.surface === 'lower')
+    .sort((a, b) => a.x - b.x || b.y - a.y || cmpId(a.id, b.id));
+  return [...upper, ...lower];
+}
+
+function validatePoints(points: readonly ContourPoint[], what: string): void {
+  for (const p of points) {
+    if (p.surface !== 'upper' && p.surface !== 'lower') {
+      throw new Error(`${what}: tap ${p.id} has surface '${String(p.surface)}' (expected 'upper' or 'lower')`);
+    }
+    for (const key of ['x', 'y', 'cp'] as const) {
+      if (!Number.isFinite(p[key])) {
+        throw new Error(`${what}: tap ${p.id} has a non-finite ${key} (${p[key]})`);
+      }
+    }
+  }
+}
+
+/** Value of one surface at x/c = 1: linear through the two taps nearest the trailing edge (distinct
+ *  x), else the nearest tap. `surf` is sorted by decreasing x. */
+function trailingEdgeValue(surf: readonly ContourPoint[]): { cp: number; y: number; method: TeSurfaceMethod } {
+  const a = surf[0];
+  const b = surf.find((p) => a.x - p.x > 1e-9);
+  if (!b) return { cp: a.cp, y: a.y, method: 'nearest' };
+  const t = (1 - a.x) / (a.x - b.x);
+  return { cp: a.cp + t * (a.cp - b.cp), y: a.y + t * (a.y - b.y), method: 'linear' };
+}
+
+/** Integrates Cp around the closed contour of one row (see the module comment). The points are
+ *  ordered here, so the result does not depend on their order. Needs at least one tap on each
+ *  surface. `bridged` is always empty: the caller passes only good taps (see reduceSurface). */
+export function integrateContour(points: readonly ContourPoint[], alphaDeg: number): SurfaceLoads {
+  validatePoints(points, 'integrateContour');
+  if (!Number.isFinite(alphaDeg)) throw new Error(`integrateContour: angle of attack is not finite (${alphaDeg})`);
+  const ordered = orderContour(points);
+  const upper = ordered.filter((p) => p.surface === 'upper');
+  const lower = ordered.filter((p) => p.surface === 'lower').reverse();
+  if (upper.length === 0 || lower.length === 0) {
+    throw new Error(
+      `integrateContour: need at least one tap on each surface (upper ${upper.length}, lower ${lower.length})`,
+    );
+  }
+  const teU = trailingEdgeValue(upper);
+  const teL = trailingEdgeValue(lower);
+  const te = { x: 1, y: 0.5 * (teU.y + teL.y), cp: 0.5 * (teU.cp + teL.cp) };
+  const poly = [te, ...ordered, te];
+
+  // Linear Cp along straight segments: exact integrals of the piecewise-linear integrands.
+  let sCpDx = 0;
+  let sCpDy = 0;
+  let sMom = 0;
+  for (let i = 0; i + 1 < poly.length; i++) {
+    const p = poly[i];
+    const q = poly[i + 1];
+    const dx = q.x - p.x;
+    const dy = q.y - p.y;
+    sCpDx += 0.5 * (p.cp + q.cp) * dx;
+    sCpDy += 0.5 * (p.cp + q.cp) * dy;
+    // ∫ Cp x dx with Cp and x linear in the segment parameter = dx/6 [Cp_p(2x_p + x_q) + Cp_q(x_p + 2x_q)].
+    sMom += (dx / 6) * (p.cp * (2 * p.x + q.x) + q.cp * (p.x + 2 * q.x));
+    sMom += (dy / 6) * (p.cp * (2 * p.y + q.y) + q.cp * (p.y + 2 * q.y));
+  }
+  // Outward normal of the counter-clockwise contour is (dy, −dx)/ds; force = −∮ Cp n ds.
+  const cn = sCpDx;
+  const ca = -sCpDy;
+  const cmLE = -sMom;
+  const a = (alphaDeg * Math.PI) / 180;
+  return {
+    cn,
+    ca,
+    cl: cn * Math.cos(a) - ca * Math.sin(a),
+    cdp: cn * Math.sin(a) + ca * Math.cos(a),
+    cmLE,
+    cmc4: cmLE + cn / 4,
+    teCp: te.cp,
+    teMethod: teMethodText(teU.method, teL.method),
+    bridged: [],
+  };
+}
+
+export type BadTapReason = 'marked' | 'stagnation' | 'outlier' | 'leak';
+
+function median(values: number[]): number {
+  const s = [...values].sort((a, b) => a - b);
+  const n = s.length;
+  return n % 2 ? s[(n - 1) >> 1] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
+}
+
+/** Lagrange interpolation/extrapolation at s through the given (s, cp) nodes (distinct s). */
+function lagrange(nodes: readonly { s: number; cp: number }[], s: number): number {
+  let sum = 0;
+  for (let i = 0; i < nodes.length; i++) {
+    let w = 1;
+    for (let j = 0; j < nodes.length; j++) {
+      if (j !== i) w *= (s - nodes[j].s) / (nodes[i].s - nodes[j].s);
+    }
+    sum += w * nodes[i].cp;
+  }
+  return sum;
+}
+
+/** Predictions of the Cp at chain position k from its neighbours only (never from k itself):
+ *  linear through the nearest neighbour on each side, and quadratics through two on one side and
+ *  one on the other; at the ends of the chain, linear and quadratic extrapolation. */
+function neighbourPredictions(chain: readonly { s: number; cp: number }[], k: number): number[] {
+  const at = (i: number) => (i >= 0 && i < chain.length ? chain[i] : undefined);
+  const [l2, l1, r1, r2, r3, l3] = [at(k - 2), at(k - 1), at(k + 1), at(k + 2), at(k + 3), at(k - 3)];
+  const sets: ({ s: number; cp: number } | undefined)[][] = [];
+  if (l1 && r1) {
+    sets.push([l1, r1], [l2, l1, r1], [l1, r1, r2]);
+  } else if (r1) {
+    sets.push([r1, r2], [r1, r2, r3]);
+  } else if (l1) {
+    sets.push([l1, l2], [l1, l2, l3]);
+  }
+  const s = chain[k].s;
+  const out: number[] = [];
+  for (const set of sets) {
+    if (set.some((p) => p === undefined)) continue;
+    const nodes = set as { s: number; cp: number }[];
+    let distinct = true;
+    for (let i = 0; i < nodes.length; i++) {
+      for (let j = i + 1; j < nodes.length; j++) if (Math.abs(nodes[i].s - nodes[j].s) < 1e-9) distinct = false;
+    }
+    if (distinct) out.push(lagrange(nodes, s));
+  }
+  return out;
+}
+
+/** Outlier search on one row's chain of taps (contour order, upper TE → LE → lower TE), by arc
+ *  length along the polygon through the remaining taps. A tap is an outlier when its Cp lies outside
+ *  the range of its neighbours' predictions by more than tol + that range (the spread of the
+ *  predictions measures how fast Cp is changing there, so the suction peak and the stagnation point
+ *  of a clean section are not flagged). The worst outlier is removed first and the search repeated. */
+function findOutliers(chain: readonly ContourPoint[], tol: number): string[] {
+  const active = [...chain];
+  const found: string[] = [];
+  while (active.length >= 5) {
+    const pts: { s: number; cp: number }[] = [];
+    let s = 0;
+    for (let i = 0; i < active.length; i++) {
+      if (i > 0) s += Math.hypot(active[i].x - active[i - 1].x, active[i].y - active[i - 1].y);
+      pts.push({ s, cp: active[i].cp });
+    }
+    let worst = -1;
+    let worstRatio = 1;
+    for (let k = 0; k < active.length; k++) {
+      const preds = neighbourPredictions(pts, k);
+      if (preds.length < 2) continue;
+      const lo = Math.min(...preds);
+      const hi = Math.max(...preds);
+      const cp = pts[k].cp;
+      const dev = cp < lo ? lo - cp : cp > hi ? cp - hi : 0;
+      const ratio = dev / (tol + (hi - lo));
+      if (ratio > worstRatio) {
+        worstRatio = ratio;
+        worst = k;
+      }
+    }
+    if (worst < 0) break;
+    found.push(active[worst].id);
+    active.splice(worst, 1);
+  }
+  return found;
+}
+
+/** Finds bad taps in any number of rows. Each tap gets at most one reason, in this order:
+ *  'marked' (in settings.badTaps), 'leak' (its wind-off zero departs from the median zero of all
+ *  taps with a zero by more than leakPa, default DEFAULT_SETTINGS.leakPa; only when zeroRaw is
+ *  given), 'stagnation' (Cp > 1 + stagnationMargin), 'outlier' (against a robust local fit of its
+ *  neighbours on the same row along the contour, see findOutliers; taps already found bad are
+ *  left out of the fits). The `bad` field of the input taps is not read. Result in input order. */
+export function detectBadTaps(
+  taps: readonly TapCp[],
+  settings: Pick<Settings, 'stagnationMargin' | 'tapOutlierCp' | 'badTaps'>,
+  zeroRaw?: Record<string, number>,
+  leakPa?: number,
+): { id: string; reason: BadTapReason }[] {
+  validatePoints(taps, 'detectBadTaps');
+  const reason = new Map<string, BadTapReason>();
+  const marked = new Set(settings.badTaps);
+  for (const t of taps) if (marked.has(t.id)) reason.set(t.id, 'marked');
+
+  if (zeroRaw) {
+    const limit = leakPa ?? DEFAULT_SETTINGS.leakPa;
+    const withZero = taps.filter((t) => Number.isFinite(zeroRaw[t.id]));
+    if (withZero.length >= 3) {
+      const med = median(withZero.map((t) => zeroRaw[t.id]));
+      for (const t of withZero) {
+        if (!reason.has(t.id) && Math.abs(zeroRaw[t.id] - med) > limit) reason.set(t.id, 'leak');
+      }
+    }
+  }
+  for (const t of taps) {
+    if (!reason.has(t.id) && t.cp > 1 + settings.stagnationMargin) reason.set(t.id, 'stagnation');
+  }
+  const rows = new Map<string, TapCp[]>();
+  for (const t of taps) {
+    if (reason.has(t.id)) continue;
+    const list = rows.get(t.row) ?? [];
+    list.push(t);
+    rows.set(t.row, list);
+  }
+  for (const list of rows.values()) {
+    for (const id of findOutliers(orderContour(list), settings.tapOutlierCp)) reason.set(id, 'outlier');
+  }
+  return taps.filter((t) => reason.has(t.id)).map((t) => ({ id: t.id, reason: reason.get(t.id)! }));
+}
+
+/** Loads of one row: drops the taps listed in `bad` (and any tap whose `bad` field is set),
+ *  integrates the rest and lists the dropped ones, in contour order, in `bridged`. */
+export function reduceSurface(
+  taps: readonly TapCp[],
+  alphaDeg: number,
+  bad: readonly { id: string; reason?: string }[],
+): SurfaceLoads {
+  const rowNames = [...new Set(taps.map((t) => t.row))];
+  if (rowNames.length > 1) {
+    throw new Error(`reduceSurface: taps of one row expected, got rows ${rowNames.join(', ')}`);
+  }
+  const badIds = new Set(bad.map((b) => b.id));
+  const isBad = (t: TapCp) => t.bad || badIds.has(t.id);
+  const good = taps.filter((t) => !isBad(t));
+  for (const s of ['upper', 'lower'] as const) {
+    if (!good.some((t) => t.surface === s) && taps.some((t) => t.surface === s)) {
+      throw new Error(
+        `reduceSurface: row ${rowNames[0]} has no usable ${s}-surface tap left after dropping bad taps`,
+      );
+    }
+  }
+  const loads = integrateContour(good, alphaDeg);
+  return { ...loads, bridged: orderContour(taps.filter(isBad)).map((t) => t.id) };
+}
