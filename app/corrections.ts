@@ -62,7 +62,9 @@ export function wallCorrections(args: {
   const vModel = sectionAreaC2 * chord * chord * width;
   const C = height * width;
   const epsSb = (K1_SPANNING * vModel) / C ** 1.5; // same for 'allen-vincenti' (see header)
-  const epsWb = (ch / 2) * cdU;
+  // ε_wb = (c/4h)·cd_u: Allen & Vincenti (1944) and Barlow, Rae & Pope (1999) ch. 9 as two of us
+  // recall them (memory). REDUCTION.md §8 writes c/2h; we use c/4h pending a check of the book.
+  const epsWb = (ch / 4) * cdU;
   return { method, sigma, epsSb, epsWb, eps: epsSb + epsWb };
 }
 

@@ -2,8 +2,14 @@
 // - Linear-strength vortex panel method with the Kutta condition γ_TE,upper + γ_TE,lower = 0:
 //   N straight panels, vortex strength linear on each panel and continuous at the N + 1 nodes,
 //   zero normal velocity at the panel midpoints (Katz & Plotkin, Low-Speed Aerodynamics, 2nd ed.,
-//   §11.4 (memory); Anderson, Fundamentals of Aerodynamics, ch. 4 (memory)). cl from the circulation,
-//   cl = −2Γ_ccw/(V c); Cp = 1 − (V_t/V)² at the midpoints.
+//   §11.4 (memory); Anderson, Fundamentals of Aerodynamics, ch. 4 (memory)). Our one change: at the
+//   two trailing-edge panels, whose midpoints nearly coincide on a thin or cusped trailing edge (an
+//   ill-conditioned pair of equations there), the normal-velocity equations are replaced by a zero
+//   second difference of γ along each surface next to the trailing edge. Checked against the exact
+//   Joukowski and Kármán–Trefftz solutions in test/panel.test.ts. cl from the circulation,
+//   cl = −2Γ_ccw/(V c); Cp = 1 − (V_t/V)² at the midpoints, where V_t equals the local sheet
+//   strength γ because the flow inside the closed contour is at rest (this converges at second
+//   order in the panel size; the sum of induced tangential velocities converges only at first).
 // - NACA 4-digit sections: thickness y_t = 5t(0.2969√x − 0.1260x − 0.3516x² + 0.2843x³ − 0.1036x⁴)
 //   (the closed-trailing-edge variant of the last coefficient, −0.1015 in the original) and the
 //   two-parabola mean line (Abbott & von Doenhoff, Theory of Wing Sections, 1959, §6.4 (memory)).
@@ -83,6 +89,9 @@ export function naca4(code: string, nPanels: number): { x: number[]; y: number[]
     x.push(pt.x);
     y.push(pt.y);
   }
+  // The closed trailing edge is exactly (1, 0) on both ends (y_t(1) = 0 up to rounding, y_c(1) = 0).
+  x[0] = x[nPanels] = 1;
+  y[0] = y[nPanels] = 0;
   return { x, y };
 }
 
@@ -204,11 +213,9 @@ interface Basis {
   nx: Float64Array;
   ny: Float64Array;
   surface: Surface[];
-  /** Node vortex strengths and midpoint tangential velocities for α = 0° and α = 90°. */
+  /** Node vortex strengths for α = 0° and α = 90°. */
   g0: Float64Array;
   g90: Float64Array;
-  vt0: Float64Array;
-  vt90: Float64Array;
 }
 
 /** LU decomposition with partial pivoting, in place; returns the pivot order. */
@@ -262,7 +269,7 @@ function luSolve(a: Float64Array[], piv: Int32Array, b: Float64Array): Float64Ar
 function buildBasis(x: readonly number[], y: readonly number[]): Basis {
   if (x.length !== y.length) throw new Error(`panelSolve: x has ${x.length} points but y has ${y.length}`);
   const n = x.length - 1;
-  if (n < 4) throw new Error(`panelSolve: need at least 5 points (got ${x.length})`);
+  if (n < 6) throw new Error(`panelSolve: need at least 7 points (6 panels), got ${x.length}`);
   for (let i = 0; i <= n; i++) {
     if (!Number.isFinite(x[i]) || !Number.isFinite(y[i])) {
       throw new Error(`panelSolve: point ${i + 1} is not finite (${x[i]}, ${y[i]})`);
@@ -296,12 +303,8 @@ function buildBasis(x: readonly number[], y: readonly number[]): Basis {
   // For a linear vortex sheet γ(ξ) (counter-clockwise positive) the local velocities are
   //   u = −(1/2π) ∫ γ ζ / r² dξ,  w = (1/2π) ∫ γ (x − ξ) / r² dξ, integrated in closed form.
   const m = n + 1;
-  const An: Float64Array[] = [];
-  const At: Float64Array[] = [];
-  for (let i = 0; i < n; i++) {
-    An.push(new Float64Array(m));
-    At.push(new Float64Array(m));
-  }
+  const A: Float64Array[] = [];
+  for (let i = 0; i < n; i++) A.push(new Float64Array(m));
   const inv2pi = 1 / (2 * Math.PI);
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < n; j++) {
@@ -315,7 +318,7 @@ function buildBasis(x: readonly number[], y: readonly number[]): Basis {
       if (i === j) {
         xl = L / 2;
         zl = 0;
-        dth = -Math.PI; // outer side of the sheet (ζ → 0⁻)
+        dth = -Math.PI; // outer side of the sheet (ζ → 0⁻); only w is used, which is continuous
         lnr = 0;
       } else {
         dth = Math.atan2(zl, xl - L) - Math.atan2(zl, xl);
@@ -332,34 +335,27 @@ function buildBasis(x: readonly number[], y: readonly number[]): Basis {
       const vya = ua * sn[j] + wa * cs[j];
       const vxb = ub * cs[j] - wb * sn[j];
       const vyb = ub * sn[j] + wb * cs[j];
-      An[i][j] += vxa * nx[i] + vya * ny[i];
-      An[i][j + 1] += vxb * nx[i] + vyb * ny[i];
-      At[i][j] += vxa * cs[i] + vya * sn[i];
-      At[i][j + 1] += vxb * cs[i] + vyb * sn[i];
+      A[i][j] += vxa * nx[i] + vya * ny[i];
+      A[i][j + 1] += vxb * nx[i] + vyb * ny[i];
     }
   }
-  const A: Float64Array[] = An.map((r) => Float64Array.from(r));
   const kutta = new Float64Array(m);
   kutta[0] = 1;
   kutta[n] = 1;
   A.push(kutta);
+  const upperTe = new Float64Array(m);
+  upperTe.set([1, -2, 1], 0);
+  A[0] = upperTe;
+  const lowerTe = new Float64Array(m);
+  lowerTe.set([1, -2, 1], n - 2);
+  A[n - 1] = lowerTe;
   const piv = luFactor(A, m);
   const solveFor = (ux: number, uy: number) => {
     const b = new Float64Array(m);
-    for (let i = 0; i < n; i++) b[i] = -(ux * nx[i] + uy * ny[i]);
-    const g = luSolve(A, piv, b);
-    const vt = new Float64Array(n);
-    for (let i = 0; i < n; i++) {
-      let s = ux * cs[i] + uy * sn[i];
-      const row = At[i];
-      for (let j = 0; j < m; j++) s += row[j] * g[j];
-      vt[i] = s;
-    }
-    return { g, vt };
+    for (let i = 1; i < n - 1; i++) b[i] = -(ux * nx[i] + uy * ny[i]);
+    return luSolve(A, piv, b);
   };
-  const s0 = solveFor(1, 0);
-  const s90 = solveFor(0, 1);
-  return { n, xm, ym, len, nx, ny, surface, g0: s0.g, g90: s90.g, vt0: s0.vt, vt90: s90.vt };
+  return { n, xm, ym, len, nx, ny, surface, g0: solveFor(1, 0), g90: solveFor(0, 1) };
 }
 
 const basisCache = new Map<string, Basis>();
@@ -401,18 +397,15 @@ export function panelSolve(x: readonly number[], y: readonly number[], alphaDeg:
   const a = alphaDeg * DEG;
   const ca = Math.cos(a);
   const sa = Math.sin(a);
+  const node = (j: number) => ca * b.g0[j] + sa * b.g90[j];
   let gamma = 0;
-  for (let j = 0; j < b.n; j++) {
-    const g1 = ca * b.g0[j] + sa * b.g90[j];
-    const g2 = ca * b.g0[j + 1] + sa * b.g90[j + 1];
-    gamma += 0.5 * b.len[j] * (g1 + g2);
-  }
   const cp: number[] = [];
   let fx = 0;
   let fy = 0;
   let mz = 0; // counter-clockwise moment about (0.25, 0)
   for (let i = 0; i < b.n; i++) {
-    const vt = ca * b.vt0[i] + sa * b.vt90[i];
+    const vt = 0.5 * (node(i) + node(i + 1)); // sheet strength at the midpoint
+    gamma += b.len[i] * vt;
     const c = 1 - vt * vt;
     cp.push(c);
     const dfx = -c * b.nx[i] * b.len[i];

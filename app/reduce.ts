@@ -221,7 +221,9 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
       chord: setup.model.chord,
       height: setup.facility.sectionHeight,
       V: fs.V,
-      angleFluxCl: angleCl,
+      // With flow-angle probes the control volume closes at the rake plane: the wall integral
+      // stops there and the rake's vertical-momentum flux is added (REDUCTION.md §5).
+      ...(L.rakeAngle.length ? { angleFluxCl: angleCl, rakeX: setup.rake.x } : {}),
     });
   }
 

@@ -151,24 +151,36 @@ function lagrange(nodes: readonly { s: number; cp: number }[], s: number): numbe
 }
 
 /** Predictions of the Cp at chain position k from its neighbours only (never from k itself):
- *  linear through the nearest neighbour on each side, and quadratics through two on one side and
- *  one on the other; at the ends of the chain, linear and quadratic extrapolation. */
+ *  Lagrange polynomials (linear and quadratic) through every subset of 2 or 3 of the two nearest
+ *  neighbours on each side that has a neighbour on both sides; at an end of the chain, linear and
+ *  quadratic extrapolation through subsets of the three nearest. Sets that skip the nearest
+ *  neighbour keep a bad neighbour from making a good tap look wrong. */
 function neighbourPredictions(chain: readonly { s: number; cp: number }[], k: number): number[] {
-  const at = (i: number) => (i >= 0 && i < chain.length ? chain[i] : undefined);
-  const [l2, l1, r1, r2, r3, l3] = [at(k - 2), at(k - 1), at(k + 1), at(k + 2), at(k + 3), at(k - 3)];
-  const sets: ({ s: number; cp: number } | undefined)[][] = [];
-  if (l1 && r1) {
-    sets.push([l1, r1], [l2, l1, r1], [l1, r1, r2]);
-  } else if (r1) {
-    sets.push([r1, r2], [r1, r2, r3]);
-  } else if (l1) {
-    sets.push([l1, l2], [l1, l2, l3]);
+  const at = (i: number) => (i >= 0 && i < chain.length ? [chain[i]] : []);
+  const left = [...at(k - 1), ...at(k - 2)];
+  const right = [...at(k + 1), ...at(k + 2)];
+  const sets: { s: number; cp: number }[][] = [];
+  if (left.length && right.length) {
+    const window = [...left, ...right];
+    for (let i = 0; i < window.length; i++) {
+      for (let j = i + 1; j < window.length; j++) {
+        const pair = [window[i], window[j]];
+        const both = (set: typeof pair) => set.some((p) => left.includes(p)) && set.some((p) => right.includes(p));
+        if (both(pair)) sets.push(pair);
+        for (let l = j + 1; l < window.length; l++) {
+          const triple = [window[i], window[j], window[l]];
+          if (both(triple)) sets.push(triple);
+        }
+      }
+    }
+  } else {
+    const side = left.length ? [...left, ...at(k - 3)] : [...right, ...at(k + 3)];
+    if (side.length === 3) sets.push([side[0], side[1]], [side[0], side[2]], [side[1], side[2]], side);
+    else if (side.length === 2) sets.push(side);
   }
   const s = chain[k].s;
   const out: number[] = [];
-  for (const set of sets) {
-    if (set.some((p) => p === undefined)) continue;
-    const nodes = set as { s: number; cp: number }[];
+  for (const nodes of sets) {
     let distinct = true;
     for (let i = 0; i < nodes.length; i++) {
       for (let j = i + 1; j < nodes.length; j++) if (Math.abs(nodes[i].s - nodes[j].s) < 1e-9) distinct = false;
@@ -178,36 +190,40 @@ function neighbourPredictions(chain: readonly { s: number; cp: number }[], k: nu
   return out;
 }
 
-/** Outlier search on one row's chain of taps (contour order, upper TE → LE → lower TE), by arc
- *  length along the polygon through the remaining taps. A tap is an outlier when its Cp lies outside
- *  the range of its neighbours' predictions by more than tol + that range (the spread of the
- *  predictions measures how fast Cp is changing there, so the suction peak and the stagnation point
- *  of a clean section are not flagged). The worst outlier is removed first and the search repeated. */
+/** Outlier scores of every tap of a chain (contour order, upper TE → LE → lower TE), by arc
+ *  length along the polygon through the taps: |Cp − median of the neighbour predictions| divided
+ *  by the local scale max(tol, spread of the predictions, ½|ΔCp| between the two neighbours).
+ *  The spread and the neighbours' difference measure how fast Cp changes there, so a clean
+ *  suction peak or stagnation point sampled by few taps does not score as an outlier. */
+function outlierScores(chain: readonly ContourPoint[], tol: number): number[] {
+  const pts: { s: number; cp: number }[] = [];
+  let s = 0;
+  for (let i = 0; i < chain.length; i++) {
+    if (i > 0) s += Math.hypot(chain[i].x - chain[i - 1].x, chain[i].y - chain[i - 1].y);
+    pts.push({ s, cp: chain[i].cp });
+  }
+  const last = pts.length - 1;
+  return pts.map((p, k) => {
+    const preds = neighbourPredictions(pts, k);
+    if (preds.length < 2) return 0;
+    const spread = Math.max(...preds) - Math.min(...preds);
+    const step =
+      k === 0 ? pts[2].cp - pts[1].cp : k === last ? pts[k - 2].cp - pts[k - 1].cp : pts[k + 1].cp - pts[k - 1].cp;
+    return Math.abs(p.cp - median(preds)) / Math.max(tol, spread, 0.5 * Math.abs(step));
+  });
+}
+
+/** Outlier search on one chain: a tap whose score exceeds 1 is an outlier. The worst is removed
+ *  and the search repeated, so one bad tap does not condemn its neighbours, whose predictions it
+ *  drags. Where Cp changes by much more than tol between neighbouring taps (the leading edge at
+ *  high α), a bad tap cannot be told from the real peak and is not searched for. */
 function findOutliers(chain: readonly ContourPoint[], tol: number): string[] {
   const active = [...chain];
   const found: string[] = [];
   while (active.length >= 5) {
-    const pts: { s: number; cp: number }[] = [];
-    let s = 0;
-    for (let i = 0; i < active.length; i++) {
-      if (i > 0) s += Math.hypot(active[i].x - active[i - 1].x, active[i].y - active[i - 1].y);
-      pts.push({ s, cp: active[i].cp });
-    }
+    const scores = outlierScores(active, tol);
     let worst = -1;
-    let worstRatio = 1;
-    for (let k = 0; k < active.length; k++) {
-      const preds = neighbourPredictions(pts, k);
-      if (preds.length < 2) continue;
-      const lo = Math.min(...preds);
-      const hi = Math.max(...preds);
-      const cp = pts[k].cp;
-      const dev = cp < lo ? lo - cp : cp > hi ? cp - hi : 0;
-      const ratio = dev / (tol + (hi - lo));
-      if (ratio > worstRatio) {
-        worstRatio = ratio;
-        worst = k;
-      }
-    }
+    for (let k = 0; k < scores.length; k++) if (scores[k] > 1 && (worst < 0 || scores[k] > scores[worst])) worst = k;
     if (worst < 0) break;
     found.push(active[worst].id);
     active.splice(worst, 1);

@@ -20,8 +20,9 @@ export type MarkerShape = 'circle' | 'square' | 'triangle' | 'diamond';
 export interface PlotPoint {
   x: number;
   y: number;
-  /** Flagged points get an extra × mark (shape, not colour alone) and their run label. */
-  flagged?: boolean;
+  /** Flagged points get an extra mark (shape, not colour alone): 'reject' a × and the point's
+   *  label, 'check' a ring. */
+  flag?: 'reject' | 'check';
   label?: string;
 }
 
@@ -31,7 +32,7 @@ export interface PlotSeries {
   marker: MarkerShape;
   /** Filled (true) or open (false) marker. */
   filled: boolean;
-  /** Connect the unflagged points in the given order; 'none' draws markers only. */
+  /** Connect the points without a 'reject' flag in the given order; 'none' draws markers only. */
   line: 'solid' | 'dashed' | 'none';
   points: PlotPoint[];
 }
@@ -43,8 +44,8 @@ export interface PlotSpec {
   series: PlotSeries[];
   width?: number;
   height?: number;
-  /** Text for the legend entry of flagged points (omitted when no point is flagged). */
-  flaggedLabel?: string;
+  /** Legend texts of the flag marks (an entry appears only when some point has that flag). */
+  flagLabels?: { reject?: string; check?: string };
 }
 
 /** Escape text for HTML/SVG element content and attribute values. */
@@ -116,7 +117,12 @@ export function markerSvg(shape: MarkerShape, x: number, y: number, r: number, c
   }
 }
 
-/** The × drawn over a flagged point. */
+/** The ring drawn around a point with 'check' flags only. */
+function checkMark(x: number, y: number, r: number): string {
+  return `<circle cx="${f1(x)}" cy="${f1(y)}" r="${f1(r * 2)}" fill="none" stroke="${OKABE_ITO.black}" stroke-width="0.6"/>`;
+}
+
+/** The × drawn over a point with a 'reject' flag. */
 function flagMark(x: number, y: number, r: number): string {
   const h = r * 1.7;
   return `<path d="M${f1(x - h)},${f1(y - h)}L${f1(x + h)},${f1(y + h)}M${f1(x - h)},${f1(y + h)}L${f1(x + h)},${f1(y - h)}" stroke="${OKABE_ITO.black}" stroke-width="1.3" fill="none"/>`;
@@ -127,15 +133,26 @@ export function svgPlot(spec: PlotSpec): string {
   const W = spec.width ?? 340;
   const H = spec.height ?? 250;
   const m = { l: 48, r: 10, t: 20, b: 36 };
-  const legendRows = spec.series.length + (spec.series.some((s) => s.points.some((p) => p.flagged)) ? 1 : 0);
+  const finite = (p: PlotPoint) => Number.isFinite(p.x) && Number.isFinite(p.y);
+  const marked = (f: 'reject' | 'check') => spec.series.flatMap((s) => s.points).filter((p) => p.flag === f && finite(p));
+  const rejected = marked('reject');
+  const checked = marked('check');
+  const legendRows = spec.series.length + (rejected.length ? 1 : 0) + (checked.length ? 1 : 0);
   const legendH = legendRows * 13 + 6;
   const plotW = W - m.l - m.r;
   const plotH = H - m.t - m.b - legendH;
   const all = spec.series.flatMap((s) => s.points).filter((p) => Number.isFinite(p.x) && Number.isFinite(p.y));
   const xs = all.map((p) => p.x);
   const ys = all.map((p) => p.y);
-  const xt = niceTicks(xs.length ? Math.min(...xs) : 0, xs.length ? Math.max(...xs) : 1);
-  const yt = niceTicks(ys.length ? Math.min(...ys) : 0, ys.length ? Math.max(...ys) : 1);
+  // a little room so no marker sits on the frame
+  const padded = (v: number[]): [number, number] => {
+    if (!v.length) return [0, 1];
+    const lo = Math.min(...v), hi = Math.max(...v);
+    const pad = (hi - lo) * 0.04;
+    return [lo - pad, hi + pad];
+  };
+  const xt = niceTicks(...padded(xs));
+  const yt = niceTicks(...padded(ys));
   const sx = (x: number) => m.l + ((x - xt.lo) / (xt.hi - xt.lo)) * plotW;
   const sy = (y: number) => m.t + plotH - ((y - yt.lo) / (yt.hi - yt.lo)) * plotH;
 
@@ -166,7 +183,7 @@ export function svgPlot(spec: PlotSpec): string {
   for (const s of spec.series) {
     const pts = s.points.filter((p) => Number.isFinite(p.x) && Number.isFinite(p.y));
     if (s.line !== 'none') {
-      const good = pts.filter((p) => !p.flagged);
+      const good = pts.filter((p) => p.flag !== 'reject');
       if (good.length > 1) {
         const d = good.map((p, i) => `${i ? 'L' : 'M'}${f1(sx(p.x))},${f1(sy(p.y))}`).join('');
         out.push(`<path d="${d}" fill="none" stroke="${s.colour}" stroke-width="0.8"${s.line === 'dashed' ? ' stroke-dasharray="3 2"' : ''}/>`);
@@ -178,11 +195,15 @@ export function svgPlot(spec: PlotSpec): string {
     out.push('</g>');
   }
   // flag marks and labels over everything
-  const flagged = spec.series.flatMap((s) => s.points).filter((p) => p.flagged && Number.isFinite(p.x) && Number.isFinite(p.y));
-  if (flagged.length) {
-    out.push('<g class="flagged">');
+  if (checked.length) {
+    out.push('<g class="flag-check">');
+    for (const p of checked) out.push(checkMark(sx(p.x), sy(p.y), r));
+    out.push('</g>');
+  }
+  if (rejected.length) {
+    out.push('<g class="flag-reject">');
     const labelled = new Set<string>();
-    for (const p of flagged) {
+    for (const p of rejected) {
       out.push(flagMark(sx(p.x), sy(p.y), r));
       if (p.label && !labelled.has(p.label)) {
         labelled.add(p.label);
@@ -200,9 +221,14 @@ export function svgPlot(spec: PlotSpec): string {
     out.push(`<text x="${m.l + 22}" y="${ly + 3}" class="lg">${escapeHtml(s.name)}</text>`);
     ly += 13;
   }
-  if (flagged.length) {
+  if (rejected.length) {
     out.push(flagMark(m.l + 6, ly, r));
-    out.push(`<text x="${m.l + 22}" y="${ly + 3}" class="lg">${escapeHtml(spec.flaggedLabel ?? 'flagged run (labelled with its run number)')}</text>`);
+    out.push(`<text x="${m.l + 22}" y="${ly + 3}" class="lg">${escapeHtml(spec.flagLabels?.reject ?? 'run with a REJECT flag (labelled with its run number)')}</text>`);
+    ly += 13;
+  }
+  if (checked.length) {
+    out.push(checkMark(m.l + 6, ly, r));
+    out.push(`<text x="${m.l + 22}" y="${ly + 3}" class="lg">${escapeHtml(spec.flagLabels?.check ?? 'run with CHECK flags only')}</text>`);
   }
   out.push('</g>');
   if (!all.length) out.push(`<text x="${f1(m.l + plotW / 2)}" y="${f1(m.t + plotH / 2)}" text-anchor="middle" class="al">no reduced points</text>`);

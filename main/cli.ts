@@ -1,0 +1,556 @@
+// The `rakeline` command line: a thin layer over the store, the importer, the reduction service,
+// the day sheet and the exports. Exit codes: 0 ok, 1 bad input (log errors name file, line and
+// channel), 2 usage errors (unknown command or option, bad option value, ambiguous session).
+import { existsSync, writeFileSync } from 'node:fs';
+import { relative, resolve } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { Command, CommanderError, InvalidArgumentError, Option } from 'commander';
+import { SingleBar, Presets } from 'cli-progress';
+import { watch } from 'chokidar';
+import { Store, type RunRow, type ImportProgress } from './store';
+import { importSessionFolder } from './import';
+import { reduceStoredSession, sessionSummary } from './reduceService';
+import { daySheetHtml } from './daysheet';
+import { exportResultsCsv, exportResultsJson } from './export';
+import { runsAffectedBy } from './handlers';
+import pkg from '../package.json';
+import { isLogError } from '../app/log/errors';
+import { settingsPatchSchema } from '../app/log/schema';
+import { correctedMomentumCl } from '../app/reduce';
+import { DEFAULT_SETTINGS, type Flag, type RunResult, type Settings } from '../app/types';
+
+export const DEFAULT_DB = 'rakeline.sqlite';
+
+/** Bad use of the command line (exit 2). */
+export class UsageError extends Error { override name = 'UsageError'; }
+/** Bad input: missing database or session, unreadable folder (exit 1). */
+export class InputError extends Error { override name = 'InputError'; }
+
+interface GlobalOpts { db?: string; session?: string; actor?: string }
+
+// ---------------------------------------------------------------------------------------------
+// Option parsers (throwing InvalidArgumentError makes commander report a usage error).
+
+/** "3,5-9,12" → [3, 5, 6, 7, 8, 9, 12]. */
+export function parseRunList(text: string): number[] {
+  const out = new Set<number>();
+  for (const part of text.split(',').map((s) => s.trim()).filter(Boolean)) {
+    const m = /^(\d+)(?:\s*-\s*(\d+))?$/.exec(part);
+    if (!m) throw new InvalidArgumentError(`"${part}" is not a run number or range like 5-9`);
+    const a = Number(m[1]);
+    const b = m[2] !== undefined ? Number(m[2]) : a;
+    if (b < a) throw new InvalidArgumentError(`range "${part}" runs backwards`);
+    if (b - a > 100000) throw new InvalidArgumentError(`range "${part}" is too long`);
+    for (let r = a; r <= b; r++) out.add(r);
+  }
+  if (!out.size) throw new InvalidArgumentError('no run numbers given');
+  return [...out].sort((x, y) => x - y);
+}
+
+/** Collects repeated `--set key=value` into a settings patch, checked against the settings schema. */
+export function parseSetting(text: string, prev: Partial<Settings> = {}): Partial<Settings> {
+  const m = /^([A-Za-z]+)=(.*)$/.exec(text);
+  if (!m) throw new InvalidArgumentError(`"${text}" is not key=value`);
+  const [, key, raw] = m;
+  if (!(key in DEFAULT_SETTINGS)) {
+    throw new InvalidArgumentError(`unknown setting "${key}" (known: ${Object.keys(DEFAULT_SETTINGS).join(', ')})`);
+  }
+  const def = DEFAULT_SETTINGS[key as keyof Settings];
+  let value: unknown = raw;
+  if (typeof def === 'number') {
+    value = raw.trim() === '' ? NaN : Number(raw);
+  } else if (Array.isArray(def)) {
+    value = raw.split(',').map((s) => s.trim()).filter(Boolean);
+  }
+  const patch = { ...prev, [key]: value };
+  const check = settingsPatchSchema.safeParse({ [key]: value });
+  if (!check.success) {
+    const issue = check.error.issues[0];
+    throw new InvalidArgumentError(`setting ${key}=${raw}: ${issue?.message ?? 'invalid value'}`);
+  }
+  return patch as Partial<Settings>;
+}
+
+function parsePositiveInt(text: string): number {
+  if (!/^\d+$/.test(text) || Number(text) < 1) throw new InvalidArgumentError(`"${text}" is not a positive whole number`);
+  return Number(text);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Store and session helpers.
+
+function dbPath(g: GlobalOpts): string {
+  return resolve(g.db ?? process.env.RAKELINE_DB ?? DEFAULT_DB);
+}
+
+function openStore(g: GlobalOpts, create: boolean): Store {
+  const file = dbPath(g);
+  if (!create && !existsSync(file)) {
+    throw new InputError(`no database at ${file} (import a session first with: rakeline ingest <folder>, or pass --db)`);
+  }
+  return Store.open(file);
+}
+
+/** The session named by --session, or the only one in the database. */
+export function pickSession(store: Store, g: GlobalOpts): number {
+  if (g.session !== undefined) {
+    const id = Number(g.session);
+    if (!Number.isInteger(id) || id < 1) throw new UsageError(`--session expects a session id (a positive whole number), got "${g.session}"`);
+    try {
+      return store.getSession(id).id;
+    } catch {
+      throw new InputError(`no session ${id} in ${store.file} (list them with: rakeline sessions)`);
+    }
+  }
+  const all = store.listSessions();
+  if (!all.length) throw new InputError(`no sessions in ${store.file} (import one with: rakeline ingest <folder>)`);
+  if (all.length > 1) {
+    throw new UsageError(`${store.file} holds ${all.length} sessions; choose one with --session <id> (ids: ${all.map((s) => s.id).join(', ')})`);
+  }
+  return all[0].id;
+}
+
+function actorOf(g: GlobalOpts): string {
+  return g.actor ?? process.env.RAKELINE_ACTOR ?? `cli:${process.env.USER ?? process.env.USERNAME ?? 'user'}`;
+}
+
+async function withStore<T>(g: GlobalOpts, create: boolean, fn: (store: Store) => Promise<T> | T): Promise<T> {
+  const store = openStore(g, create);
+  try {
+    return await fn(store);
+  } finally {
+    store.close();
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Output helpers.
+
+function out(text: string): void {
+  process.stdout.write(text.endsWith('\n') ? text : `${text}\n`);
+}
+function note(text: string): void {
+  process.stderr.write(`${text}\n`);
+}
+
+/** A progress bar on stderr, only when stderr is a terminal. */
+function progress(): { onProgress?: (p: ImportProgress) => void; stop(): void } {
+  if (!process.stderr.isTTY) return { stop() {} };
+  const bar = new SingleBar(
+    { stream: process.stderr, format: '{phase} [{bar}] {percentage}% {detail}', hideCursor: true, clearOnComplete: true, etaBuffer: 50 },
+    Presets.shades_classic,
+  );
+  let started = false;
+  let phase = '';
+  return {
+    onProgress(p) {
+      const byBytes = p.phase === 'parse' || p.phase === 'scan';
+      const total = byBytes ? Math.max(1, p.bytesTotal) : Math.max(1, p.runsTotal);
+      const done = byBytes ? p.bytesDone : p.runsDone;
+      const detail = byBytes
+        ? `${(p.bytesDone / 1e6).toFixed(1)}/${(p.bytesTotal / 1e6).toFixed(1)} MB`
+        : `${p.runsDone}/${p.runsTotal} runs`;
+      if (!started || phase !== p.phase) {
+        if (started) bar.stop();
+        bar.start(total, done, { phase: p.phase.padEnd(6), detail });
+        started = true;
+        phase = p.phase;
+      } else {
+        bar.setTotal(total);
+        bar.update(done, { detail });
+      }
+    },
+    stop() {
+      if (started) bar.stop();
+    },
+  };
+}
+
+const SEV = (f: Flag) => (f.severity === 'reject' ? 'REJECT' : 'CHECK');
+/** Flags as words, e.g. "REJECT lift-mismatch; CHECK unsteady". */
+export function flagsText(flags: Flag[]): string {
+  return flags.length ? flags.map((f) => `${SEV(f)} ${f.code}`).join('; ') : 'ok';
+}
+
+const n = (v: number | undefined | null, d: number, w: number) =>
+  (v === undefined || v === null || !Number.isFinite(v) ? '-' : v.toFixed(d)).padStart(w);
+
+/** The run list as a fixed-width text table. */
+export function runsTable(rows: RunRow[]): string {
+  const head = `${'run'.padStart(4)} ${'kind'.padEnd(4)} ${'time'.padEnd(8)} ${'a_geo'.padStart(6)} ${'a_cor'.padStart(6)} ${'q_Pa'.padStart(7)} ${'Re_1e6'.padStart(6)} ${'cl_p'.padStart(7)} ${'cl_mom'.padStart(7)} ${'cd_wake'.padStart(8)} ${'cm_c4'.padStart(7)}  flags`;
+  const lines = rows.map((r) => {
+    const x = r.result;
+    const t = (/T(\d{2}:\d{2}:\d{2})/.exec(r.time)?.[1] ?? r.time).padEnd(8);
+    const status = r.kind === 'zero' ? 'wind-off zero' : x ? flagsText(x.flags) : 'not reduced';
+    const review = r.review ? ` [${r.review.verdict} by ${r.review.actor}]` : '';
+    return `${String(r.run).padStart(4)} ${r.kind.padEnd(4)} ${t} ${n(r.alphaDeg, 2, 6)} ${n(x?.alphaCorrDeg, 2, 6)} ${n(x?.q, 1, 7)} ${n(x ? x.Re / 1e6 : undefined, 3, 6)} ${n(x?.cl, 4, 7)} ${n(x?.clMom, 4, 7)} ${n(x?.cd, 5, 8)} ${n(x?.cmc4, 4, 7)}  ${status}${review}`;
+  });
+  return [head, ...lines].join('\n');
+}
+
+/** One line for a reduced run (used by `reduce` and `follow`). */
+export function resultLine(r: RunResult, prefix = 'run'): string {
+  const c = r.corrected;
+  const f = (v: number, d: number) => (Number.isFinite(v) ? v.toFixed(d) : '-');
+  return `${prefix} ${r.run}: alpha ${f(c.alphaDeg, 2)} deg, q ${f(c.q, 1)} Pa, cl ${f(c.cl, 4)} (momentum ${f(correctedMomentumCl(r), 4)}), cd ${f(c.cd, 5)}, cm ${f(c.cmc4, 4)}, ${flagsText(r.flags)}`;
+}
+
+function writeOut(text: string, file: string | undefined, what: string): void {
+  if (!file) {
+    process.stdout.write(text);
+    return;
+  }
+  writeFileSync(resolve(file), text);
+  note(`${what} written to ${resolve(file)}`);
+}
+
+function dataRunsOf(store: Store, sessionId: number): number[] {
+  return store.listRuns(sessionId).filter((r) => r.kind === 'data').map((r) => r.run);
+}
+
+function reduceAndTell(store: Store, sessionId: number, g: GlobalOpts, opts: { runs?: number[]; settings?: Partial<Settings> }): RunResult[] {
+  const bar = progress();
+  const t0 = performance.now();
+  let res: { results: RunResult[] };
+  try {
+    res = reduceStoredSession(store, sessionId, { ...opts, actor: actorOf(g), onProgress: bar.onProgress });
+  } finally {
+    bar.stop();
+  }
+  const flagged = res.results.filter((r) => r.flags.length);
+  out(`session ${sessionId}: reduced ${res.results.length} run(s) in ${((performance.now() - t0) / 1000).toFixed(2)} s, ${flagged.length} flagged`);
+  for (const r of flagged) out(`  ${resultLine(r)}`);
+  return res.results;
+}
+
+// ---------------------------------------------------------------------------------------------
+// `follow`: watch a session folder; import and reduce each run file as it lands.
+
+async function follow(folder: string, g: GlobalOpts, settleMs: number, reduce: boolean): Promise<void> {
+  const dir = resolve(folder);
+  if (!existsSync(dir)) throw new InputError(`no folder ${dir}`);
+  const store = openStore(g, true);
+  const actor = actorOf(g);
+  let busy = false;
+  let again = false;
+  let lastError = '';
+  const warnedChanged = new Set<string>();
+
+  const step = async () => {
+    try {
+      const rep = await importSessionFolder(store, dir, { actor });
+      lastError = '';
+      for (const f of rep.changedFiles) {
+        if (!warnedChanged.has(f)) note(`warning: ${f} differs from what session ${rep.sessionId} holds; not merged`);
+        warnedChanged.add(f);
+      }
+      if (!rep.importedRuns.length) return;
+      const rows = store.listRuns(rep.sessionId);
+      const kind = new Map(rows.map((r) => [r.run, r.kind]));
+      for (const run of rep.importedRuns) if (kind.get(run) === 'zero') out(`run ${run}: wind-off zero stored`);
+      if (!reduce) {
+        for (const run of rep.importedRuns) if (kind.get(run) === 'data') out(`run ${run}: stored (not reduced)`);
+        return;
+      }
+      const todo = runsAffectedBy(rows, rep.importedRuns);
+      if (!todo.length) return;
+      const { results } = reduceStoredSession(store, rep.sessionId, { runs: todo, actor });
+      const freshSet = new Set(rep.importedRuns);
+      for (const r of results) out(resultLine(r, freshSet.has(r.run) ? 'run' : 'updated run'));
+    } catch (e) {
+      const msg = e instanceof Error ? e.message : String(e);
+      // A half-written or not-yet-complete session is normal while acquisition runs: say it once.
+      if (msg !== lastError) note(`${isLogError(e) ? 'waiting for valid input' : 'error'}: ${msg}`);
+      lastError = msg;
+    }
+  };
+  const cycle = async () => {
+    if (busy) {
+      again = true;
+      return;
+    }
+    busy = true;
+    try {
+      do {
+        again = false;
+        await step();
+      } while (again);
+    } finally {
+      busy = false;
+    }
+  };
+
+  await cycle();
+  const watcher = watch(dir, {
+    ignoreInitial: true,
+    depth: 3,
+    // hidden files, partial downloads and databases inside the folder are not session files
+    ignored: (p: string) => /(^|[\\/])\.|\.(sqlite|sqlite-wal|sqlite-shm|tmp|part)$/.test(relative(dir, p)),
+    awaitWriteFinish: { stabilityThreshold: settleMs, pollInterval: Math.max(20, Math.min(100, settleMs / 4)) },
+  });
+  watcher.on('add', () => void cycle());
+  watcher.on('change', () => void cycle());
+  watcher.on('error', (e) => note(`watch error: ${e instanceof Error ? e.message : String(e)}`));
+  await new Promise<void>((res) => watcher.on('ready', () => res()));
+  note(`watching ${dir} (Ctrl-C to stop)`);
+  await new Promise<void>((res) => {
+    const stop = () => res();
+    process.once('SIGINT', stop);
+    process.once('SIGTERM', stop);
+  });
+  await watcher.close();
+  while (busy) await new Promise((r) => setTimeout(r, 20));
+  store.close();
+  note('stopped');
+}
+
+// ---------------------------------------------------------------------------------------------
+// The program.
+
+export function buildProgram(): Command {
+  const program = new Command();
+  program
+    .name('rakeline')
+    .description('Reduce two-dimensional airfoil section tests: import session folders, reduce runs, review, print and export.')
+    .version(pkg.version, '-V, --version', 'print the program version')
+    .exitOverride()
+    .showHelpAfterError('(add --help for usage)')
+    .configureHelp({ subcommandTerm: (cmd) => `${cmd.name()} ${cmd.usage()}`.trim() })
+    .option('--db <file>', `SQLite database file (default: ./${DEFAULT_DB} in the current directory, or $RAKELINE_DB)`)
+    .option('--session <id>', 'session id, needed when the database holds several sessions')
+    .option('--actor <name>', 'name recorded in the audit trail (default: cli:$USER, or $RAKELINE_ACTOR)')
+    .addHelpText('after', `
+Exit codes: 0 ok, 1 bad input (the message names file, line and channel), 2 usage error.
+Examples:
+  rakeline ingest ./2026-11-18
+  rakeline runs --format csv > runs.csv
+  rakeline reduce --runs 3,5-9 --set liftTolAbs=0.03 --set mcDraws=200
+  rakeline tap C17 --bad --note "tube pinched"
+  rakeline sheet --out day.html --paper Letter
+  rakeline follow ./live-session`);
+
+  const g = () => program.opts<GlobalOpts>();
+
+  program
+    .command('sessions')
+    .description('list the sessions in the database')
+    .addOption(new Option('--format <format>', 'output format').choices(['table', 'json']).default('table'))
+    .action(async (o: { format: string }) => {
+      await withStore(g(), false, (store) => {
+        const all = store.listSessions();
+        if (o.format === 'json') return out(JSON.stringify(all, null, 2));
+        if (!all.length) return out('no sessions');
+        out(`${'id'.padStart(3)}  ${'date'.padEnd(10)}  ${'runs'.padStart(4)}  ${'data'.padStart(4)}  ${'flag'.padStart(4)}  title / model / facility`);
+        for (const s of all) {
+          out(`${String(s.id).padStart(3)}  ${s.date.padEnd(10)}  ${String(s.runCount).padStart(4)}  ${String(s.dataRunCount).padStart(4)}  ${String(s.flaggedCount).padStart(4)}  ${s.title} / ${s.model} / ${s.facility}`);
+        }
+      });
+    });
+
+  program
+    .command('ingest')
+    .description('import a session folder (setup.json, runs.csv, run files); re-importing unchanged files does nothing')
+    .argument('<folder>', 'session folder')
+    .option('--no-reduce', 'store the runs without reducing them')
+    .action(async (folder: string, o: { reduce: boolean }) => {
+      const dir = resolve(folder);
+      if (!existsSync(dir)) throw new InputError(`no folder ${dir}`);
+      await withStore(g(), true, async (store) => {
+        const bar = progress();
+        const t0 = performance.now();
+        let rep;
+        try {
+          rep = await importSessionFolder(store, dir, { actor: actorOf(g()), onProgress: bar.onProgress });
+        } finally {
+          bar.stop();
+        }
+        out(`session ${rep.sessionId} (${rep.created ? 'new' : 'existing'}): ${rep.importedRuns.length} run(s) imported, ${rep.changedFiles.length} changed file(s), ${rep.unchangedFiles.length} unchanged, ${rep.skippedRuns.length} skipped in ${((performance.now() - t0) / 1000).toFixed(2)} s`);
+        if (o.reduce && rep.importedRuns.length) reduceAndTell(store, rep.sessionId, g(), {});
+        if (rep.changedFiles.length) {
+          throw new InputError(`${rep.changedFiles.length} file(s) differ from what session ${rep.sessionId} holds and were not merged: ${rep.changedFiles.join(', ')} (the stored data are kept; import a changed session from a new folder)`);
+        }
+      });
+    });
+
+  program
+    .command('reduce')
+    .description('reduce all data runs of the session, or the listed ones, and store the results (history kept)')
+    .option('--runs <list>', 'runs to reduce, e.g. 3,5-9', parseRunList)
+    .option('--set <key=value>', 'reduction setting for this reduction, repeatable (e.g. liftTolAbs=0.03, mcDraws=200, badTaps=C3,C4)', parseSetting)
+    .option('--save', 'keep the --set values as the session settings (audited)')
+    .action(async (o: { runs?: number[]; set?: Partial<Settings>; save?: boolean }) => {
+      await withStore(g(), false, (store) => {
+        const sid = pickSession(store, g());
+        let settings = o.set;
+        if (o.save && settings) {
+          store.updateSettings(sid, settings, actorOf(g()), 'rakeline reduce --save');
+          settings = undefined;
+        }
+        if (o.runs) {
+          const known = new Set(store.listRuns(sid).map((r) => r.run));
+          const missing = o.runs.filter((r) => !known.has(r));
+          if (missing.length) throw new InputError(`session ${sid} has no run(s) ${missing.join(', ')}`);
+        }
+        reduceAndTell(store, sid, g(), { runs: o.runs, settings });
+      });
+    });
+
+  program
+    .command('tap')
+    .description('mark a surface tap bad (dropped and bridged) or good again, then re-reduce every data run')
+    .usage('[session] <tapId> --bad|--good [options]')
+    .argument('<ids...>', 'the tap id, optionally preceded by the session id (else --session, or the only session)')
+    .option('--bad', 'mark the tap bad')
+    .option('--good', 'mark the tap good again')
+    .option('--note <text>', 'why (kept in the audit trail)')
+    .option('--no-reduce', 'do not re-reduce')
+    .action(async (ids: string[], o: { bad?: boolean; good?: boolean; note?: string; reduce: boolean }) => {
+      if (ids.length > 2) throw new UsageError(`tap: expected [session] <tapId>, got ${ids.length} arguments`);
+      const [first, second] = ids;
+      if (!!o.bad === !!o.good) throw new UsageError('tap: give exactly one of --bad or --good');
+      const opts: GlobalOpts = { ...g() };
+      let tapId = first;
+      if (second !== undefined) {
+        if (opts.session !== undefined && opts.session !== first) throw new UsageError(`tap: session ${first} and --session ${opts.session} disagree`);
+        opts.session = first;
+        tapId = second;
+      }
+      await withStore(opts, false, (store) => {
+        const sid = pickSession(store, opts);
+        const setup = store.getSetup(sid);
+        if (!setup.taps.some((t) => t.id === tapId)) {
+          throw new InputError(`session ${sid} has no tap "${tapId}" (taps: ${setup.taps.slice(0, 12).map((t) => t.id).join(', ')}${setup.taps.length > 12 ? ', …' : ''})`);
+        }
+        const s = store.setTapBad(sid, tapId, !!o.bad, actorOf(opts), o.note);
+        out(`session ${sid}: tap ${tapId} marked ${o.bad ? 'bad' : 'good'}; taps marked bad: ${s.badTaps.length ? s.badTaps.join(', ') : 'none'}`);
+        if (o.reduce) reduceAndTell(store, sid, opts, { runs: dataRunsOf(store, sid) });
+      });
+    });
+
+  program
+    .command('review')
+    .description('record a reviewer decision on a run (audited)')
+    .argument('<run>', 'run number', parsePositiveInt)
+    .option('--accept', 'accept the run')
+    .option('--reject', 'reject the run')
+    .option('--clear', 'remove the decision')
+    .option('--note <text>', 'comment', '')
+    .action(async (run: number, o: { accept?: boolean; reject?: boolean; clear?: boolean; note: string }) => {
+      const picked = [o.accept, o.reject, o.clear].filter(Boolean).length;
+      if (picked !== 1) throw new UsageError('review: give exactly one of --accept, --reject or --clear');
+      await withStore(g(), false, (store) => {
+        const sid = pickSession(store, g());
+        if (!store.listRuns(sid).some((r) => r.run === run)) throw new InputError(`session ${sid} has no run ${run}`);
+        store.setReview(sid, run, o.accept ? 'accepted' : o.reject ? 'rejected' : null, o.note, actorOf(g()));
+        out(`session ${sid}: run ${run} ${o.accept ? 'accepted' : o.reject ? 'rejected' : 'decision cleared'}`);
+      });
+    });
+
+  program
+    .command('runs')
+    .description('list the runs with their latest coefficients and flags')
+    .addOption(new Option('--format <format>', 'output format').choices(['table', 'csv', 'json']).default('table'))
+    .option('--flagged', 'only runs with flags')
+    .action(async (o: { format: string; flagged?: boolean }) => {
+      await withStore(g(), false, (store) => {
+        const sid = pickSession(store, g());
+        let rows = store.listRuns(sid);
+        if (o.flagged) rows = rows.filter((r) => r.result && r.result.flags.length);
+        if (o.format === 'json') return out(JSON.stringify(rows, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2));
+        if (o.format === 'csv') return void process.stdout.write(exportResultsCsv(rows, store.getSetup(sid), store.latestResults(sid)));
+        out(runsTable(rows));
+      });
+    });
+
+  program
+    .command('settings')
+    .description('show the session reduction settings (change them with reduce --set … --save)')
+    .action(async () => {
+      await withStore(g(), false, (store) => out(JSON.stringify(store.getSettings(pickSession(store, g())), null, 2)));
+    });
+
+  program
+    .command('export')
+    .description('export the results: csv (one row per run) or json (everything, with the audit trail)')
+    .addOption(new Option('--format <format>', 'file format').choices(['csv', 'json']).default('csv'))
+    .option('--out <file>', 'output file (default: standard output)')
+    .action(async (o: { format: string; out?: string }) => {
+      await withStore(g(), false, (store) => {
+        const sid = pickSession(store, g());
+        const text = o.format === 'json'
+          ? exportResultsJson(store, sid)
+          : exportResultsCsv(store.listRuns(sid), store.getSetup(sid), store.latestResults(sid));
+        writeOut(text, o.out, `${o.format.toUpperCase()} export`);
+      });
+    });
+
+  program
+    .command('sheet')
+    .description('write the printable test-day summary sheet (self-contained HTML; print it or save as PDF)')
+    .option('--out <file>', 'output file (default: standard output)')
+    .addOption(new Option('--paper <size>', 'paper size').choices(['A4', 'Letter']).default('A4'))
+    .action(async (o: { out?: string; paper: 'A4' | 'Letter' }) => {
+      await withStore(g(), false, (store) => {
+        const sid = pickSession(store, g());
+        const runs = store.listRuns(sid);
+        const html = daySheetHtml({
+          session: store.getSession(sid),
+          setup: store.getSetup(sid),
+          runs,
+          summary: sessionSummary(store, sid),
+          paper: o.paper,
+          generatedAt: new Date().toISOString(),
+          results: store.latestResults(sid),
+          settings: store.getSettings(sid),
+          appVersion: pkg.version,
+        });
+        writeOut(html, o.out, 'day sheet');
+      });
+    });
+
+  program
+    .command('follow')
+    .description('watch a session folder: import and reduce each run file as it lands, one line per run (Ctrl-C stops)')
+    .argument('<folder>', 'session folder being written by the acquisition')
+    .option('--settle <ms>', 'wait until a file has not changed for this long', parsePositiveInt, 300)
+    .option('--no-reduce', 'store the runs without reducing them')
+    .action(async (folder: string, o: { settle: number; reduce: boolean }) => {
+      await follow(folder, g(), o.settle, o.reduce);
+    });
+
+  return program;
+}
+
+/** Run the command line; resolves to the exit code. */
+export async function main(argv: string[] = process.argv): Promise<number> {
+  // `rakeline runs | head`: a closed pipe ends the output quietly
+  process.stdout.on('error', (e: NodeJS.ErrnoException) => {
+    if (e.code === 'EPIPE') process.exit(0);
+    throw e;
+  });
+  const program = buildProgram();
+  try {
+    await program.parseAsync(argv);
+    return 0;
+  } catch (e) {
+    if (e instanceof CommanderError) return e.exitCode === 0 ? 0 : 2; // commander printed the message
+    if (e instanceof UsageError) {
+      note(`rakeline: ${e.message}`);
+      return 2;
+    }
+    if (isLogError(e)) {
+      note(`rakeline: input error: ${e.message}`);
+      return 1;
+    }
+    const msg = e instanceof Error ? e.message : String(e);
+    note(`rakeline: ${msg}`);
+    if (process.env.RAKELINE_DEBUG && e instanceof Error && e.stack) note(e.stack);
+    return 1;
+  }
+}
+
+if (process.argv[1] && import.meta.url === pathToFileURL(resolve(process.argv[1])).href) {
+  void main().then((code) => {
+    process.exitCode = code;
+  });
+}

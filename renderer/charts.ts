@@ -1,0 +1,308 @@
+// chart.js configurations of every plot, as pure functions of the results (tested without a
+// canvas). Conventions: Cp axes are inverted (negative up), as aerodynamicists plot them;
+// animation is off; every series differs by marker shape or line style as well as colour.
+import type { ChartData, ChartOptions, ChartEvent, ActiveElement, Chart, PointStyle } from 'chart.js';
+import type { PolarPoint, RunResult, SessionStats, TapCp } from '../app/types';
+import { OKABE_ITO, SERIES } from './palette';
+import { fix } from './format';
+
+export interface XY { x: number; y: number; id?: string; run?: number }
+export type Pts = (XY | null)[];
+export interface PlotConfig { data: ChartData<'scatter', Pts>; options: ChartOptions<'scatter'> }
+
+const FONT = { family: 'system-ui, "Segoe UI", Roboto, sans-serif', size: 12 };
+
+function base(xTitle: string, yTitle: string, opts: { reverseY?: boolean; xMin?: number; xMax?: number } = {}): ChartOptions<'scatter'> {
+  return {
+    animation: false,
+    responsive: true,
+    maintainAspectRatio: false,
+    interaction: { mode: 'nearest', intersect: true },
+    scales: {
+      x: {
+        type: 'linear',
+        min: opts.xMin,
+        max: opts.xMax,
+        title: { display: true, text: xTitle, font: FONT },
+        grid: { color: '#e3e6ea' },
+        ticks: { font: FONT },
+      },
+      y: {
+        type: 'linear',
+        reverse: opts.reverseY ?? false,
+        title: { display: true, text: yTitle, font: FONT },
+        grid: { color: '#e3e6ea' },
+        ticks: { font: FONT },
+      },
+    },
+    plugins: {
+      legend: { position: 'bottom', labels: { usePointStyle: true, boxWidth: 28, font: FONT } },
+      tooltip: { enabled: true },
+    },
+  };
+}
+
+function points(
+  label: string, data: Pts, color: string, style: PointStyle, extra: Record<string, unknown> = {},
+): ChartData<'scatter', Pts>['datasets'][number] {
+  return {
+    label,
+    data,
+    borderColor: color,
+    backgroundColor: color,
+    pointStyle: style,
+    pointRadius: 4,
+    pointHoverRadius: 6,
+    showLine: false,
+    ...extra,
+  } as ChartData<'scatter', Pts>['datasets'][number];
+}
+
+function line(label: string, data: Pts, color: string, dash: number[] = [], extra: Record<string, unknown> = {}): ChartData<'scatter', Pts>['datasets'][number] {
+  return {
+    label,
+    data,
+    borderColor: color,
+    backgroundColor: color,
+    showLine: true,
+    pointRadius: 0,
+    pointHitRadius: 0,
+    borderWidth: 1.5,
+    borderDash: dash,
+    spanGaps: false,
+    ...extra,
+  } as ChartData<'scatter', Pts>['datasets'][number];
+}
+
+// ---------------------------------------------------------------------------------------------
+// Run inspector
+
+/** Taps counted as bad on the chart: flagged by the core, or bridged in the row integration. */
+export function badTapIds(result: RunResult): Set<string> {
+  const s = new Set<string>(result.surface.bridged);
+  for (const r of result.rows) for (const id of r.bridged) s.add(id);
+  for (const t of result.taps) if (t.bad) s.add(t.id);
+  return s;
+}
+
+export function rowsOf(result: RunResult): string[] {
+  const order = result.rows.map((r) => r.row);
+  for (const t of result.taps) if (!order.includes(t.row)) order.push(t.row);
+  return order;
+}
+
+/** Cp(x/c) of one spanwise row: upper ●, lower ▲, bad ✕, inviscid panel solution as lines. */
+export function cpChartConfig(result: RunResult, opts: { row?: string; onTap?: (tapId: string) => void } = {}): PlotConfig {
+  const row = opts.row ?? rowsOf(result)[0];
+  const bad = badTapIds(result);
+  const taps = result.taps.filter((t) => t.row === row).sort((a, b) => a.x - b.x);
+  const pt = (t: TapCp): XY => ({ x: t.x, y: t.cp, id: t.id });
+  const good = (s: 'upper' | 'lower') => taps.filter((t) => t.surface === s && !bad.has(t.id) && Number.isFinite(t.cp)).map(pt);
+  const badPts = taps.filter((t) => bad.has(t.id) && Number.isFinite(t.cp)).map(pt);
+  const inv = (s: 'upper' | 'lower') => result.inviscid.filter((p) => p.surface === s).sort((a, b) => a.x - b.x).map((p) => ({ x: p.x, y: p.cp }));
+
+  const options = base('x/c', 'Cp (negative up)', { reverseY: true, xMin: 0, xMax: 1 });
+  options.plugins!.tooltip = {
+    callbacks: {
+      label: (ctx) => {
+        const p = ctx.raw as XY;
+        return p.id ? `${p.id}: x/c ${fix(p.x, 3)}, Cp ${fix(p.y, 3)}${bad.has(p.id) ? ' (bad)' : ''}` : `panel: x/c ${fix(p.x, 3)}, Cp ${fix(p.y, 3)}`;
+      },
+    },
+  };
+  if (opts.onTap) {
+    const onTap = opts.onTap;
+    options.onClick = (_e: ChartEvent, els: ActiveElement[], chart: Chart) => {
+      const hit = els.find((el) => el.datasetIndex <= 2);
+      if (!hit) return;
+      const p = chart.data.datasets[hit.datasetIndex].data[hit.index] as XY | null;
+      if (p?.id) onTap(p.id);
+    };
+    options.onHover = (e: ChartEvent, els: ActiveElement[]) => {
+      const t = e.native?.target as HTMLElement | undefined;
+      if (t) t.style.cursor = els.some((el) => el.datasetIndex <= 2) ? 'pointer' : 'default';
+    };
+  }
+  return {
+    data: {
+      datasets: [
+        points(SERIES.upper.label, good('upper'), SERIES.upper.color, SERIES.upper.marker),
+        points(SERIES.lower.label, good('lower'), SERIES.lower.color, SERIES.lower.marker, { pointRadius: 5 }),
+        points(SERIES.bad.label, badPts, SERIES.bad.color, SERIES.bad.marker, { pointRadius: 7, borderWidth: 2 }),
+        line(`${SERIES.inviscid.label}, upper`, inv('upper'), SERIES.inviscid.color),
+        line(`${SERIES.inviscid.label}, lower`, inv('lower'), SERIES.inviscid.color, [6, 4]),
+      ],
+    },
+    options,
+  };
+}
+
+/** Wake profile: Cpt = (H_w − p∞)/q∞ against rake height y (mm). */
+export function wakeChartConfig(result: RunResult): PlotConfig | null {
+  const w = result.wake;
+  if (!w) return null;
+  const pts = [...w.profile].sort((a, b) => a.y - b.y).map((p) => ({ x: p.cpt, y: p.y * 1000 }));
+  const ys = pts.map((p) => p.y);
+  const lo = Math.min(...ys);
+  const hi = Math.max(...ys);
+  const options = base('Cpt = (H_w − p∞)/q∞', 'rake height y [mm]');
+  return {
+    data: {
+      datasets: [
+        points(SERIES.wake.label, pts, SERIES.wake.color, 'circle', { showLine: true, borderWidth: 1.5, pointRadius: 3 }),
+        line('free stream Cpt = 1', [{ x: 1, y: lo }, { x: 1, y: hi }], OKABE_ITO.black, [4, 4]),
+        line('wake centre', [{ x: Math.min(...pts.map((p) => p.x)), y: w.centre * 1000 }, { x: 1, y: w.centre * 1000 }], OKABE_ITO.orange, [2, 3]),
+      ],
+    },
+    options,
+  };
+}
+
+/** Floor and ceiling Cp signatures against x (m from the quarter chord). */
+export function wallChartConfig(result: RunResult): PlotConfig | null {
+  const w = result.walls;
+  if (!w) return null;
+  const options = base('x from model c/4 [m] (downstream +)', 'Cp (negative up)', { reverseY: true });
+  const pts = (a: { x: number; cp: number }[]) => [...a].sort((p, q) => p.x - q.x).map((p) => ({ x: p.x, y: p.cp }));
+  return {
+    data: {
+      datasets: [
+        points(SERIES.floor.label, pts(w.floor), SERIES.floor.color, SERIES.floor.marker, { showLine: true, borderWidth: 1 }),
+        points(SERIES.ceiling.label, pts(w.ceiling), SERIES.ceiling.color, SERIES.ceiling.marker, { showLine: true, borderWidth: 1, borderDash: [5, 3] }),
+      ],
+    },
+    options,
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Polars
+
+export type Sweep = 'up' | 'down';
+
+/** Sweep direction of each point (time order): the sign of the α step from the previous point;
+ *  a repeat at the same α keeps the previous direction; the first point takes the next step's. */
+export function sweepDirections(pts: readonly PolarPoint[]): Sweep[] {
+  const dirs: (Sweep | null)[] = pts.map((p, i) => {
+    if (i === 0) return null;
+    const d = p.alphaDeg - pts[i - 1].alphaDeg;
+    return Math.abs(d) < 1e-9 ? null : d > 0 ? 'up' : 'down';
+  });
+  const firstKnown = dirs.find((d) => d !== null) ?? 'up';
+  let prev: Sweep = firstKnown;
+  return dirs.map((d) => (prev = d ?? prev));
+}
+
+/** Series of one sweep direction in time order, broken (null) where the other sweep runs. */
+function sweepSeries(pts: readonly PolarPoint[], dirs: Sweep[], want: Sweep, xy: (p: PolarPoint) => XY | null): Pts {
+  const out: Pts = [];
+  pts.forEach((p, i) => {
+    if (dirs[i] !== want) {
+      if (out.length && out[out.length - 1] !== null) out.push(null);
+      return;
+    }
+    const v = xy(p);
+    if (v && Number.isFinite(v.x) && Number.isFinite(v.y)) out.push(v);
+  });
+  return out;
+}
+
+const UP = { dash: [] as number[], marker: 'circle' as PointStyle, word: 'up-sweep (α rising) — solid' };
+const DOWN = { dash: [6, 4], marker: 'triangle' as PointStyle, word: 'down-sweep (α falling) — dashed' };
+
+function sweepPair(
+  name: string, pts: readonly PolarPoint[], dirs: Sweep[], color: string, xy: (p: PolarPoint) => XY | null,
+  markers: [PointStyle, PointStyle] = [UP.marker, DOWN.marker],
+) {
+  return [
+    points(`${name}, ${UP.word}`, sweepSeries(pts, dirs, 'up', xy), color, markers[0], { showLine: true, borderWidth: 1.5, borderDash: UP.dash, spanGaps: false }),
+    points(`${name}, ${DOWN.word}`, sweepSeries(pts, dirs, 'down', xy), color, markers[1], { showLine: true, borderWidth: 1.5, borderDash: DOWN.dash, spanGaps: false, pointBackgroundColor: '#ffffff' }),
+  ];
+}
+
+function flaggedSeries(pts: readonly PolarPoint[], xy: (p: PolarPoint) => XY | null) {
+  const data = pts.filter((p) => p.flagged).map(xy).filter((v): v is XY => !!v && Number.isFinite(v.x) && Number.isFinite(v.y));
+  return points('flagged run ✕ (see Day log)', data, OKABE_ITO.black, 'crossRot', { pointRadius: 8, borderWidth: 1.5 });
+}
+
+function polarTooltip(options: ChartOptions<'scatter'>, xName: string, yName: string, xd: number, yd: number): void {
+  options.plugins!.tooltip = {
+    callbacks: {
+      label: (ctx) => {
+        const p = ctx.raw as XY;
+        return `${p.run !== undefined ? `run ${p.run}: ` : ''}${xName} ${fix(p.x, xd)}, ${yName} ${fix(p.y, yd)}`;
+      },
+    },
+  };
+}
+
+/** cl(α): both lift methods on the same axes, sweeps by line style, lift-curve fit dashed grey. */
+export function clAlphaConfig(pts: readonly PolarPoint[], stats: SessionStats | null): PlotConfig {
+  const dirs = sweepDirections(pts);
+  const options = base('α corrected [°]', 'cl');
+  polarTooltip(options, 'α', 'cl', 2, 4);
+  const datasets = [
+    ...sweepPair(`${SERIES.pressure.label}`, pts, dirs, SERIES.pressure.color, (p) => ({ x: p.alphaDeg, y: p.cl, run: p.run })),
+    ...sweepPair(`${SERIES.momentum.label}`, pts, dirs, SERIES.momentum.color, (p) => ({ x: p.alphaDeg, y: p.clMom, run: p.run }), ['rect', 'rectRot']),
+    flaggedSeries(pts, (p) => ({ x: p.alphaDeg, y: p.cl, run: p.run })),
+  ];
+  if (stats && Number.isFinite(stats.liftSlopePerDeg)) {
+    const [a0, a1] = stats.linearRange;
+    const f = (a: number) => stats.liftSlopePerDeg * (a - stats.alphaL0Deg);
+    datasets.push(line(`lift-curve fit ${fix(a0, 1)}…${fix(a1, 1)}° (dotted)`, [{ x: stats.alphaL0Deg, y: 0 }, { x: a1, y: f(a1) }], '#7a7a7a', [2, 3]));
+  }
+  return { data: { datasets }, options };
+}
+
+/** Drag polar: cl against cd (wake), sweeps distinguished; pressure drag in light squares. */
+export function dragPolarConfig(pts: readonly PolarPoint[]): PlotConfig {
+  const dirs = sweepDirections(pts);
+  const options = base('cd', 'cl');
+  polarTooltip(options, 'cd', 'cl', 5, 4);
+  return {
+    data: {
+      datasets: [
+        ...sweepPair('cd from the wake rake', pts, dirs, OKABE_ITO.blue, (p) => ({ x: p.cd, y: p.cl, run: p.run })),
+        points('cd from surface pressures ■', pts.map((p) => ({ x: p.cdp, y: p.cl, run: p.run })).filter((p) => Number.isFinite(p.x) && Number.isFinite(p.y)), OKABE_ITO.skyBlue, 'rect', { pointRadius: 3 }),
+        flaggedSeries(pts, (p) => ({ x: p.cd, y: p.cl, run: p.run })),
+      ],
+    },
+    options,
+  };
+}
+
+/** cm c/4 (α). */
+export function cmAlphaConfig(pts: readonly PolarPoint[]): PlotConfig {
+  const dirs = sweepDirections(pts);
+  const options = base('α corrected [°]', 'cm c/4');
+  polarTooltip(options, 'α', 'cm', 2, 4);
+  return {
+    data: {
+      datasets: [
+        ...sweepPair('cm about c/4', pts, dirs, OKABE_ITO.bluishGreen, (p) => ({ x: p.alphaDeg, y: p.cmc4, run: p.run })),
+        flaggedSeries(pts, (p) => ({ x: p.alphaDeg, y: p.cmc4, run: p.run })),
+      ],
+    },
+    options,
+  };
+}
+
+const SPAN_COLORS = [OKABE_ITO.blue, OKABE_ITO.vermillion, OKABE_ITO.bluishGreen, OKABE_ITO.reddishPurple, OKABE_ITO.orange, OKABE_ITO.skyBlue, OKABE_ITO.black];
+const SPAN_MARKERS: PointStyle[] = ['circle', 'triangle', 'rect', 'rectRot', 'star', 'crossRot', 'cross'];
+
+/** Span loading: section cl of each row against its spanwise station. */
+export function spanConfig(span: { run: number; alphaDeg: number; z: number[]; cl: number[] }[]): PlotConfig {
+  const options = base('spanwise station z [m] (from centreline)', 'section cl');
+  polarTooltip(options, 'z', 'cl', 3, 4);
+  return {
+    data: {
+      datasets: span.map((s, i) => points(
+        `run ${s.run}, α ${fix(s.alphaDeg, 1)}°`,
+        s.z.map((z, k) => ({ x: z, y: s.cl[k], run: s.run })).sort((a, b) => a.x - b.x),
+        SPAN_COLORS[i % SPAN_COLORS.length], SPAN_MARKERS[i % SPAN_MARKERS.length],
+        { showLine: true, borderWidth: 1.5 },
+      )),
+    },
+    options,
+  };
+}

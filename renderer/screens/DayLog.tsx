@@ -1,0 +1,125 @@
+// "Day log": the session overview — who, where, what model, the day's conditions, and the run
+// table with flags and reviews. The side panel shows the selected run's flags and the review.
+import { useMemo, useState } from 'react';
+import type { SessionData } from '../session';
+import { RunTable } from '../components/RunTable';
+import { FlagReasons } from '../components/FlagBadge';
+import { ReviewPanel } from '../components/ReviewPanel';
+import { useApi, useStatus, quiet } from '../context';
+import { fix, range, reMillions, when } from '../format';
+import { newTaskId, useTaskProgress } from '../hooks';
+import { ProgressBar } from '../components/ProgressBar';
+
+export interface DayLogProps {
+  data: SessionData;
+  selected: number | null;
+  onSelect(run: number): void;
+  onOpen(run: number): void;
+  reload(): Promise<void>;
+  live: { watching: boolean; folder: string | null; lastRun: number | null };
+}
+
+export function download(text: string, name: string, mime: string): void {
+  const url = URL.createObjectURL(new Blob([text], { type: mime }));
+  const a = document.createElement('a');
+  a.href = url;
+  a.download = name;
+  document.body.appendChild(a);
+  a.click();
+  a.remove();
+  setTimeout(() => URL.revokeObjectURL(url), 1000);
+}
+
+export function DayLog({ data, selected, onSelect, onOpen, reload, live }: DayLogProps) {
+  const api = useApi();
+  const { track, notify } = useStatus();
+  const { session, setup, summary } = data;
+  const [showZeros, setShowZeros] = useState(true);
+  const [flaggedOnly, setFlaggedOnly] = useState(false);
+  const [task, setTask] = useState<string | null>(null);
+  const progress = useTaskProgress(task, false);
+
+  const runs = useMemo(() => data.runs.filter((r) => (showZeros || r.kind === 'data') && (!flaggedOnly || (r.result?.flags.length ?? 0) > 0)), [data.runs, showZeros, flaggedOnly]);
+  const row = data.runs.find((r) => r.run === selected) ?? null;
+  const c = summary?.conditions ?? null;
+  const flaggedCount = data.runs.filter((r) => (r.result?.flags.length ?? 0) > 0).length;
+  const reviewed = data.runs.filter((r) => r.review).length;
+
+  const exportAs = (format: 'csv' | 'json') =>
+    quiet(track(`Exporting ${format.toUpperCase()}`, async () => {
+      const r = await api.call('export.results', { sessionId: session.id, format });
+      download(r.text, r.suggestedName, r.mime);
+      notify('info', `Exported ${r.suggestedName}`);
+    }));
+
+  const reduceAll = () => {
+    const taskId = newTaskId('reduce');
+    setTask(taskId);
+    quiet(track('Re-reducing every run', async () => {
+      try {
+        const r = await api.call('runs.reduce', { sessionId: session.id, taskId });
+        notify('info', `Re-reduced ${r.reduced} runs with the current settings.`);
+        await reload();
+      } finally {
+        setTask(null);
+      }
+    }));
+  };
+
+  return (
+    <div className="daylog">
+      <header className="session-head">
+        <div className="session-title">
+          <h2>{session.title}</h2>
+          <p className="session-sub">
+            <span><b>Facility</b> {setup.facility.name} ({fix(setup.facility.sectionHeight, 2)} m × {fix(setup.facility.sectionWidth, 2)} m)</span>
+            <span><b>Model</b> {setup.model.name}, c = {fix(setup.model.chord, 3)} m, b = {fix(setup.model.span, 2)} m</span>
+            <span><b>Date</b> {session.date}</span>
+            <span><b>Operators</b> {setup.session.operators.join(', ') || '–'}</span>
+          </p>
+        </div>
+        <dl className="conditions">
+          <div><dt>q</dt><dd>{range(c?.qMin, c?.qMax, 0, 'Pa')}</dd></div>
+          <div><dt>Re</dt><dd>{c ? `${reMillions(c.ReMin)} … ${reMillions(c.ReMax)} ×10⁶` : '–'}</dd></div>
+          <div><dt>α</dt><dd>{range(c?.alphaMin, c?.alphaMax, 1, '°')}</dd></div>
+          <div><dt>T</dt><dd>{range(c?.tempMin, c?.tempMax, 1, '°C')}</dd></div>
+          <div><dt>p<sub>baro</sub></dt><dd>{c ? range(c.baroMin / 100, c.baroMax / 100, 1, 'hPa') : '–'}</dd></div>
+          <div><dt>Runs</dt><dd>{session.runCount} ({session.dataRunCount} data)</dd></div>
+          <div><dt>Flagged</dt><dd className={flaggedCount ? 'warn-text' : undefined}>{flaggedCount}</dd></div>
+          <div><dt>Reviewed</dt><dd>{reviewed}</dd></div>
+        </dl>
+      </header>
+
+      <div className="toolbar" role="toolbar" aria-label="Run table tools">
+        <label><input type="checkbox" checked={showZeros} onChange={(e) => setShowZeros(e.target.checked)} /> wind-off zeros</label>
+        <label><input type="checkbox" checked={flaggedOnly} onChange={(e) => setFlaggedOnly(e.target.checked)} /> flagged only</label>
+        <span className="toolbar-gap" />
+        {live.watching ? <span className="live-chip" title={live.folder ?? undefined}><span aria-hidden="true">●</span> Live: watching {live.folder}{live.lastRun !== null ? `, last run ${live.lastRun}` : ''}</span> : null}
+        <span className="hint">↑/↓ select · Enter opens · click a header to sort</span>
+        <button type="button" onClick={reduceAll}>Re-reduce all</button>
+        <button type="button" onClick={() => exportAs('csv')}>Export CSV</button>
+        <button type="button" onClick={() => exportAs('json')}>Export JSON</button>
+      </div>
+      {task ? <ProgressBar fraction={progress?.fraction ?? null} label={progress?.label ?? 'Starting…'} name="Reduction progress" /> : null}
+
+      <div className="daylog-body">
+        <RunTable runs={runs} selected={selected} onSelect={onSelect} onOpen={onOpen} caption={`Runs of ${session.title}`} />
+        <aside className="side-panel" aria-label="Selected run">
+          {row ? (
+            <>
+              <h3>Run {row.run} <span className="muted">{row.kind === 'data' ? `α ${fix(row.alphaDeg, 2)}°` : 'wind-off zero'}</span></h3>
+              <p className="muted small">{when(row.time)} · {fix(row.temperatureC, 1)} °C · {fix(row.baro / 100, 1)} hPa · RH {fix(row.humidity, 0)} %</p>
+              {row.kind === 'data' ? (
+                <>
+                  {row.result ? <FlagReasons flags={row.result.flags} /> : <p>Not reduced yet.</p>}
+                  <button type="button" className="btn-primary" onClick={() => onOpen(row.run)}>Open in Run inspector ↵</button>
+                  <ReviewPanel row={row} onSaved={() => void reload()} />
+                </>
+              ) : <p>Wind-off zeros are subtracted from the data runs around them.</p>}
+            </>
+          ) : <p className="muted">Select a run (click or ↑/↓) to see its flags and review it.</p>}
+        </aside>
+      </div>
+    </div>
+  );
+}

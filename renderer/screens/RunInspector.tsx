@@ -1,0 +1,333 @@
+// "Run inspector": one data run in full. Cp(x/c) with the inviscid panel overlay, wake profile,
+// floor/ceiling signatures, coefficients (uncorrected | corrected | 95 % interval), circulation by
+// each method, flags in words, and tap overrides: click a tap on the chart or use the tap list to
+// mark it bad or restore it — the run is re-reduced at once in the worker, the change is shown,
+// then the override and the new result are stored through the contract.
+import { useCallback, useEffect, useMemo, useState } from 'react';
+import type { RunRowLike, Results } from '../../main/contract';
+import type { Interval, RunResult, TapCp } from '../../app/types';
+import { correctedMomentumCl } from '../../app/reduce';
+import { liftTolerance } from '../../app/crosscheck';
+import type { SessionData } from '../session';
+import { useApi, useStatus, quiet } from '../context';
+import { reduceInWorker } from '../workerClient';
+import { badTapIds, cpChartConfig, rowsOf, wakeChartConfig, wallChartConfig } from '../charts';
+import { Plot } from '../components/Plot';
+import { FlagReasons } from '../components/FlagBadge';
+import { ReviewPanel } from '../components/ReviewPanel';
+import { fix, isNum, reMillions, sig, when } from '../format';
+
+export interface TapChange {
+  tapId: string;
+  bad: boolean;
+  before: { cl: number; cd: number; cmc4: number; clMom: number };
+  after: { cl: number; cd: number; cmc4: number; clMom: number };
+  stored: boolean;
+}
+
+const pick = (r: RunResult) => ({ cl: r.corrected.cl, cd: r.corrected.cd, cmc4: r.corrected.cmc4, clMom: r.clMomentum });
+
+/** "cl 0.812 → 0.806, cd 0.01234 → 0.01240, cm −0.0901 → −0.0898" */
+export function changeText(c: Pick<TapChange, 'before' | 'after'>): string {
+  return [
+    `cl ${fix(c.before.cl, 4)} → ${fix(c.after.cl, 4)}`,
+    `cd ${fix(c.before.cd, 5)} → ${fix(c.after.cd, 5)}`,
+    `cm ${fix(c.before.cmc4, 4)} → ${fix(c.after.cmc4, 4)}`,
+  ].join(', ');
+}
+
+function iv(i: Interval | undefined, d: number): string {
+  return i && isNum(i.lo) && isNum(i.hi) ? `${fix(i.lo, d)} … ${fix(i.hi, d)}` : '–';
+}
+
+export interface RunInspectorProps {
+  data: SessionData;
+  run: number | null;
+  onRun(run: number): void;
+  reload(): Promise<void>;
+}
+
+export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
+  const api = useApi();
+  const { track } = useStatus();
+  const sessionId = data.session.id;
+  const dataRuns = useMemo(() => data.runs.filter((r) => r.kind === 'data'), [data.runs]);
+  const current = run !== null && dataRuns.some((r) => r.run === run) ? run : dataRuns[0]?.run ?? null;
+  const [got, setGot] = useState<Results['runs.get'] | null>(null);
+  const [shown, setShown] = useState<RunResult | null>(null);
+  const [row, setRow] = useState<string | null>(null);
+  const [changes, setChanges] = useState<TapChange[]>([]);
+  const [comment, setComment] = useState('');
+  const [working, setWorking] = useState<string | null>(null);
+
+  const load = useCallback(async () => {
+    if (current === null) return;
+    const r = await api.call('runs.get', { sessionId, run: current });
+    setGot(r);
+    setShown(r.result);
+  }, [api, sessionId, current]);
+
+  useEffect(() => {
+    setGot(null);
+    setShown(null);
+    setChanges([]);
+    if (current !== null && current !== run) onRun(current);
+    quiet(track(`Loading run ${current}`, load));
+  }, [current]); // eslint-disable-line react-hooks/exhaustive-deps
+
+  const result = shown;
+  const rows = result ? rowsOf(result) : [];
+  const rowName = row && rows.includes(row) ? row : rows[0];
+  const marked = new Set(data.settings.badTaps);
+
+  const toggleTap = useCallback((tapId: string) => {
+    if (!result || current === null || working) return;
+    const runNo = current;
+    setWorking(tapId);
+    quiet(track(`Re-reducing run ${runNo}`, async () => {
+      try {
+        const input = await api.call('runs.reductionInput', { sessionId, run: runNo });
+        const set = new Set(input.settings.badTaps);
+        const bad = !set.has(tapId);
+        if (bad) set.add(tapId);
+        else set.delete(tapId);
+        const next = await reduceInWorker(input.setup, input.zeroed, { ...input.settings, badTaps: [...set] });
+        const change: TapChange = { tapId, bad, before: pick(result), after: pick(next), stored: false };
+        setShown(next);
+        setChanges((c) => [change, ...c]);
+        await api.call('taps.setBad', { sessionId, tapId, bad, comment: comment.trim() || undefined });
+        await api.call('runs.saveResults', { sessionId, results: [next as unknown as Record<string, unknown>] });
+        setChanges((c) => c.map((x) => (x === change ? { ...x, stored: true } : x)));
+        await reload();
+        const fresh = await api.call('runs.get', { sessionId, run: runNo });
+        setGot(fresh);
+        if (fresh.result) setShown(fresh.result);
+      } finally {
+        setWorking(null);
+      }
+    }));
+  }, [api, sessionId, current, result, working, comment, reload, track]);
+
+  const cp = useMemo(() => (result ? cpChartConfig(result, { row: rowName, onTap: toggleTap }) : null), [result, rowName, toggleTap]);
+  const wake = useMemo(() => (result ? wakeChartConfig(result) : null), [result]);
+  const walls = useMemo(() => (result ? wallChartConfig(result) : null), [result]);
+
+  if (dataRuns.length === 0) return <p className="empty">This session has no data runs yet.</p>;
+  const idx = dataRuns.findIndex((r) => r.run === current);
+  const rowInfo: RunRowLike | undefined = data.runs.find((r) => r.run === current);
+
+  const nav = (
+    <div className="run-nav">
+      <button type="button" onClick={() => idx > 0 && onRun(dataRuns[idx - 1].run)} disabled={idx <= 0}>◀ Previous</button>
+      <label>
+        Run{' '}
+        <select value={current ?? ''} onChange={(e) => onRun(Number(e.target.value))} aria-label="Run to inspect">
+          {dataRuns.map((r) => (
+            <option key={r.run} value={r.run}>
+              {r.run} · α {fix(r.alphaDeg, 1)}°{r.result?.flags.length ? ` · ${r.result.flags.length} flag${r.result.flags.length > 1 ? 's' : ''}` : ''}
+            </option>
+          ))}
+        </select>
+      </label>
+      <button type="button" onClick={() => idx < dataRuns.length - 1 && onRun(dataRuns[idx + 1].run)} disabled={idx < 0 || idx >= dataRuns.length - 1}>Next ▶</button>
+    </div>
+  );
+  if (!got || !result) {
+    return (
+      <div className="inspector">
+        {nav}
+        <p className="muted">{got && !got.result ? `Run ${current} is not reduced yet.` : `Loading run ${current}…`}</p>
+      </div>
+    );
+  }
+
+  const u = result.uncorrected;
+  const k = result.corrected;
+  const un = result.uncertainty;
+  const bad = badTapIds(result);
+  const rowTaps = result.taps.filter((t) => t.row === rowName).sort((a, b) => (a.surface === b.surface ? a.x - b.x : a.surface === 'upper' ? -1 : 1));
+  const badList = result.taps.filter((t) => bad.has(t.id));
+  const tol = liftTolerance(u.cl, result.settings.liftTolAbs, result.settings.liftTolRel);
+  const dCl = result.clMomentum - u.cl;
+  const w = result.wake;
+  const last = changes[0];
+
+  return (
+    <div className="inspector">
+      <div className="inspector-head">
+        {nav}
+        <h2>Run {current}</h2>
+        <p className="run-facts">
+          <span>α {fix(u.alphaDeg, 2)}° → α<sub>c</sub> {fix(k.alphaDeg, 2)}°</span>
+          <span>q {fix(k.q, 1)} Pa</span>
+          <span>V {fix(k.V, 2)} m/s</span>
+          <span>Re {reMillions(k.Re)}×10⁶</span>
+          <span>M {fix(result.M, 3)}</span>
+          <span>ρ {fix(result.air.rho, 4)} kg/m³</span>
+          <span>{when(rowInfo?.time)}</span>
+          <span className="muted">core {result.coreVersion}</span>
+        </p>
+      </div>
+
+      <section className="flags-box" aria-label="Flags">
+        <h3>Flags</h3>
+        <FlagReasons flags={result.flags} />
+      </section>
+
+      {last ? (
+        <p className="change-line" role="status" aria-live="polite">
+          Tap <b>{last.tapId}</b> {last.bad ? 'marked bad' : 'restored'}: <span className="change-text">{changeText(last)}</span>
+          {last.stored ? <span className="muted"> · stored (audit kept)</span> : <span className="muted"> · storing…</span>}
+          <span className="muted"> · the override applies to the whole session; other runs change when re-reduced (Day log → Re-reduce all).</span>
+        </p>
+      ) : null}
+
+      <div className="inspector-grid">
+        <section className="panel panel-cp" aria-label="Pressure distribution">
+          <div className="panel-head">
+            <h3>Cp along the chord — row {rowName}</h3>
+            {rows.length > 1 ? (
+              <label>Row{' '}
+                <select value={rowName} onChange={(e) => setRow(e.target.value)}>
+                  {rows.map((r) => <option key={r} value={r}>{r}</option>)}
+                </select>
+              </label>
+            ) : null}
+          </div>
+          {cp ? (
+            <Plot config={cp} label={`Pressure coefficient against x/c, run ${current}, row ${rowName}; Cp axis inverted`} height={360}>
+              Cp axis inverted (suction up). Click a tap to mark it bad or restore it; the tap list below does the same.
+              {' '}{working ? <b>Re-reducing with tap {working} changed…</b> : null}
+            </Plot>
+          ) : null}
+        </section>
+
+        <section className="panel panel-coef" aria-label="Coefficients">
+          <h3>Coefficients</h3>
+          <table className="coef">
+            <thead>
+              <tr><th scope="col"></th><th scope="col" className="num">uncorrected</th><th scope="col" className="num">corrected</th><th scope="col" className="num">95 % interval (corr.)</th></tr>
+            </thead>
+            <tbody>
+              <tr><th scope="row">c<sub>l</sub> pressure</th><td className="num">{fix(u.cl, 4)}</td><td className="num">{fix(k.cl, 4)}</td><td className="num">{iv(un.cl, 4)}</td></tr>
+              <tr><th scope="row">c<sub>l</sub> wall momentum</th><td className="num">{fix(result.clMomentum, 4)}</td><td className="num">{fix(correctedMomentumCl(result), 4)}</td><td className="num">{iv(un.clMom, 4)}</td></tr>
+              <tr><th scope="row">c<sub>d</sub> wake</th><td className="num">{fix(u.cd, 5)}</td><td className="num">{fix(k.cd, 5)}</td><td className="num">{iv(un.cd, 5)}</td></tr>
+              <tr><th scope="row">c<sub>d</sub> pressure</th><td className="num">{fix(u.cdp, 5)}</td><td className="num">{fix(k.cdp, 5)}</td><td className="num">{iv(un.cdp, 5)}</td></tr>
+              <tr><th scope="row">c<sub>m c/4</sub></th><td className="num">{fix(u.cmc4, 4)}</td><td className="num">{fix(k.cmc4, 4)}</td><td className="num">{iv(un.cmc4, 4)}</td></tr>
+              <tr><th scope="row">α [°]</th><td className="num">{fix(u.alphaDeg, 3)}</td><td className="num">{fix(k.alphaDeg, 3)}</td><td></td></tr>
+              <tr><th scope="row">q [Pa]</th><td className="num">{fix(u.q, 2)}</td><td className="num">{fix(k.q, 2)}</td><td></td></tr>
+              <tr><th scope="row">V [m/s]</th><td className="num">{fix(u.V, 3)}</td><td className="num">{fix(k.V, 3)}</td><td></td></tr>
+              <tr><th scope="row">Re [×10⁶]</th><td className="num">{reMillions(u.Re)}</td><td className="num">{reMillions(k.Re)}</td><td></td></tr>
+            </tbody>
+          </table>
+          <p className="small muted">
+            Wall correction: {result.correction.method}; σ = {sig(result.correction.sigma, 3)}, ε<sub>sb</sub> = {sig(result.correction.epsSb, 3)}, ε<sub>wb</sub> = {sig(result.correction.epsWb, 3)}.
+            {' '}Intervals: Monte Carlo, {result.settings.mcDraws} draws.
+          </p>
+
+          <h3>Circulation (Kutta–Joukowski)</h3>
+          <table className="coef">
+            <thead><tr><th scope="col">method</th><th scope="col" className="num">Γ [m²/s]</th><th scope="col" className="num">95 % interval</th></tr></thead>
+            <tbody>
+              <tr><th scope="row">surface pressures</th><td className="num">{sig(result.circulation.pressure, 4)}</td><td className="num">{un.gammaPressure ? `${sig(un.gammaPressure.lo, 4)} … ${sig(un.gammaPressure.hi, 4)}` : '–'}</td></tr>
+              <tr><th scope="row">wall momentum</th><td className="num">{sig(result.circulation.momentum, 4)}</td><td className="num">{un.gammaMomentum ? `${sig(un.gammaMomentum.lo, 4)} … ${sig(un.gammaMomentum.hi, 4)}` : '–'}</td></tr>
+              <tr><th scope="row">wall line integral</th><td className="num">{sig(result.circulation.wall, 4)}</td><td className="num">–</td></tr>
+            </tbody>
+          </table>
+          <p className={`crosscheck ${Math.abs(dCl) > tol ? 'warn-text' : ''}`}>
+            {isNum(dCl)
+              ? <>Lift cross-check: c<sub>l</sub> mom − c<sub>l</sub> p = {fix(dCl, 4)}; allowed ±{fix(tol, 4)} → <b>{Math.abs(dCl) > tol ? '✖ the methods disagree' : '✔ the methods agree'}</b>.</>
+              : 'Lift cross-check not possible (no wall taps).'}
+          </p>
+          {result.spanwise ? <p className="small">Spanwise: CL = {fix(result.spanwise.CL, 4)}, spread of row cl = {fix(result.spanwise.spread, 4)}.</p> : null}
+        </section>
+
+        <section className="panel" aria-label="Wake profile">
+          <h3>Wake profile</h3>
+          {wake ? <Plot config={wake} label={`Wake total-pressure profile, run ${current}`} height={260} /> : null}
+          <p className={w && !w.captured ? 'warn-text' : undefined}>
+            {w
+              ? w.captured
+                ? <>✔ Wake captured: Cpt at the rake edges is within ±{fix(result.settings.wakeEdgeTol, 3)} of 1 (lower edge {fix(w.edgeCpt[0], 4)}, upper edge {fix(w.edgeCpt[1], 4)}).</>
+                : <>✖ Wake NOT captured: Cpt at the rake edges should be within ±{fix(result.settings.wakeEdgeTol, 3)} of 1 but is {fix(w.edgeCpt[0], 4)} (lower) and {fix(w.edgeCpt[1], 4)} (upper); the wake drag misses part of the deficit.</>
+              : 'No wake rake in this setup.'}
+          </p>
+          {w ? (
+            <p className="small muted">
+              Centre {fix(w.centre * 1000, 1)} mm, width {fix(w.width * 1000, 1)} mm; {w.staticUsed ? 'rake static probes used for p_w' : 'far-wake assumption p_w = p∞'}
+              {w.clampedRadicands ? `; ${w.clampedRadicands} negative radicands clamped to 0` : ''}.
+            </p>
+          ) : null}
+        </section>
+
+        <section className="panel" aria-label="Floor and ceiling pressures">
+          <h3>Floor and ceiling signatures</h3>
+          {walls ? <Plot config={walls} label={`Floor and ceiling pressure coefficients, run ${current}`} height={260} /> : <p>No wall taps in this setup.</p>}
+          {result.walls ? (
+            <p className="small muted">
+              Capture fraction F = {fix(result.walls.F, 3)}; c<sub>l</sub> mom = {fix(result.walls.clMom, 4)}, c<sub>l</sub> wall = {fix(result.walls.clWall, 4)}
+              {result.walls.angleFluxCl ? `, flow-angle flux ${fix(result.walls.angleFluxCl, 4)}` : ''}.
+            </p>
+          ) : null}
+        </section>
+      </div>
+
+      <section className="panel" aria-label="Taps">
+        <div className="panel-head">
+          <h3>Taps of row {rowName} ({rowTaps.length})</h3>
+          <label className="inline">Comment for overrides <input type="text" value={comment} onChange={(e) => setComment(e.target.value)} maxLength={4000} placeholder="optional, kept in the audit trail" /></label>
+        </div>
+        <p className="small">
+          Bad or bridged taps ({badList.length}):{' '}
+          {badList.length ? badList.map((t) => `${t.id} (${t.badReason ?? 'bridged'})`).join(', ') : 'none'}.
+        </p>
+        <div className="tap-list-scroll">
+          <table className="taps">
+            <thead><tr><th scope="col">tap</th><th scope="col">surface</th><th scope="col" className="num">x/c</th><th scope="col" className="num">Cp</th><th scope="col">state</th><th scope="col">override</th></tr></thead>
+            <tbody>
+              {rowTaps.map((t: TapCp) => {
+                const isBad = bad.has(t.id);
+                const isMarked = marked.has(t.id) || t.badReason === 'marked';
+                return (
+                  <tr key={t.id} className={isBad ? 'tap-bad' : undefined}>
+                    <td>{t.id}</td>
+                    <td>{t.surface === 'upper' ? '● upper' : '▲ lower'}</td>
+                    <td className="num">{fix(t.x, 4)}</td>
+                    <td className="num">{fix(t.cp, 3)}</td>
+                    <td>{isBad ? `✕ bad — ${t.badReason === 'marked' ? 'marked by reviewer' : t.badReason ?? 'bridged'}` : 'good'}</td>
+                    <td>
+                      <button type="button" className="btn-small" disabled={working !== null} onClick={() => toggleTap(t.id)} aria-label={`${isMarked ? 'Restore' : 'Mark bad'} tap ${t.id}`}>
+                        {isMarked ? 'Restore' : 'Mark bad'}
+                      </button>
+                    </td>
+                  </tr>
+                );
+              })}
+            </tbody>
+          </table>
+        </div>
+      </section>
+
+      <div className="inspector-grid">
+        {rowInfo ? <ReviewPanel row={rowInfo} onSaved={() => void reload()} /> : null}
+        <section className="panel" aria-label="Reduction history">
+          <h3>Reduction history</h3>
+          <table className="history">
+            <thead><tr><th scope="col">reduced</th><th scope="col">core</th><th scope="col" className="num">cl</th><th scope="col" className="num">cd</th><th scope="col">flags</th></tr></thead>
+            <tbody>
+              {got.history.map((h) => (
+                <tr key={h.resultId}><td>{when(h.reducedAt)}</td><td>{h.coreVersion}</td><td className="num">{fix(h.cl, 4)}</td><td className="num">{fix(h.cd, 5)}</td><td>{h.flags.map((f) => f.code).join(', ') || '–'}</td></tr>
+              ))}
+            </tbody>
+          </table>
+          {changes.length > 1 ? (
+            <>
+              <h4>Overrides this visit</h4>
+              <ul className="small">{changes.map((c, i) => <li key={i}>{c.tapId} {c.bad ? 'marked bad' : 'restored'}: {changeText(c)}</li>)}</ul>
+            </>
+          ) : null}
+        </section>
+      </div>
+    </div>
+  );
+}

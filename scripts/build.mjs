@@ -1,0 +1,92 @@
+// Build Rakeline.
+//   node scripts/build.mjs              renderer (vite, renderer/vite.config.ts → dist/renderer)
+//                                        + Electron main and preload (esbuild → dist/main/*.cjs)
+//   node scripts/build.mjs --renderer   the renderer only (browser mode)
+//   --quiet                             only warnings and errors
+// The full build also makes sure the demo session and the icons exist (electron-builder packs them).
+import { build as esbuild } from 'esbuild';
+import { existsSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
+import path from 'node:path';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+
+export const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
+const r = (...p) => path.join(root, ...p);
+
+export async function buildRenderer({ quiet = false } = {}) {
+  const { build } = await import('vite');
+  await build({
+    configFile: r('renderer', 'vite.config.ts'),
+    logLevel: quiet ? 'warn' : 'info',
+    build: { outDir: r('dist', 'renderer'), emptyOutDir: true },
+  });
+  if (!existsSync(r('dist', 'renderer', 'index.html'))) {
+    throw new Error('the renderer build wrote no dist/renderer/index.html');
+  }
+}
+
+const sqliteShim = {
+  name: 'rakeline-sqlite-shim',
+  setup(b) {
+    const shim = r('scripts', 'sqlite-shim.cjs');
+    b.onResolve({ filter: /^better-sqlite3$/ }, (args) =>
+      args.importer === shim ? { path: 'better-sqlite3', external: true } : { path: shim },
+    );
+  },
+};
+
+export async function buildMain({ quiet = false } = {}) {
+  await esbuild({
+    absWorkingDir: root,
+    entryPoints: { electron: r('main', 'electron.ts'), preload: r('main', 'preload.ts') },
+    outdir: r('dist', 'main'),
+    outExtension: { '.js': '.cjs' },
+    bundle: true,
+    platform: 'node',
+    format: 'cjs',
+    target: 'node22',
+    external: ['electron'],
+    plugins: [sqliteShim],
+    sourcemap: true,
+    logLevel: quiet ? 'warning' : 'info',
+    logOverride: { 'empty-import-meta': 'silent' },
+  });
+}
+
+function runTs(file) {
+  const tsx = r('node_modules', 'tsx', 'dist', 'cli.mjs');
+  const res = spawnSync(process.execPath, [tsx, file], { cwd: root, stdio: 'inherit' });
+  if (res.status !== 0) throw new Error(`${path.relative(root, file)} failed`);
+}
+
+export function ensureDemoSession() {
+  if (existsSync(r('resources', 'demo', 'session', 'setup.json'))) return;
+  const gen = r('resources', 'demo', 'generate.ts');
+  if (!existsSync(gen)) {
+    console.warn('rakeline: resources/demo/generate.ts is missing; no demo session is bundled.');
+    return;
+  }
+  runTs(gen);
+}
+
+export async function ensureIcons() {
+  if (existsSync(r('resources', 'icons', 'icon.png'))) return;
+  const { writeIcons } = await import(pathToFileURL(r('scripts', 'icons.mjs')).href);
+  writeIcons();
+}
+
+export async function buildAll({ rendererOnly = false, quiet = false } = {}) {
+  await buildRenderer({ quiet });
+  if (rendererOnly) return;
+  await buildMain({ quiet });
+  ensureDemoSession();
+  await ensureIcons();
+}
+
+if (process.argv[1] && path.resolve(process.argv[1]) === fileURLToPath(import.meta.url)) {
+  const args = new Set(process.argv.slice(2));
+  buildAll({ rendererOnly: args.has('--renderer'), quiet: args.has('--quiet') }).catch((e) => {
+    console.error(`rakeline build: ${e instanceof Error ? e.message : String(e)}`);
+    process.exit(1);
+  });
+}

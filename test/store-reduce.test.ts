@@ -1,0 +1,117 @@
+// Reducing stored sessions (main/reduceService.ts) and keeping the history of reductions.
+// Data: the tiny invented Harrowgate demo day (resources/demo), written through the log writer.
+import { join } from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { Store } from '../main/store';
+import { importSessionFolder, readSessionFolder } from '../main/import';
+import { reduceStoredSession, sessionSummary } from '../main/reduceService';
+import { writeSessionFolder } from '../main/logwriter';
+import { reduceRawSession } from '../app/reduce';
+import { averageRun } from '../app/samples';
+import type { ParsedSession } from '../main/store';
+import { demoSession } from '../resources/demo/scenario';
+import { cleanupTempDirs, tempDir } from './helpers/store-fixtures';
+
+let dir: string;
+let store: Store;
+let parsed: ParsedSession;
+let dataRuns: number[];
+
+beforeAll(async () => {
+  dir = tempDir();
+  const demo = demoSession({ runs: 8, taps: 16, rakeProbes: 8, wallTaps: 6, samples: 40, seed: 7 });
+  writeSessionFolder(join(dir, 'day'), demo.setup, demo.index, demo.runs());
+  parsed = await readSessionFolder(join(dir, 'day'));
+  store = Store.open(join(dir, 'rakeline.sqlite'));
+  await importSessionFolder(store, join(dir, 'day'), { actor: 'M. Okonkwo' });
+  dataRuns = parsed.index.filter((i) => i.kind === 'data').map((i) => i.run);
+});
+afterAll(() => {
+  store.close();
+  cleanupTempDirs();
+});
+
+describe('reduceStoredSession', () => {
+  it('reduces every data run exactly as the core does on the parsed files, and stores it', () => {
+    const phases: number[] = [];
+    const { results, summary } = reduceStoredSession(store, 1, { actor: 'M. Okonkwo', onProgress: (p) => phases.push(p.runsDone) });
+    expect(results.map((r) => r.run)).toEqual(dataRuns);
+    expect(phases).toEqual(dataRuns.map((_, k) => k + 1));
+    // Same numbers as the core straight on the parsed raws: the store is lossless.
+    const direct = reduceRawSession(parsed.setup, parsed.runs);
+    expect(results).toEqual(direct.results);
+    expect(summary).toEqual(direct.summary);
+    for (const r of results) {
+      expect(store.latestResult(1, r.run)).toEqual(r); // NaN (e.g. no wake) survives the JSON
+      const row = store.getRun(1, r.run).result!;
+      expect(row.cl).toBe(r.corrected.cl);
+      expect(row.cd).toEqual(r.corrected.cd);
+      expect(row.q).toBe(r.corrected.q);
+      expect(row.alphaCorrDeg).toBe(r.corrected.alphaDeg);
+      expect(row.gammaPressure).toBe(r.circulation.pressure);
+      expect(row.flags).toEqual(r.flags);
+    }
+    expect(store.listRuns(1).filter((r) => r.kind === 'zero').every((r) => r.result === null)).toBe(true);
+    expect(store.getSession(1).flaggedCount).toBe(results.filter((r) => r.flags.length > 0).length);
+  });
+
+  it('re-reducing keeps the history; the latest result is the one shown', () => {
+    const first = store.resultHistory(1, dataRuns[0]);
+    expect(first).toHaveLength(1);
+    const { results } = reduceStoredSession(store, 1, { runs: [dataRuns[0]], settings: { liftTolAbs: 0.5 }, actor: 'T. Lindqvist' });
+    expect(results.map((r) => r.run)).toEqual([dataRuns[0]]);
+    expect(results[0].settings.liftTolAbs).toBe(0.5);
+    const hist = store.resultHistory(1, dataRuns[0]);
+    expect(hist).toHaveLength(2);
+    expect(hist[0].resultId).toBe(first[0].resultId);
+    expect(hist[1].resultId).toBeGreaterThan(hist[0].resultId);
+    expect(store.getRun(1, dataRuns[0]).result!.resultId).toBe(hist[1].resultId);
+    expect(store.latestResult(1, dataRuns[0])!.settings.liftTolAbs).toBe(0.5);
+    // Other runs untouched.
+    expect(store.resultHistory(1, dataRuns[1])).toHaveLength(1);
+    const audit = store.auditTrail(1).filter((a) => a.action === 'reduce');
+    expect(audit.map((a) => [a.actor, (a.detail as { runs: number[] }).runs])).toEqual([
+      ['M. Okonkwo', dataRuns],
+      ['T. Lindqvist', [dataRuns[0]]],
+    ]);
+    expect(() => store.db.prepare('UPDATE reductions SET cl = 0').run()).toThrow(/reductions is append-only/);
+    expect(() => store.db.prepare('DELETE FROM flags').run()).toThrow(/flags is append-only/);
+  });
+
+  it('a spike-threshold change re-averages the stored samples', () => {
+    store.updateSettings(1, { spikeK: 2 }, 'T. Lindqvist', 'aggressive spike rejection');
+    const avg = store.getAveraged(1);
+    for (const raw of parsed.runs) expect(avg.find((a) => a.info.run === raw.info.run)).toEqual(averageRun(raw, 2));
+    expect(store.db.prepare('SELECT DISTINCT spike_k FROM channel_stats').all()).toEqual([{ spike_k: 2 }]);
+    const { results } = reduceStoredSession(store, 1, { runs: [dataRuns[1]] });
+    expect(results[0].settings.spikeK).toBe(2);
+    expect(results).toEqual(reduceRawSession(parsed.setup, parsed.runs, { spikeK: 2 }).results.filter((r) => r.run === dataRuns[1]));
+    store.updateSettings(1, { spikeK: 5 }, 'T. Lindqvist');
+  });
+
+  it('a bad tap marked by the user reaches the reduction', () => {
+    const tap = parsed.setup.taps[3].id;
+    store.setTapBad(1, tap, true, 'M. Okonkwo', 'tube pinched');
+    const { results } = reduceStoredSession(store, 1, { runs: [dataRuns[2]] });
+    expect(results[0].settings.badTaps).toContain(tap);
+    expect(results[0].taps.find((t) => t.id === tap)!.bad).toBe(true);
+    store.setTapBad(1, tap, false, 'M. Okonkwo');
+  });
+
+  it('sessionSummary: from the latest stored results, reviewer-rejected runs left out', () => {
+    const all = sessionSummary(store, 1);
+    expect(all.polar.map((p) => p.run).sort()).toEqual([...dataRuns].sort());
+    store.setReview(1, dataRuns[3], 'rejected', 'stall hysteresis loop, repeat', 'T. Lindqvist');
+    expect(sessionSummary(store, 1).polar.map((p) => p.run)).not.toContain(dataRuns[3]);
+    expect(sessionSummary(store, 1, { includeRejected: true }).polar.map((p) => p.run)).toContain(dataRuns[3]);
+    store.setReview(1, dataRuns[3], null, '', 'T. Lindqvist');
+  });
+
+  it('unknown runs and zero runs are refused', () => {
+    expect(() => reduceStoredSession(store, 1, { runs: [999] })).toThrow('unknown run 999 in session 1');
+    const zero = parsed.index.find((i) => i.kind === 'zero')!.run;
+    const r = store.latestResult(1, dataRuns[0])!;
+    expect(() => store.saveResults(1, [{ ...r, run: zero }], 'x')).toThrow(/is a wind-off zero/);
+    expect(() => store.saveResults(1, [{ ...r, run: 999 }], 'x')).toThrow(/unknown run 999/);
+  });
+});
