@@ -15,7 +15,7 @@ import { freeStream } from './air';
 import { averageRun, applyZeros, unsteadiness } from './samples';
 import { detectBadTaps, reduceSurface } from './surface';
 import { inviscidCp } from './panel';
-import { spanLoading } from './spanwise';
+import { spanLoading, completeRow } from './spanwise';
 import { jonesDrag, interpolateStatic } from './wake';
 import { interpLinear } from './quadrature';
 import { wallLoads, angleFlux } from './walls';
@@ -179,8 +179,10 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     a === L.mainRow ? -1 : b === L.mainRow ? 1 : a.localeCompare(b),
   );
   const rows: RowLoads[] = [];
+  const mainTaps = taps.filter((t) => t.row === L.mainRow);
   for (const row of rowNames) {
-    const rt = taps.filter((t) => t.row === row);
+    const own = taps.filter((t) => t.row === row);
+    const rt = row === L.mainRow ? own : completeRow(own, mainTaps);
     // A row needs both surfaces to be integrated; short rows that cover one side only are skipped.
     if (!rt.some((t) => t.surface === 'upper') || !rt.some((t) => t.surface === 'lower')) continue;
     const loads = reduceSurface(rt, inp.alphaDeg, inp.bad);
@@ -311,7 +313,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings): Run
     flags.push({
       code: 'wake-not-captured',
       severity: 'reject',
-      reason: `Wake not captured by the rake: edge total pressure (H − p∞)/q∞ = ${fmt(lo)} (lower) and ${fmt(hi)} (upper), both should be within ${settings.wakeEdgeTol} of 1; the wake centre is at y = ${fmt(nominal.wake.centre * 1000, 0)} mm. The wake drag is not reliable.`,
+      reason: `Wake not captured by the rake: edge total pressure (H − p∞)/q∞ = ${fmt(lo, 4)} (lower) and ${fmt(hi, 4)} (upper), which should be within ${settings.wakeEdgeTol} of 1 with the largest deficit inside the rake; the deficit peaks at y = ${fmt(peakY(nominal.wake) * 1000, 0)} mm. The wake drag (cd = ${fmt(nominal.wake.cd, 4)}) is not reliable.`,
     });
   }
   const qStats = run.stats[L.dpRef.name];
@@ -395,6 +397,13 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings): Run
     flags,
     inviscid: inviscidCp(setup.model.geometry, nominal.corrected.alphaDeg),
   };
+}
+
+/** y of the largest total-pressure deficit on the rake. */
+function peakY(w: WakeResult): number {
+  let best = w.profile[0];
+  for (const p of w.profile) if (p.cpt < best.cpt) best = p;
+  return best ? best.y : NaN;
 }
 
 function badWords(reason: string): string {

@@ -4,8 +4,8 @@
 //   with cl held at the end rows' values out to the span edges z = ±b/2 (the rows rarely reach
 //   the walls, and the wall boundary layers are not modelled).
 
-import { trapezoid } from './quadrature';
-import type { Flag, RowLoads } from './types';
+import { interpLinear, trapezoid } from './quadrature';
+import type { Flag, RowLoads, TapCp } from './types';
 
 export interface SpanLoading {
   /** max − min of the rows' section cl. */
@@ -63,4 +63,29 @@ export function spanLoading(
     };
   }
   return { spread, CL, z, cl, flag };
+}
+
+/**
+ * Completes a short spanwise row from the main row (common practice, no source). On each surface
+ * the row's departure from the main row, ΔCp = Cp_row − Cp_main(x) at the row's usable taps (main
+ * row interpolated linearly in x/c), is interpolated linearly along x/c (held constant beyond the
+ * row's first and last taps) and added to the main row's Cp at every main-row tap. The row's
+ * section loads then differ from the main row's only through what the row measured, and are not
+ * spoilt by how coarsely a few taps resolve the leading-edge suction peak.
+ */
+export function completeRow(row: readonly TapCp[], main: readonly TapCp[]): TapCp[] {
+  if (!row.length) return [];
+  const name = row[0].row;
+  const out: TapCp[] = [];
+  for (const surface of ['upper', 'lower'] as const) {
+    const ref = main.filter((t) => t.surface === surface && !t.bad).sort((a, b) => a.x - b.x);
+    if (!ref.length) continue;
+    const rx = ref.map((t) => t.x);
+    const rcp = ref.map((t) => t.cp);
+    const own = row.filter((t) => t.surface === surface && !t.bad).sort((a, b) => a.x - b.x);
+    const dx = own.map((t) => t.x);
+    const dcp = own.map((t) => t.cp - interpLinear(rx, rcp, t.x));
+    for (const t of ref) out.push({ ...t, row: name, cp: t.cp + (own.length ? interpLinear(dx, dcp, t.x) : 0) });
+  }
+  return out;
 }

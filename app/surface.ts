@@ -131,6 +131,11 @@ export function integrateContour(points: readonly ContourPoint[], alphaDeg: numb
 
 export type BadTapReason = 'marked' | 'stagnation' | 'outlier' | 'leak';
 
+/** Rows with fewer taps than this are not searched for outliers. */
+export const OUTLIER_MIN_ROW_TAPS = 16;
+/** Taps with x/c below this (the leading-edge region) are never called outliers. */
+export const OUTLIER_LE_REGION = 0.02;
+
 function median(values: number[]): number {
   const s = [...values].sort((a, b) => a - b);
   const n = s.length;
@@ -268,8 +273,15 @@ export function detectBadTaps(
     list.push(t);
     rows.set(t.row, list);
   }
+  // Only rows dense enough to predict a tap from its neighbours are searched, and taps in the
+  // leading-edge region, where the stagnation point and the suction peak move faster than the
+  // taps resolve them, are never called outliers (common practice, no source).
   for (const list of rows.values()) {
-    for (const id of findOutliers(orderContour(list), settings.tapOutlierCp)) reason.set(id, 'outlier');
+    if (list.length < OUTLIER_MIN_ROW_TAPS) continue;
+    for (const id of findOutliers(orderContour(list), settings.tapOutlierCp)) {
+      const tap = list.find((t) => t.id === id);
+      if (tap && tap.x >= OUTLIER_LE_REGION) reason.set(id, 'outlier');
+    }
   }
   return taps.filter((t) => reason.has(t.id)).map((t) => ({ id: t.id, reason: reason.get(t.id)! }));
 }

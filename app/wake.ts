@@ -87,7 +87,13 @@ export function jonesDrag(args: JonesArgs): WakeResult {
 
   const n = probes.length;
   const edgeCpt: [number, number] = [cpt[0], cpt[n - 1]];
-  const captured = Math.abs(edgeCpt[0] - 1) < edgeTol && Math.abs(edgeCpt[1] - 1) < edgeTol;
+  // Captured: both edges at free-stream total pressure within edgeTol, and the largest deficit
+  // inside the rake, not on either of its two outermost probes at each end (a wake that has run
+  // off the rake can leave only its faint fringe on the edge probes; common practice, no source).
+  let iPeak = 0;
+  for (let i = 1; i < n; i++) if (cpt[i] < cpt[iPeak]) iPeak = i;
+  const peakInside = n < 5 || (iPeak >= 2 && iPeak <= n - 3);
+  const captured = Math.abs(edgeCpt[0] - 1) < edgeTol && Math.abs(edgeCpt[1] - 1) < edgeTol && peakInside;
 
   const { centre, width } = wakeShape(y, cpt);
 

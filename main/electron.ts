@@ -20,7 +20,7 @@ const ORIGIN = `${SCHEME}://app`;
 const APP_URL = `${ORIGIN}/index.html`;
 
 protocol.registerSchemesAsPrivileged([
-  { scheme: SCHEME, privileges: { standard: true, secure: true, supportFetchAPI: true, stream: true, codeCache: true } },
+  { scheme: SCHEME, privileges: { standard: true, secure: true, supportFetchAPI: true, corsEnabled: true, stream: true, codeCache: true } },
 ]);
 
 const rendererDir = path.join(__dirname, '..', 'renderer');

@@ -172,7 +172,13 @@ export async function startBrowserServer(opts: BrowserServerOptions): Promise<Br
 
     if (method !== 'GET' && method !== 'HEAD') return sendText(res, 405, 'Method not allowed.');
     const file = await resolveStatic(rendererDir, url.pathname);
-    if (!file) return sendText(res, 404, 'Not found.');
+    if (!file) {
+      if (url.pathname === '/favicon.ico') {
+        res.writeHead(204, { ...SECURITY_HEADERS, 'Cache-Control': 'max-age=86400' });
+        return res.end();
+      }
+      return sendText(res, 404, 'Not found.');
+    }
     const body = await readFile(file);
     const immutable = /[\\/]assets[\\/]/.test(file);
     res.writeHead(200, {

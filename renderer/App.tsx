@@ -1,7 +1,7 @@
 // Rakeline's window: session list on the left, the screens of the chosen session as tabs, the
 // busy indicator and messages, and the caution line in the footer. Everything goes through the
 // typed contract (renderer/bridge.ts getApi()).
-import { useCallback, useEffect, useState } from 'react';
+import { useCallback, useEffect, useRef, useState } from 'react';
 import type { RakelineApi, Results, SessionRowLike } from '../main/contract';
 import { ApiContext, StatusProvider, useApi, useStatus, quiet } from './context';
 import { useSessionData } from './session';
@@ -13,6 +13,7 @@ import { Polars } from './screens/Polars';
 import { Intake } from './screens/Intake';
 import { SessionSettings } from './screens/SessionSettings';
 import { DaySheet } from './screens/DaySheet';
+import { ErrorBoundary } from './components/ErrorBoundary';
 
 export type Screen = 'daylog' | 'inspector' | 'polars' | 'settings' | 'sheet' | 'intake';
 
@@ -116,6 +117,12 @@ function Shell() {
     await Promise.all([reload(), refreshSessions()]);
   }, [reload, refreshSessions]);
 
+  // Each screen opens at its top.
+  const mainRef = useRef<HTMLElement>(null);
+  useEffect(() => {
+    mainRef.current?.scrollTo?.({ top: 0 });
+  }, [screen, sessionId]);
+
   const current = sessions.find((s) => s.id === sessionId) ?? null;
   const needData = SCREENS.find((s) => s.id === screen)?.needsSession ?? false;
 
@@ -160,7 +167,7 @@ function Shell() {
           <button type="button" className="btn-wide" onClick={() => setScreen('intake')}>+ Import a session</button>
         </aside>
 
-        <main className="screen" aria-label={SCREENS.find((s) => s.id === screen)?.title}>
+        <main ref={mainRef} className="screen" aria-label={SCREENS.find((s) => s.id === screen)?.title}>
           {notices.length ? (
             <div className="notices">
               {notices.map((n) => (
@@ -171,6 +178,7 @@ function Shell() {
               ))}
             </div>
           ) : null}
+          <ErrorBoundary resetKey={`${screen}:${sessionId}:${run}`}>
           {screen === 'intake' ? (
             <Intake
               mode={info?.mode ?? 'browser'}
@@ -190,6 +198,7 @@ function Shell() {
               {screen === 'sheet' ? <DaySheet data={data} mode={info?.mode ?? 'browser'} /> : null}
             </>
           ) : null}
+          </ErrorBoundary>
         </main>
       </div>
 

@@ -7,7 +7,9 @@ import { OKABE_ITO, SERIES } from './palette';
 import { fix } from './format';
 
 export interface XY { x: number; y: number; id?: string; run?: number }
-export type Pts = (XY | null)[];
+/** Points of a series; a point with NaN coordinates is a gap in the line. */
+export type Pts = XY[];
+const GAP: XY = { x: NaN, y: NaN };
 export interface PlotConfig { data: ChartData<'scatter', Pts>; options: ChartOptions<'scatter'> }
 
 const FONT = { family: 'system-ui, "Segoe UI", Roboto, sans-serif', size: 12 };
@@ -32,11 +34,11 @@ function base(xTitle: string, yTitle: string, opts: { reverseY?: boolean; xMin?:
         reverse: opts.reverseY ?? false,
         title: { display: true, text: yTitle, font: FONT },
         grid: { color: '#e3e6ea' },
-        ticks: { font: FONT },
+        ticks: { font: FONT, includeBounds: false },
       },
     },
     plugins: {
-      legend: { position: 'bottom', labels: { usePointStyle: true, boxWidth: 28, font: FONT } },
+      legend: { position: 'bottom', labels: { usePointStyle: true, boxWidth: 8, boxHeight: 7, padding: 10, font: FONT } },
       tooltip: { enabled: true },
     },
   };
@@ -67,6 +69,7 @@ function line(label: string, data: Pts, color: string, dash: number[] = [], extr
     showLine: true,
     pointRadius: 0,
     pointHitRadius: 0,
+    pointStyle: 'line',
     borderWidth: 1.5,
     borderDash: dash,
     spanGaps: false,
@@ -91,6 +94,25 @@ export function rowsOf(result: RunResult): string[] {
   return order;
 }
 
+/**
+ * Cp axis limits: all measured taps, plus the inviscid curve as far as 60 % beyond the measured
+ * suction range (a stalled run's inviscid suction peak would flatten the data otherwise; the
+ * curve is clipped at the plot edge). Rounded out to 0.25.
+ */
+export function cpAxisRange(measured: number[], inviscid: number[]): { min: number; max: number } {
+  const m = measured.filter(Number.isFinite);
+  const inv = inviscid.filter(Number.isFinite);
+  if (m.length === 0) return { min: -2, max: 1.25 };
+  const lo = Math.min(...m);
+  const hi = Math.max(...m, 1);
+  const span = Math.max(1, hi - lo);
+  const invLo = inv.length ? Math.min(...inv) : lo;
+  const invHi = inv.length ? Math.max(...inv) : hi;
+  const min = Math.min(lo, Math.max(invLo, lo - 0.6 * span)) - 0.05 * span;
+  const max = Math.max(hi, Math.min(invHi, hi + 0.2)) + 0.05 * span;
+  return { min: Math.floor(min * 4) / 4, max: Math.ceil(max * 4) / 4 };
+}
+
 /** Cp(x/c) of one spanwise row: upper ●, lower ▲, bad ✕, inviscid panel solution as lines. */
 export function cpChartConfig(result: RunResult, opts: { row?: string; onTap?: (tapId: string) => void } = {}): PlotConfig {
   const row = opts.row ?? rowsOf(result)[0];
@@ -102,6 +124,9 @@ export function cpChartConfig(result: RunResult, opts: { row?: string; onTap?: (
   const inv = (s: 'upper' | 'lower') => result.inviscid.filter((p) => p.surface === s).sort((a, b) => a.x - b.x).map((p) => ({ x: p.x, y: p.cp }));
 
   const options = base('x/c', 'Cp (negative up)', { reverseY: true, xMin: 0, xMax: 1 });
+  const range = cpAxisRange(taps.map((t) => t.cp), result.inviscid.map((p) => p.cp));
+  options.scales!.y!.min = range.min;
+  options.scales!.y!.max = range.max;
   options.plugins!.tooltip = {
     callbacks: {
       label: (ctx) => {
@@ -115,7 +140,7 @@ export function cpChartConfig(result: RunResult, opts: { row?: string; onTap?: (
     options.onClick = (_e: ChartEvent, els: ActiveElement[], chart: Chart) => {
       const hit = els.find((el) => el.datasetIndex <= 2);
       if (!hit) return;
-      const p = chart.data.datasets[hit.datasetIndex].data[hit.index] as XY | null;
+      const p = chart.data.datasets[hit.datasetIndex].data[hit.index] as XY | undefined;
       if (p?.id) onTap(p.id);
     };
     options.onHover = (e: ChartEvent, els: ActiveElement[]) => {
@@ -130,7 +155,7 @@ export function cpChartConfig(result: RunResult, opts: { row?: string; onTap?: (
         points(SERIES.lower.label, good('lower'), SERIES.lower.color, SERIES.lower.marker, { pointRadius: 5 }),
         points(SERIES.bad.label, badPts, SERIES.bad.color, SERIES.bad.marker, { pointRadius: 7, borderWidth: 2 }),
         line(`${SERIES.inviscid.label}, upper`, inv('upper'), SERIES.inviscid.color),
-        line(`${SERIES.inviscid.label}, lower`, inv('lower'), SERIES.inviscid.color, [6, 4]),
+        line(`${SERIES.inviscid.label}, lower (dashed)`, inv('lower'), SERIES.inviscid.color, [6, 4]),
       ],
     },
     options,
@@ -193,17 +218,18 @@ export function sweepDirections(pts: readonly PolarPoint[]): Sweep[] {
   return dirs.map((d) => (prev = d ?? prev));
 }
 
-/** Series of one sweep direction in time order, broken (null) where the other sweep runs. */
+/** Series of one sweep direction in time order, broken (a NaN gap) where the other sweep runs. */
 function sweepSeries(pts: readonly PolarPoint[], dirs: Sweep[], want: Sweep, xy: (p: PolarPoint) => XY | null): Pts {
   const out: Pts = [];
   pts.forEach((p, i) => {
     if (dirs[i] !== want) {
-      if (out.length && out[out.length - 1] !== null) out.push(null);
+      if (out.length && Number.isFinite(out[out.length - 1].x)) out.push(GAP);
       return;
     }
     const v = xy(p);
     if (v && Number.isFinite(v.x) && Number.isFinite(v.y)) out.push(v);
   });
+  while (out.length && !Number.isFinite(out[out.length - 1].x)) out.pop();
   return out;
 }
 
@@ -213,16 +239,21 @@ const DOWN = { dash: [6, 4], marker: 'triangle' as PointStyle, word: 'down-sweep
 function sweepPair(
   name: string, pts: readonly PolarPoint[], dirs: Sweep[], color: string, xy: (p: PolarPoint) => XY | null,
   markers: [PointStyle, PointStyle] = [UP.marker, DOWN.marker],
+  radius = 4,
 ) {
   return [
-    points(`${name}, ${UP.word}`, sweepSeries(pts, dirs, 'up', xy), color, markers[0], { showLine: true, borderWidth: 1.5, borderDash: UP.dash, spanGaps: false }),
-    points(`${name}, ${DOWN.word}`, sweepSeries(pts, dirs, 'down', xy), color, markers[1], { showLine: true, borderWidth: 1.5, borderDash: DOWN.dash, spanGaps: false, pointBackgroundColor: '#ffffff' }),
+    points(`${name}, ${UP.word}`, sweepSeries(pts, dirs, 'up', xy), color, markers[0], { showLine: true, borderWidth: 1.5, borderDash: UP.dash, spanGaps: false, pointRadius: radius }),
+    points(`${name}, ${DOWN.word}`, sweepSeries(pts, dirs, 'down', xy), color, markers[1], { showLine: true, borderWidth: 1.5, borderDash: DOWN.dash, spanGaps: false, pointRadius: radius, pointBackgroundColor: '#ffffff' }),
   ];
 }
 
-function flaggedSeries(pts: readonly PolarPoint[], xy: (p: PolarPoint) => XY | null) {
-  const data = pts.filter((p) => p.flagged).map(xy).filter((v): v is XY => !!v && Number.isFinite(v.x) && Number.isFinite(v.y));
-  return points('flagged run ✕ (see Day log)', data, OKABE_ITO.black, 'crossRot', { pointRadius: 8, borderWidth: 1.5 });
+/** Runs drawn with the ✕ overlay: those with a 'reject' (hold) flag. Warn-only flags (a leaking
+ *  tap reported on every run, say) would mark every point and hide the ones that matter. */
+export type HeldRuns = ReadonlySet<number>;
+
+function flaggedSeries(pts: readonly PolarPoint[], held: HeldRuns, xy: (p: PolarPoint) => XY | null) {
+  const data = pts.filter((p) => held.has(p.run)).map(xy).filter((v): v is XY => !!v && Number.isFinite(v.x) && Number.isFinite(v.y));
+  return points('run on hold (reject flag)', data, OKABE_ITO.black, 'crossRot', { pointRadius: 8, borderWidth: 1.5 });
 }
 
 function polarTooltip(options: ChartOptions<'scatter'>, xName: string, yName: string, xd: number, yd: number): void {
@@ -237,14 +268,16 @@ function polarTooltip(options: ChartOptions<'scatter'>, xName: string, yName: st
 }
 
 /** cl(α): both lift methods on the same axes, sweeps by line style, lift-curve fit dashed grey. */
-export function clAlphaConfig(pts: readonly PolarPoint[], stats: SessionStats | null): PlotConfig {
+export function clAlphaConfig(pts: readonly PolarPoint[], stats: SessionStats | null, held: HeldRuns = new Set()): PlotConfig {
   const dirs = sweepDirections(pts);
   const options = base('α corrected [°]', 'cl');
   polarTooltip(options, 'α', 'cl', 2, 4);
   const datasets = [
     ...sweepPair(`${SERIES.pressure.label}`, pts, dirs, SERIES.pressure.color, (p) => ({ x: p.alphaDeg, y: p.cl, run: p.run })),
-    ...sweepPair(`${SERIES.momentum.label}`, pts, dirs, SERIES.momentum.color, (p) => ({ x: p.alphaDeg, y: p.clMom, run: p.run }), ['rect', 'rectRot']),
-    flaggedSeries(pts, (p) => ({ x: p.alphaDeg, y: p.cl, run: p.run })),
+    // Momentum squares are drawn larger than the pressure circles so both stay visible where the
+    // two methods agree (they usually do to three decimals).
+    ...sweepPair(`${SERIES.momentum.label}`, pts, dirs, SERIES.momentum.color, (p) => ({ x: p.alphaDeg, y: p.clMom, run: p.run }), ['rect', 'rectRot'], 6),
+    flaggedSeries(pts, held, (p) => ({ x: p.alphaDeg, y: p.cl, run: p.run })),
   ];
   if (stats && Number.isFinite(stats.liftSlopePerDeg)) {
     const [a0, a1] = stats.linearRange;
@@ -255,7 +288,7 @@ export function clAlphaConfig(pts: readonly PolarPoint[], stats: SessionStats | 
 }
 
 /** Drag polar: cl against cd (wake), sweeps distinguished; pressure drag in light squares. */
-export function dragPolarConfig(pts: readonly PolarPoint[]): PlotConfig {
+export function dragPolarConfig(pts: readonly PolarPoint[], held: HeldRuns = new Set()): PlotConfig {
   const dirs = sweepDirections(pts);
   const options = base('cd', 'cl');
   polarTooltip(options, 'cd', 'cl', 5, 4);
@@ -263,8 +296,8 @@ export function dragPolarConfig(pts: readonly PolarPoint[]): PlotConfig {
     data: {
       datasets: [
         ...sweepPair('cd from the wake rake', pts, dirs, OKABE_ITO.blue, (p) => ({ x: p.cd, y: p.cl, run: p.run })),
-        points('cd from surface pressures ■', pts.map((p) => ({ x: p.cdp, y: p.cl, run: p.run })).filter((p) => Number.isFinite(p.x) && Number.isFinite(p.y)), OKABE_ITO.skyBlue, 'rect', { pointRadius: 3 }),
-        flaggedSeries(pts, (p) => ({ x: p.cd, y: p.cl, run: p.run })),
+        points('cd from surface pressures', pts.map((p) => ({ x: p.cdp, y: p.cl, run: p.run })).filter((p) => Number.isFinite(p.x) && Number.isFinite(p.y)), OKABE_ITO.skyBlue, 'rect', { pointRadius: 3 }),
+        flaggedSeries(pts, held, (p) => ({ x: p.cd, y: p.cl, run: p.run })),
       ],
     },
     options,
@@ -272,7 +305,7 @@ export function dragPolarConfig(pts: readonly PolarPoint[]): PlotConfig {
 }
 
 /** cm c/4 (α). */
-export function cmAlphaConfig(pts: readonly PolarPoint[]): PlotConfig {
+export function cmAlphaConfig(pts: readonly PolarPoint[], held: HeldRuns = new Set()): PlotConfig {
   const dirs = sweepDirections(pts);
   const options = base('α corrected [°]', 'cm c/4');
   polarTooltip(options, 'α', 'cm', 2, 4);
@@ -280,7 +313,7 @@ export function cmAlphaConfig(pts: readonly PolarPoint[]): PlotConfig {
     data: {
       datasets: [
         ...sweepPair('cm about c/4', pts, dirs, OKABE_ITO.bluishGreen, (p) => ({ x: p.alphaDeg, y: p.cmc4, run: p.run })),
-        flaggedSeries(pts, (p) => ({ x: p.alphaDeg, y: p.cmc4, run: p.run })),
+        flaggedSeries(pts, held, (p) => ({ x: p.alphaDeg, y: p.cmc4, run: p.run })),
       ],
     },
     options,

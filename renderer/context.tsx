@@ -39,6 +39,8 @@ export function StatusProvider({ children }: { children: ReactNode }) {
   const notify = useCallback((kind: Notice['kind'], text: string) => {
     const id = nextId.current++;
     setNotices((n) => [...n.slice(-4), { id, kind, text }]);
+    // Information fades on its own; errors stay until dismissed.
+    if (kind === 'info') setTimeout(() => setNotices((n) => n.filter((x) => x.id !== id)), 8000);
   }, []);
   const dismiss = useCallback((id: number) => setNotices((n) => n.filter((x) => x.id !== id)), []);
 

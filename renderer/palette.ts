@@ -16,14 +16,14 @@ export const OKABE_ITO = {
 
 /** Series roles used on every chart. */
 export const SERIES = {
-  upper: { color: OKABE_ITO.blue, marker: 'circle' as const, label: 'upper surface ●' },
-  lower: { color: OKABE_ITO.vermillion, marker: 'triangle' as const, label: 'lower surface ▲' },
-  bad: { color: OKABE_ITO.black, marker: 'crossRot' as const, label: 'bad / bridged tap ✕' },
-  inviscid: { color: OKABE_ITO.bluishGreen, label: 'inviscid panel solution (line)' },
+  upper: { color: OKABE_ITO.blue, marker: 'circle' as const, label: 'upper surface' },
+  lower: { color: OKABE_ITO.vermillion, marker: 'triangle' as const, label: 'lower surface' },
+  bad: { color: OKABE_ITO.black, marker: 'crossRot' as const, label: 'bad or bridged tap' },
+  inviscid: { color: OKABE_ITO.bluishGreen, label: 'inviscid panel solution' },
   pressure: { color: OKABE_ITO.blue, label: 'cl from surface pressures' },
   momentum: { color: OKABE_ITO.orange, label: 'cl from wall momentum' },
-  floor: { color: OKABE_ITO.reddishPurple, marker: 'rect' as const, label: 'floor ■' },
-  ceiling: { color: OKABE_ITO.skyBlue, marker: 'rectRot' as const, label: 'ceiling ◆' },
+  floor: { color: OKABE_ITO.reddishPurple, marker: 'rect' as const, label: 'floor' },
+  ceiling: { color: OKABE_ITO.skyBlue, marker: 'rectRot' as const, label: 'ceiling (dashed)' },
   wake: { color: OKABE_ITO.blue, label: 'rake total-pressure Cpt' },
 };
 

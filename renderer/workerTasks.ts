@@ -142,13 +142,13 @@ export function checkFiles(input: UploadFile[], progress?: Progress): CheckRepor
   const byRun = new Map(index.map((r) => [r.run, r]));
   const plans = planRunFiles(index, lines);
   const byName = new Map(files.map((f) => [f.name, f]));
-  const total = plans.reduce((s, p) => s + (byName.get(p.file)?.bytes ?? 0), 0) || 1;
-  let done = 0;
-  for (const plan of plans) {
+  // Match every planned file first (so the progress total is known), then parse.
+  const claimed = new Set<CheckedFile>();
+  const matched = plans.map((plan) => {
     let f = byName.get(plan.file);
     if (!f) {
       // Flat pick: the same base name, once, and not already claimed by another index entry.
-      const cands = files.filter((c) => c.status === 'unchecked' && baseName(c.name) === baseName(plan.file));
+      const cands = files.filter((c) => c.status === 'unchecked' && !claimed.has(c) && baseName(c.name) === baseName(plan.file));
       if (cands.length === 1) {
         f = cands[0];
         byName.delete(f.name);
@@ -156,9 +156,14 @@ export function checkFiles(input: UploadFile[], progress?: Progress): CheckRepor
         byName.set(f.name, f);
       }
     }
+    if (f) claimed.add(f);
+    return { plan, f };
+  });
+  const total = matched.reduce((s, m) => s + (m.f?.bytes ?? 0), 0) || 1;
+  let done = 0;
+  for (const { plan, f } of matched) {
     if (!f) {
-      const pe = plainError(missingFileError(plan));
-      errors.push(pe);
+      errors.push(plainError(missingFileError(plan)));
       continue;
     }
     try {

@@ -1,11 +1,12 @@
 // Parser choice benchmark (docs/LOG-FORMAT.md, "Parser choice"): a generated ~50 MB numeric run
 // log (≈200 channels) read by (a) our scanner app/log/runParser.ts and (b) csv-parse 7 (stream
 // API, records of strings, Number() per cell into Float64Arrays, as the scanner does), both fed
-// the same 1 MiB string chunks. Also (c) the import path of main/import.ts: file bytes (1 MiB
-// chunks) straight into the scanner + SHA-256. Prints MB/s (1 MB = 10^6 bytes); best of 3.
+// the same 1 MiB string chunks; also csv-parse's sync API on the whole text. And (c) the import
+// path of main/import.ts: file bytes (1 MiB chunks) straight into the scanner + SHA-256. Prints MB/s (1 MB = 10^6 bytes); best of 3.
 // Run: npx tsx scripts/bench-parser.ts [MB]
 import { createHash } from 'node:crypto';
 import { parse as csvParse } from 'csv-parse';
+import { parse as csvParseSync } from 'csv-parse/sync';
 import { createRunParser } from '../app/log/runParser';
 import { channelToSI } from '../app/units';
 import { miniSetup, rng } from '../test/helpers/mini-session';
@@ -75,6 +76,14 @@ async function theirs(): Promise<number> {
   return n;
 }
 
+function theirsSync(): number {
+  const recs = csvParseSync(text) as string[][];
+  const factors = setup.channels.map((c) => channelToSI(1, c.unit));
+  const cols = names.map(() => new Float64Array(recs.length - 1));
+  for (let i = 1; i < recs.length; i++) for (let k = 0; k < names.length; k++) cols[k][i - 1] = Number(recs[i][k + 1]) * factors[k];
+  return cols[0].length;
+}
+
 function importPath(): number {
   const h = createHash('sha256');
   const p = createRunParser('bench.csv', setup, { runColumn: false });
@@ -101,6 +110,44 @@ async function best(label: string, f: () => number | Promise<number>): Promise<n
 }
 
 const a = await best('app/log/runParser, string chunks', ours);
-const b = await best('csv-parse 7 stream + Number()', theirs);
+const b = Math.max(await best('csv-parse 7 stream + Number()', theirs), await best('csv-parse 7 sync (whole text) + Number()', theirsSync));
 await best('import path: bytes + SHA-256 + scanner', importPath);
 console.log(`own scanner / csv-parse = ${(a / b).toFixed(1)}×`);
+
+// (d) The whole import of a session folder on disk: read + SHA-256 + parse + average (app/samples
+// averageRun) + store in one SQLite transaction (WAL, synchronous FULL). 25 runs × 202 channels ×
+// 2000 samples. The averaging share is timed on its own as well.
+{
+  const { mkdtempSync, rmSync } = await import('node:fs');
+  const { tmpdir } = await import('node:os');
+  const { join } = await import('node:path');
+  const { writeSessionFolder } = await import('../main/logwriter');
+  const { importSessionFolder, readSessionFolder } = await import('../main/import');
+  const { Store } = await import('../main/store');
+  const { averageRun } = await import('../app/samples');
+  const { miniRuns } = await import('../test/helpers/mini-session');
+  const dir = mkdtempSync(join(tmpdir(), 'rk-bench-'));
+  try {
+    const { index, runs } = miniRuns(setup, { dataRuns: 18, samples: 2000 });
+    writeSessionFolder(join(dir, 'day'), setup, index, runs, { digits: 7 });
+    const parsed = await readSessionFolder(join(dir, 'day'));
+    const mb = parsed.sources.reduce((a, s) => a + s.bytes, 0) / 1e6;
+    let bestImport = 0;
+    let bestAvg = Infinity;
+    for (let k = 0; k < 3; k++) {
+      const store = Store.open(join(dir, `db-${k}.sqlite`));
+      let t = performance.now();
+      await importSessionFolder(store, join(dir, 'day'));
+      bestImport = Math.max(bestImport, mb / ((performance.now() - t) / 1000));
+      store.close();
+      t = performance.now();
+      for (const r of parsed.runs) averageRun(r, 5);
+      bestAvg = Math.min(bestAvg, (performance.now() - t) / 1000);
+    }
+    const label = `full import to SQLite (${index.length} runs, ${mb.toFixed(0)} MB)`;
+    console.log(`${label.padEnd(44)} ${bestImport.toFixed(0).padStart(5)} MB/s`);
+    console.log(`${'  of which averageRun (app/samples.ts)'.padEnd(44)} ${bestAvg.toFixed(2).padStart(5)} s  (${(mb / bestAvg).toFixed(0)} MB/s alone)`);
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+}

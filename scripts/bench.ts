@@ -1,9 +1,10 @@
 // `npm run bench` — performance figures of the store/import/reduction path, printed beside their
 // targets (never asserted: the figures depend on the machine).
 //   large session: demoSession({ runs: 300, taps: 96, rakeProbes: 64, wallTaps: 40, samples: 2000 })
-//   written as CSV (≈ 0.5 GB), imported into a fresh database, reduced with Monte Carlo,
+//   written as CSV (≈ 1.2 GB at 6 significant digits, 2.8 GB with every digit), imported into a fresh database, reduced with Monte Carlo,
 //   one run re-reduced after a tap override; plus the default demo day reduced.
-// Options: --quick (a small session, for a smoke run), --keep (keep the files; path printed).
+// Options: --quick (a small session, for a smoke run), --keep (keep the files; path printed),
+// --digits N (significant digits of the logged values, default 6; 0 = every digit).
 import { mkdtempSync, readdirSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -14,13 +15,24 @@ import { importSessionFolder } from '../main/import';
 import { reduceStoredSession } from '../main/reduceService';
 import type { Setup } from '../app/types';
 
-const args = new Set(process.argv.slice(2));
+const argv = process.argv.slice(2);
+const args = new Set(argv);
 const quick = args.has('--quick');
 const keep = args.has('--keep');
 if (args.has('--help')) {
-  console.log('usage: npm run bench [-- --quick] [-- --keep]');
+  console.log('usage: npm run bench -- [--quick] [--keep] [--digits N]\n' +
+    '  --quick     a small session (smoke run)\n' +
+    '  --keep      keep the generated files and databases (path printed)\n' +
+    '  --digits N  significant digits of the logged sample values (default 6, like a scanner log; 0 = exact)');
   process.exit(0);
 }
+const digitsArg = argv.indexOf('--digits');
+const DIGITS = digitsArg >= 0 ? Number(argv[digitsArg + 1]) : 6;
+if (!Number.isInteger(DIGITS) || DIGITS < 0 || DIGITS > 17) {
+  console.error('--digits expects a whole number 0…17');
+  process.exit(2);
+}
+const writeOpts = DIGITS ? { digits: DIGITS } : {};
 
 const LARGE: DemoOptions = quick
   ? { runs: 24, taps: 96, rakeProbes: 64, wallTaps: 40, samples: 300 }
@@ -57,14 +69,14 @@ function line(label: string, value: string, target = ''): void {
 async function main(): Promise<void> {
   const root = mkdtempSync(join(tmpdir(), 'rakeline-bench-'));
   console.log(`Rakeline bench${quick ? ' (quick)' : ''} — files in ${root}`);
-  console.log(`large session: ${JSON.stringify(LARGE)}`);
+  console.log(`large session: ${JSON.stringify(LARGE)}, values written with ${DIGITS ? `${DIGITS} significant digits` : 'all digits (exact)'}`);
   try {
     // 1. generate and write
     const demo = demoSession(LARGE);
     schemaWorkaround(demo.setup);
     const folder = join(root, 'large');
     let t0 = t();
-    writeSessionFolder(folder, demo.setup, demo.index, demo.runs());
+    writeSessionFolder(folder, demo.setup, demo.index, demo.runs(), writeOpts);
     const bytes = folderBytes(folder);
     line('generate + write CSV', `${((t() - t0) / 1000).toFixed(1)} s`);
     line('session folder size', `${mb(bytes).toFixed(0)} MB`, `(${demo.index.length} runs, ${demo.setup.channels.length} channels)`);
@@ -108,7 +120,7 @@ async function main(): Promise<void> {
     const day = demoSession();
     schemaWorkaround(day.setup);
     const dayFolder = join(root, 'day');
-    writeSessionFolder(dayFolder, day.setup, day.index, day.runs());
+    writeSessionFolder(dayFolder, day.setup, day.index, day.runs(), writeOpts);
     const dayStore = Store.open(join(root, 'day.sqlite'));
     const dayRep = await importSessionFolder(dayStore, dayFolder, { actor: 'bench' });
     t0 = t();

@@ -35,11 +35,11 @@ const sqliteShim = {
   },
 };
 
-export async function buildMain({ quiet = false } = {}) {
+export async function buildMain({ quiet = false, outdir = r('dist', 'main') } = {}) {
   await esbuild({
     absWorkingDir: root,
     entryPoints: { electron: r('main', 'electron.ts'), preload: r('main', 'preload.ts') },
-    outdir: r('dist', 'main'),
+    outdir,
     outExtension: { '.js': '.cjs' },
     bundle: true,
     platform: 'node',

@@ -13,6 +13,8 @@ vi.mock('electron', () => {
 import { CONTENT_SECURITY_POLICY, startBrowserServer, type BrowserServer } from '../main/serve';
 import { decodeWire, encodeWire } from '../main/wire';
 import { writeSessionFolder } from '../main/logwriter';
+import { httpApi } from '../renderer/bridge';
+import { ContractFailure } from '../main/contract';
 import { miniRuns, miniSetup } from './helpers/mini-session';
 
 let dir: string;
@@ -197,7 +199,9 @@ describe('server-sent events', () => {
       expect(result.reduced).toBe(3);
       // The answer came after the events were written on the open stream; give the socket a
       // moment to hand them over (bounded wait, no timing assertion).
-      for (let i = 0; i < 100 && !events.some((e) => e.event === 'progress'); i++) await new Promise((res) => setTimeout(res, 20));
+      const last = () => events.some((e) => e.event === 'progress' && (e.data as { phase: string; done: number; total: number }).phase === 'reduce'
+        && (e.data as { done: number; total: number }).done === (e.data as { total: number }).total);
+      for (let i = 0; i < 250 && !last(); i++) await new Promise((res) => setTimeout(res, 20));
       const progress = events.filter((e) => e.event === 'progress').map((e) => e.data as { taskId: string; phase: string; done: number; total: number });
       expect(progress.length).toBeGreaterThan(0);
       expect(progress.every((p) => p.taskId === 'sse-task')).toBe(true);
@@ -218,6 +222,23 @@ describe('server-sent events', () => {
     expect(saved.status).toBe(200);
     const back = decodeWire((await api('runs.get', { sessionId, run: 2 })).body) as { result: { result: { corrected: { cd: number } } } };
     expect(Number.isNaN(back.result.result.corrected.cd)).toBe(true);
+  });
+});
+
+describe('renderer bridge over HTTP (renderer/bridge.ts)', () => {
+  it('calls through the server and turns error answers into ContractFailure', async () => {
+    const client = httpApi(TOKEN, `http://127.0.0.1:${server.port}`);
+    const info = await client.call('app.info', {});
+    expect(info.mode).toBe('browser');
+    const err = await client.call('sessions.get', { sessionId: 4242 }).catch((e: unknown) => e);
+    expect(err).toBeInstanceOf(ContractFailure);
+    expect((err as ContractFailure).detail.kind).toBe('not-found');
+    const bad = await client.call('sessions.get', { sessionId: -1 } as never).catch((e: unknown) => e);
+    expect((bad as ContractFailure).detail.message).toContain('sessionId');
+    const stranger = httpApi('z'.repeat(43), `http://127.0.0.1:${server.port}`);
+    const refused = await stranger.call('app.info', {}).catch((e: unknown) => e);
+    expect(refused).toBeInstanceOf(ContractFailure);
+    expect((refused as ContractFailure).message).toContain('401');
   });
 });
 

@@ -67,10 +67,11 @@ export const channelSchema = z
       .regex(/^[^\s,";]+$/, 'no spaces, commas, semicolons or quotes')
       .refine((s) => s !== 't_s' && s !== 'run', 'the names "t_s" and "run" are reserved for the time and run columns'),
     target: targetSchema,
-    unit: channelUnitSchema,
+    unit: channelUnitSchema.describe('Unit of the logged values (pressures are converted to Pa on import)'),
     uncertainty: z
       .object({ fullScale: positive(), percentFullScale: nonNeg(), offset: nonNeg() })
-      .strict(),
+      .strict()
+      .describe("Instrument standard uncertainty (k = 1) in the channel's unit: percentFullScale % of fullScale, plus offset"),
   })
   .strict();
 
@@ -88,20 +89,20 @@ export const setupSchema = z
     facility: z
       .object({
         name: z.string().min(1).max(200),
-        sectionHeight: positive(),
-        sectionWidth: positive(),
-        qCalibration: positive(),
-        qCalibrationUncertainty: nonNeg().optional(),
+        sectionHeight: positive().describe('Test-section height h (floor to ceiling), m'),
+        sectionWidth: positive().describe('Test-section width, m'),
+        qCalibration: positive().describe('Tunnel calibration constant k_q: q = k_q · Δp_ref'),
+        qCalibrationUncertainty: nonNeg().optional().describe('Standard uncertainty of k_q (absolute)'),
       })
       .strict(),
     model: z
       .object({
         name: z.string().min(1).max(200),
-        chord: positive(),
-        span: positive(),
+        chord: positive().describe('Chord c, m'),
+        span: positive().describe('Span b, m'),
         geometry: geometrySchema,
-        alphaUncertaintyDeg: nonNeg(),
-        tapPositionUncertainty: nonNeg(),
+        alphaUncertaintyDeg: nonNeg().describe('Standard uncertainty of the angle of attack, degrees'),
+        tapPositionUncertainty: nonNeg().describe('Standard uncertainty of tap positions, in x/c'),
       })
       .strict(),
     taps: z
@@ -109,25 +110,25 @@ export const setupSchema = z
         z
           .object({
             id: id(),
-            x: z.number().min(0).max(1),
-            y: z.number().min(-1).max(1),
+            x: z.number().min(0).max(1).describe('Chordwise position x/c'),
+            y: z.number().min(-1).max(1).describe('Contour ordinate y/c'),
             surface: z.enum(['upper', 'lower']),
-            row: z.string().min(1).max(16),
-            z: finite(),
+            row: z.string().min(1).max(16).describe("Spanwise row name; the main row is usually 'C'"),
+            z: finite().describe('Spanwise station of the row, m from the tunnel centreline'),
           })
           .strict(),
       )
       .min(3),
     rake: z
       .object({
-        x: positive(),
+        x: positive().describe('Rake plane, m downstream of the model quarter chord'),
         probes: z.array(z.object({ id: id(), y: finite(), kind: z.enum(['total', 'static', 'angle']) }).strict()),
       })
       .strict(),
-    floor: z.array(z.object({ id: id(), x: finite() }).strict()),
-    ceiling: z.array(z.object({ id: id(), x: finite() }).strict()),
+    floor: z.array(z.object({ id: id(), x: finite() }).strict()).describe('Floor static taps; x in m from the model quarter chord, positive downstream'),
+    ceiling: z.array(z.object({ id: id(), x: finite() }).strict()).describe('Ceiling static taps; x as for the floor'),
     channels: z.array(channelSchema).min(1),
-    settings: settingsPatchSchema.optional(),
+    settings: settingsPatchSchema.optional().describe('Session defaults of the reduction settings'),
   })
   .strict();
 

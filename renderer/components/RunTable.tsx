@@ -5,7 +5,7 @@ import { useEffect, useMemo, useRef, useState, type KeyboardEvent, type ReactNod
 import type { RunRowLike } from '../../main/contract';
 import { FlagBadges } from './FlagBadge';
 import { worstSeverity } from '../palette';
-import { clock, fix, reMillions, sig } from '../format';
+import { clock, fix, reMillions } from '../format';
 
 type Value = number | string | null;
 
@@ -24,7 +24,7 @@ const res = (r: RunRowLike) => r.result;
 export const RUN_COLUMNS: Column[] = [
   { key: 'run', head: 'Run', title: 'Run number', value: (r) => r.run, cell: (r) => r.run, numeric: true },
   { key: 'kind', head: 'Kind', title: 'Data run or wind-off zero', value: (r) => r.kind, cell: (r) => (r.kind === 'data' ? 'data' : 'wind-off') },
-  { key: 'time', head: 'Time', title: 'Start time (local)', value: (r) => r.time, cell: (r) => clock(r.time) },
+  { key: 'time', head: 'Time', title: 'Start time (local)', value: (r) => r.time, cell: (r) => clock(r.time).slice(0, 5) },
   { key: 'alpha', head: <>α [°]</>, title: 'Geometric angle of attack, degrees', value: (r) => r.alphaDeg, cell: (r) => fix(r.alphaDeg, 2), numeric: true },
   { key: 'alphaCorr', head: <>α<sub>c</sub> [°]</>, title: 'Corrected angle of attack, degrees', value: (r) => res(r)?.alphaCorrDeg ?? null, cell: (r) => fix(res(r)?.alphaCorrDeg, 2), numeric: true },
   { key: 'q', head: 'q [Pa]', title: 'Corrected dynamic pressure, Pa', value: (r) => res(r)?.q ?? null, cell: (r) => fix(res(r)?.q, 1), numeric: true },
@@ -34,8 +34,7 @@ export const RUN_COLUMNS: Column[] = [
   { key: 'cd', head: <>c<sub>d</sub> wake</>, title: 'Drag coefficient from the wake rake (Jones)', value: (r) => res(r)?.cd ?? null, cell: (r) => fix(res(r)?.cd, 5), numeric: true },
   { key: 'cdp', head: <>c<sub>d</sub> p</>, title: 'Pressure drag coefficient from surface pressures', value: (r) => res(r)?.cdp ?? null, cell: (r) => fix(res(r)?.cdp, 5), numeric: true },
   { key: 'cm', head: <>c<sub>m c/4</sub></>, title: 'Pitching-moment coefficient about the quarter chord', value: (r) => res(r)?.cmc4 ?? null, cell: (r) => fix(res(r)?.cmc4, 4), numeric: true },
-  { key: 'gp', head: <>Γ p [m²/s]</>, title: 'Bound circulation from surface pressures, m²/s', value: (r) => res(r)?.gammaPressure ?? null, cell: (r) => sig(res(r)?.gammaPressure, 4), numeric: true },
-  { key: 'gm', head: <>Γ mom [m²/s]</>, title: 'Bound circulation from wall momentum, m²/s', value: (r) => res(r)?.gammaMomentum ?? null, cell: (r) => sig(res(r)?.gammaMomentum, 4), numeric: true },
+  { key: 'gp', head: <>Γ [m²/s]</>, title: 'Bound circulation from surface pressures (Kutta–Joukowski), m²/s; the Run inspector shows every method', value: (r) => res(r)?.gammaPressure ?? null, cell: (r) => fix(res(r)?.gammaPressure, 3), numeric: true },
   {
     key: 'flags', head: 'Flags', title: 'Checks that failed',
     value: (r) => (r.result ? (worstSeverity(r.result.flags) === 'reject' ? 2 : r.result.flags.length ? 1 : 0) * 100 + r.result.flags.length : null),

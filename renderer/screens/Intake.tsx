@@ -97,9 +97,12 @@ export function Intake({ mode, live, onImported, onOpenSession, setLive }: Intak
     const taskId = newTaskId('upload');
     taskRef.current = taskId;
     setPending(null);
-    setStage({ fraction: 0.35, label: `Sending ${files.length} files` });
+    const mb = files.reduce((s, f) => s + f.text.length, 0) / 1048576;
+    setStage({ fraction: 0.35, label: `Sending ${files.length} files (${mb.toFixed(1)} MB) to be stored and reduced…` });
     quiet(track('Importing the chosen files', async () => {
       try {
+        // Let the label paint before the upload is encoded.
+        await new Promise((r) => setTimeout(r, 40));
         await finish(await api.call('sessions.importFiles', { files, taskId }));
       } catch (e) {
         fail(e);
@@ -275,7 +278,7 @@ export function Intake({ mode, live, onImported, onOpenSession, setLive }: Intak
                 {check.files.map((f) => (
                   <tr key={f.chosen} className={f.status === 'error' ? 'row-reject' : undefined}>
                     <td>{f.chosen}</td><td>{f.status === 'unused' ? '–' : f.name}</td><td className="num">{(f.bytes / 1024).toFixed(1)}</td>
-                    <td>{f.status === 'ok' ? '✔ ok' : f.status === 'error' ? '✖ error' : f.status === 'unused' ? '○ not used' : '…'}</td>
+                    <td>{f.status === 'ok' ? '✔ ok' : f.status === 'error' ? '✖ error' : f.status === 'unused' ? '○ not used' : '– not checked'}</td>
                     <td className="small">{f.note}</td>
                   </tr>
                 ))}

@@ -11,9 +11,10 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
   const summary = data.summary;
   const pts = summary?.polar ?? [];
   const stats = summary?.stats ?? null;
-  const cla = useMemo(() => clAlphaConfig(pts, stats), [pts, stats]);
-  const drag = useMemo(() => dragPolarConfig(pts), [pts]);
-  const cm = useMemo(() => cmAlphaConfig(pts), [pts]);
+  const held = useMemo(() => new Set(data.runs.filter((r) => r.result?.flags.some((f) => f.severity === 'reject')).map((r) => r.run)), [data.runs]);
+  const cla = useMemo(() => clAlphaConfig(pts, stats, held), [pts, stats, held]);
+  const drag = useMemo(() => dragPolarConfig(pts, held), [pts, held]);
+  const cm = useMemo(() => cmAlphaConfig(pts, held), [pts, held]);
   const span = summary?.span ?? [];
   const [spanRuns, setSpanRuns] = useState<number[] | null>(null);
   const chosen = useMemo(
@@ -40,10 +41,10 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
             <div><dt>(L/D)<sub>max</sub></dt><dd>{fix(stats.ldMax, 1)} at α {fix(stats.alphaLdMaxDeg, 2)}°</dd></div>
             <div><dt>hysteresis</dt><dd>{stats.hysteresis ? <>largest |Δc<sub>l</sub>| {fix(stats.hysteresis.maxDeltaCl, 4)} at α {fix(stats.hysteresis.alphaDeg, 1)}° (down − up)</> : 'no matching up/down points'}</dd></div>
             <div><dt>repeat spread</dt><dd>{stats.repeatSpread === null ? 'no repeats' : `${fix(stats.repeatSpread, 4)} in cl`}</dd></div>
-            <div><dt>points</dt><dd>{pts.length} runs: {ups} on the up-sweep, {pts.length - ups} on the down-sweep; {pts.filter((p) => p.flagged).length} flagged ✕</dd></div>
+            <div><dt>points</dt><dd>{pts.length} runs: {ups} on the up-sweep, {pts.length - ups} on the down-sweep; {pts.filter((p) => p.flagged).length} flagged, {held.size} on hold ✕</dd></div>
           </dl>
         ) : <p>Too few runs for session statistics.</p>}
-        <p className="small muted">Legend: blue = c<sub>l</sub> from surface pressures, orange = c<sub>l</sub> from wall momentum; solid line + filled marker = up-sweep (α rising), dashed line + open marker = down-sweep (α falling); ✕ = flagged run. Corrected values.</p>
+        <p className="small muted">Legend: blue = c<sub>l</sub> from surface pressures, orange = c<sub>l</sub> from wall momentum; solid line + filled marker = up-sweep (α rising), dashed line + open marker = down-sweep (α falling); ✕ = run on hold (a reject flag; see the Day log). Corrected values.</p>
       </section>
 
       <div className="polar-grid">
@@ -87,12 +88,12 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
             <thead><tr><th scope="col">run</th><th scope="col">sweep</th><th scope="col" className="num">α<sub>c</sub> [°]</th><th scope="col" className="num">c<sub>l</sub> p</th><th scope="col" className="num">c<sub>l</sub> mom</th><th scope="col" className="num">c<sub>d</sub> wake</th><th scope="col" className="num">c<sub>d</sub> p</th><th scope="col" className="num">c<sub>m c/4</sub></th><th scope="col">flag</th></tr></thead>
             <tbody>
               {pts.map((p, i) => (
-                <tr key={p.run} className={p.flagged ? 'row-warn' : undefined}>
+                <tr key={p.run} className={held.has(p.run) ? 'row-reject' : p.flagged ? 'row-warn' : undefined}>
                   <td><button type="button" className="link" onClick={() => onOpen(p.run)}>{p.run}</button></td>
                   <td>{dirs[i] === 'up' ? '↗ up' : '↘ down'}</td>
                   <td className="num">{fix(p.alphaDeg, 2)}</td><td className="num">{fix(p.cl, 4)}</td><td className="num">{fix(p.clMom, 4)}</td>
                   <td className="num">{fix(p.cd, 5)}</td><td className="num">{fix(p.cdp, 5)}</td><td className="num">{fix(p.cmc4, 4)}</td>
-                  <td>{p.flagged ? '✕ flagged' : ''}</td>
+                  <td>{held.has(p.run) ? '✖ hold' : p.flagged ? '▲ check' : ''}</td>
                 </tr>
               ))}
             </tbody>

@@ -118,9 +118,9 @@ export interface DemoRunTruth {
   rakeOffset: number;
   /** Upper-surface separation point x/c (1 = attached to the trailing edge). */
   separation: number;
-  /** Panel-method angle and leading-edge suction factor that shape the surface Cp. */
+  /** Panel-method angle and aft de-cambering amplitude (ΔCp) that shape the surface Cp. */
   alphaEffDeg: number;
-  suctionFactor: number;
+  decamber: number;
   /** std/mean of the generated q fluctuation model (not of the drawn samples). */
   qUnsteadiness: number;
 }
@@ -325,13 +325,11 @@ function stations(n: number, withLE: boolean, xMax: number): number[] {
  *  caught, the rest spread to the trailing edge. */
 function shortRowStations(n: number): { upper: number[]; lower: number[] } {
   if (n === 10) {
-    return {
-      upper: [0, 0.005, 0.02, 0.06, 0.15, 0.3, 0.5, 0.75, 0.95],
-      lower: [0.03, 0.15, 0.4, 0.7, 0.95].slice(0, 1 + 0), // replaced below
-    };
+    // The default: eight on the upper surface, dense at the suction peak; two on the lower surface.
+    return { upper: [0, 0.005, 0.015, 0.04, 0.1, 0.25, 0.5, 0.85], lower: [0.05, 0.5] };
   }
-  const nU = Math.max(2, Math.round(n * 0.6));
-  return { upper: stations(nU, true, 0.95), lower: stations(Math.max(1, n - nU), false, 0.95) };
+  const nU = Math.max(2, Math.round(n * 0.7));
+  return { upper: stations(nU, true, 0.9), lower: stations(Math.max(1, n - nU), false, 0.9) };
 }
 
 function buildLayout(nTaps: number, nRake: number, nWall: number): Layout {
@@ -352,9 +350,7 @@ function buildLayout(nTaps: number, nRake: number, nWall: number): Layout {
   const nCU = Math.max(1, Math.ceil(nC * 0.55));
   rows.push({ row: 'C', z: 0, upper: stations(nCU, true, 0.97), lower: stations(nC - nCU, false, 0.97) });
   if (nSide > 0) {
-    const st = nSide === 10
-      ? { upper: [0, 0.005, 0.015, 0.04, 0.1, 0.25, 0.5, 0.85], lower: [0.05, 0.5] }
-      : shortRowStations(nSide);
+    const st = shortRowStations(nSide);
     rows.push({ row: 'P', z: -0.15, ...st }, { row: 'S', z: 0.15, ...st });
   }
   let leakTap: string | null = null;
@@ -553,7 +549,11 @@ function viscousCp(C: Contour, alphaEff: number, kappa: number, sh: Shape): Floa
   const cp = new Float64Array(C.n);
   for (let i = 0; i < C.n; i++) {
     const x = clamp(C.xm[i], 0, 1);
-    let c = 1 + (sol.cp[i] - 1) * (1 + kappa * Math.exp(-x / 0.05));
+    // Aft de-cambering (boundary-layer displacement): the loading is relieved over the rear of the
+    // section, +on the upper surface, −on the lower, zero at the leading edge.
+    const sgn = i < C.iLE ? 1 : -1;
+    const bump = x > 0.15 ? Math.sin((Math.PI * (x - 0.15)) / 0.85) ** 2 : 0;
+    let c = sol.cp[i] + sgn * kappa * bump;
     const w = smoothstep((x - 0.6) / 0.4);
     c += w * (sh.cpTE - c);
     cp[i] = c;
@@ -599,11 +599,13 @@ function contourLoads(C: Contour, cp: Float64Array, alphaDeg: number): { cl: num
   return { cl: cn * Math.cos(a) - ca * Math.sin(a), cdp: cn * Math.sin(a) + ca * Math.cos(a), cmc4: cm + cn / 4 };
 }
 
-/** Solve the panel angle and the leading-edge suction factor for target cl and cd_p (Newton, finite-
- *  difference Jacobian); falls back to the angle alone if the factor would leave [−0.5, 1.5]. */
+/** Solve the panel angle and the aft de-cambering amplitude for target cl and cd_p (Newton, finite-
+ *  difference Jacobian). A lower panel angle tilts the resultant back (cd_p up), de-cambering at the
+ *  geometric angle tilts it forward (cd_p down). Falls back to the angle alone (no de-cambering) if
+ *  the amplitude would leave [−0.3, 1.5]. */
 function solveSurface(C: Contour, alpha: number, clT: number, cdpT: number, sh: Shape): SurfaceSolution {
   const evalAt = (ae: number, k: number) => contourLoads(C, viscousCp(C, ae, k, sh), alpha);
-  let ae = alpha - (sh.xs < 0.6 ? 3 : 1);
+  let ae = alpha - (sh.xs < 0.6 ? 2 : 0.5);
   let k = 0;
   let twoD = true;
   for (let it = 0; it < 30; it++) {
@@ -623,7 +625,7 @@ function solveSurface(C: Contour, alpha: number, clT: number, cdpT: number, sh: 
       const dK = (-r2 * a11 + r1 * a21) / det;
       ae += clamp(dA, -3, 3);
       k += clamp(dK, -0.3, 0.3);
-      if (!Number.isFinite(ae) || k < -0.5 || k > 1.5) {
+      if (!Number.isFinite(ae) || !Number.isFinite(k) || k < -0.3 || k > 1.5) {
         twoD = false;
         k = 0;
         ae = alpha - 1;
@@ -843,7 +845,7 @@ function computeAero(C: Contour, L: Layout, alpha: number, stalled: boolean, fau
       rakeOffset,
       separation: xs,
       alphaEffDeg: surf.alphaEff,
-      suctionFactor: surf.kappa,
+      decamber: surf.kappa,
     },
   };
 }

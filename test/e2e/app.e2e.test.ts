@@ -43,8 +43,9 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
     const rendererDir = path.join(tmp, 'renderer');
     await build({ configFile: path.join(root, 'renderer', 'vite.config.ts'), logLevel: 'warn', build: { outDir: rendererDir, emptyOutDir: true } });
 
-    // 2. The demo session: the committed folder, else the demo generator into a temp folder.
-    demoDir = path.join(root, 'resources', 'demo', 'session');
+    // 2. The demo session: RAKELINE_E2E_SESSION (another session folder to try), else the
+    //    committed demo folder, else the demo generator into a temp folder.
+    demoDir = process.env.RAKELINE_E2E_SESSION ?? path.join(root, 'resources', 'demo', 'session');
     if (!existsSync(path.join(demoDir, 'setup.json'))) {
       demoDir = path.join(tmp, 'demo-session');
       const { demoSession } = await import('../../resources/demo/scenario');
@@ -78,6 +79,17 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
 
   it('imports the demo day, reviews the stall run, overrides a tap, shows polars and prints the day sheet', async () => {
     const shot = (name: string) => page.screenshot({ path: path.join(out, `${name}.png`), fullPage: false });
+    try {
+      await flow(shot);
+    } catch (e) {
+      await shot('failure').catch(() => undefined);
+      const problems = (page as unknown as { problems: string[] }).problems;
+      if (problems.length) console.error(`[e2e] page problems:\n${problems.join('\n')}`);
+      throw e;
+    }
+  }, 150_000);
+
+  async function flow(shot: (name: string) => Promise<unknown>): Promise<void> {
 
     // Fresh database: the window opens on Intake.
     await page.getByRole('heading', { name: 'Intake' }).waitFor();
@@ -88,7 +100,13 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
     await page.getByTestId('files-input').setInputFiles(files);
     const bar = page.getByRole('progressbar', { name: 'Import progress' });
     await bar.waitFor();
-    await page.waitForFunction(() => document.querySelector('[role="progressbar"][aria-label="Import progress"]')?.getAttribute('aria-valuenow') === '100', null, { timeout: 90_000 });
+    await page.waitForFunction(
+      () => document.querySelector('[role="progressbar"][aria-label="Import progress"]')?.getAttribute('aria-valuenow') === '100'
+        || document.querySelector('.errors') !== null,
+      null, { timeout: 90_000 },
+    );
+    const importErrors = page.locator('.errors');
+    if (await importErrors.count()) throw new Error(`The import failed: ${await importErrors.innerText()}`);
     expect(await page.locator('.done-line').innerText()).toMatch(/runs imported/);
     await shot('intake');
 
@@ -99,16 +117,21 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
     const rows = grid.locator('tbody tr');
     expect(await rows.count()).toBeGreaterThan(20);
     await expect.poll(() => page.locator('[data-flag="lift-mismatch"]').count()).toBeGreaterThan(0);
-    await shot('daylog');
 
     // The flagged lift-mismatch run at the top of the α range (post-stall): find it by its badge text.
     const stallRow = rows.filter({ has: page.locator('.badge', { hasText: 'lift methods disagree' }) }).first();
     const runNo = Number(await stallRow.getAttribute('data-run'));
     expect(runNo).toBeGreaterThan(0);
     await stallRow.click();
+    await page.locator('.side-panel').getByText('Lift methods disagree').first().waitFor();
+    await shot('daylog');
+    // Keyboard: ↓ then ↑ comes back to the same run, Enter opens it.
     await grid.focus();
+    await page.keyboard.press('ArrowDown');
+    await page.keyboard.press('ArrowUp');
+    expect(await grid.locator('tr[aria-selected="true"]').getAttribute('data-run')).toBe(String(runNo));
     await page.keyboard.press('Enter');
-    await page.getByRole('heading', { name: `Run ${runNo}` }).waitFor();
+    await page.getByRole('heading', { name: `Run ${runNo}`, exact: true, level: 2 }).waitFor();
     const reason = page.locator('.flags-box .flag-reason', { has: page.locator('[data-flag="lift-mismatch"]') });
     await reason.waitFor();
     const reasonText = await reason.innerText();
@@ -152,6 +175,7 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
     const frame = page.locator('iframe.sheet-frame');
     await frame.waitFor();
     expect(await frame.getAttribute('sandbox')).toBe('');
+    await page.frameLocator('iframe.sheet-frame').locator('h1').waitFor();
     const html = await frame.getAttribute('srcdoc');
     expect(html).toContain('<html');
     await shot('daysheet');
@@ -171,5 +195,5 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
 
     const problems = (page as unknown as { problems: string[] }).problems;
     expect(problems, problems.join('\n')).toEqual([]);
-  }, 150_000);
+  }
 });
