@@ -29,6 +29,58 @@ export function median(a: Samples): number {
   return medianOfSorted(sortedCopy(a));
 }
 
+/** k-th smallest (0-based) of buf[0..n), rearranging buf in place: Hoare's selection algorithm
+ *  (C. A. R. Hoare, "Algorithm 65: FIND", CACM 4 (1961) 321), expected O(n). */
+function selectKth(buf: Float64Array, n: number, k: number): number {
+  let lo = 0;
+  let hi = n - 1;
+  while (hi > lo) {
+    const pivot = buf[(lo + hi) >> 1];
+    let i = lo;
+    let j = hi;
+    while (i <= j) {
+      while (buf[i] < pivot) i++;
+      while (buf[j] > pivot) j--;
+      if (i <= j) {
+        const t = buf[i]; buf[i] = buf[j]; buf[j] = t;
+        i++; j--;
+      }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else return buf[k];
+  }
+  return buf[k];
+}
+
+/** Median of buf[0..n) by selection (rearranges buf). */
+function selectMedian(buf: Float64Array, n: number): number {
+  if (n === 0) return Number.NaN;
+  const h = n >> 1;
+  const upper = selectKth(buf, n, h);
+  if (n % 2 === 1) return upper;
+  // After selecting h, every element below index h is ≤ buf[h]: the lower middle is their max.
+  let lower = -Infinity;
+  for (let i = 0; i < h; i++) if (buf[i] > lower) lower = buf[i];
+  return 0.5 * (lower + upper);
+}
+
+let scratch = new Float64Array(0);
+function scratchOf(n: number): Float64Array {
+  if (scratch.length < n) scratch = new Float64Array(Math.max(n, 2 * scratch.length));
+  return scratch;
+}
+
+/** Median and 1.4826·MAD of the samples, by selection in a reused buffer (no sorting). */
+function medianAndSigma(a: Samples): { m: number; sigma: number } {
+  const n = a.length;
+  const buf = scratchOf(n);
+  for (let i = 0; i < n; i++) buf[i] = a[i];
+  const m = selectMedian(buf, n);
+  for (let i = 0; i < n; i++) buf[i] = Math.abs(a[i] - m);
+  return { m, sigma: MAD_TO_SIGMA * selectMedian(buf, n) };
+}
+
 /** Median absolute deviation scaled by 1.4826 to estimate σ (NaN for an empty array). */
 export function mad(a: Samples): number {
   return madAbout(a, median(a));
@@ -52,8 +104,7 @@ export function channelStats(samples: Samples, spikeK: number): ChannelStats {
   for (let i = 0; i < n0; i++) {
     if (!Number.isFinite(samples[i])) throw new RangeError(`sample ${i + 1} is not a finite number`);
   }
-  const m = median(samples);
-  const sigma = madAbout(samples, m);
+  const { m, sigma } = medianAndSigma(samples);
   const limit = sigma > 0 && spikeK > 0 ? spikeK * sigma : Number.POSITIVE_INFINITY;
 
   // Welford's one-pass mean/variance over the kept samples.

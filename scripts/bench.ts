@@ -13,7 +13,6 @@ import { writeSessionFolder } from '../main/logwriter';
 import { Store } from '../main/store';
 import { importSessionFolder } from '../main/import';
 import { reduceStoredSession } from '../main/reduceService';
-import type { Setup } from '../app/types';
 
 const argv = process.argv.slice(2);
 const args = new Set(argv);
@@ -52,16 +51,6 @@ function folderBytes(dir: string): number {
   return total;
 }
 
-/** The setup schema (app/log/schema.ts) wants tap x/c ≥ 0, but on a cambered section the
- *  upper-surface tap next to the leading edge can sit at a slightly negative x/c (x_u = x − y_t sin θ).
- *  Until that is settled, clamp such taps to 0 here and say so (a shift of ~1e-4 c, no effect on
- *  the timings). */
-function schemaWorkaround(setup: Setup): void {
-  const neg = setup.taps.filter((t) => t.x < 0);
-  if (neg.length) console.log(`note: ${neg.length} tap(s) with x/c < 0 (${neg.map((t) => `${t.id} ${t.x}`).join(', ')}) clamped to 0 for the setup schema`);
-  for (const t of neg) t.x = 0;
-}
-
 function line(label: string, value: string, target = ''): void {
   console.log(`${label.padEnd(44)} ${value.padStart(14)}   ${target}`);
 }
@@ -73,7 +62,6 @@ async function main(): Promise<void> {
   try {
     // 1. generate and write
     const demo = demoSession(LARGE);
-    schemaWorkaround(demo.setup);
     const folder = join(root, 'large');
     let t0 = t();
     writeSessionFolder(folder, demo.setup, demo.index, demo.runs(), writeOpts);
@@ -118,7 +106,6 @@ async function main(): Promise<void> {
 
     // 5. the default demo day
     const day = demoSession();
-    schemaWorkaround(day.setup);
     const dayFolder = join(root, 'day');
     writeSessionFolder(dayFolder, day.setup, day.index, day.runs(), writeOpts);
     const dayStore = Store.open(join(root, 'day.sqlite'));

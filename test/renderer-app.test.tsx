@@ -8,9 +8,11 @@ import { act } from 'react';
 import type { ActiveElement, Chart, ChartEvent, ChartOptions } from 'chart.js';
 import type { RunResult, Settings } from '../app/types';
 import { averageRuns, prepareRuns } from '../app/reduce';
-import { SESSION, byText, click, key, mockApi, reducedMini, resultOf, waitFor } from './renderer-fixtures';
+import { SESSION, byText, click, key, mockApi, reducedMini, resultOf, typeInto, waitFor } from './renderer-fixtures';
 
 const mini = reducedMini();
+let rows = [...mini.rows];
+const reviews: unknown[] = [];
 let settings: Settings = { ...mini.settings };
 const saved: RunResult[] = [];
 const m = mockApi({
@@ -18,7 +20,7 @@ const m = mockApi({
   'sessions.list': () => [SESSION],
   'watch.status': () => ({ folder: null, watching: false }),
   'sessions.get': () => ({ session: SESSION, setup: mini.setup, settings }),
-  'runs.list': () => mini.rows,
+  'runs.list': () => rows,
   'session.summary': () => mini.summary,
   'runs.get': ({ run }) => ({
     row: mini.rows.find((r) => r.run === run)!,
@@ -37,6 +39,10 @@ const m = mockApi({
   'runs.saveResults': ({ results }) => {
     saved.push(...(results as unknown as RunResult[]));
     return { saved: results.map((_, i) => i + 1) };
+  },
+  'runs.review': (p) => {
+    reviews.push(p);
+    return { ok: true };
   },
   'daysheet.html': ({ paper }) => ({ html: `<!doctype html><html><body><h1>Sheet ${paper}</h1></body></html>` }),
 });
@@ -127,5 +133,27 @@ describe('Rakeline window (renderer/main.tsx, mocked getApi)', () => {
     expect(f.getAttribute('srcdoc')).toContain('Sheet A4');
     await click(document.querySelector('input[value="Letter"]'));
     await waitFor(() => expect(document.querySelector('iframe.sheet-frame')?.getAttribute('srcdoc')).toContain('Sheet Letter'));
+  });
+
+  it('records a reviewer rejection with its comment from the Day log', async () => {
+    await click(byText(document, 'nav button', 'Day log'));
+    await waitFor(() => expect(document.querySelector('table[role="grid"]')).not.toBeNull());
+    await click(document.querySelector('tr[data-run="3"]'));
+    const reject = () => byText(document, '.side-panel button', 'Reject') as HTMLButtonElement;
+    await waitFor(() => expect(reject()).not.toBeNull());
+    expect(reject().disabled).toBe(true); // a rejection needs a reason
+    await typeInto(document.querySelector<HTMLTextAreaElement>('#review-comment-3')!, 'stall cell, see notes');
+    expect(reject().disabled).toBe(false);
+    await click(reject());
+    await waitFor(() => expect(reviews).toHaveLength(1));
+    expect(reviews[0]).toEqual({ sessionId: 1, run: 3, verdict: 'rejected', comment: 'stall cell, see notes' });
+  });
+
+  it('shows a run that live mode reports in the table', async () => {
+    expect(document.querySelector('tr[data-run="6"]')).toBeNull();
+    const last = mini.rows[mini.rows.length - 1];
+    rows = [...mini.rows, { ...last, run: 6, time: '2026-11-18T09:20:00Z' }];
+    await act(async () => m.emit('watch.run', { sessionId: 1, run: 6, ok: true, message: 'Run 6 (wind-off zero) arrived.' }));
+    await waitFor(() => expect(document.querySelector('tr[data-run="6"]')).not.toBeNull());
   });
 });

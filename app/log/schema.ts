@@ -110,7 +110,7 @@ export const setupSchema = z
         z
           .object({
             id: id(),
-            x: z.number().min(0).max(1).describe('Chordwise position x/c'),
+            x: z.number().min(-0.05).max(1.05).describe('Chordwise position x/c (a cambered leading edge may sit slightly ahead of x/c = 0)'),
             y: z.number().min(-1).max(1).describe('Contour ordinate y/c'),
             surface: z.enum(['upper', 'lower']),
             row: z.string().min(1).max(16).describe("Spanwise row name; the main row is usually 'C'"),

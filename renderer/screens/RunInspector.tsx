@@ -178,7 +178,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
         <p className="change-line" role="status" aria-live="polite">
           Tap <b>{last.tapId}</b> {last.bad ? 'marked bad' : 'restored'}: <span className="change-text">{changeText(last)}</span>
           {last.stored ? <span className="muted"> · stored (audit kept)</span> : <span className="muted"> · storing…</span>}
-          <span className="muted"> · the override applies to the whole session; other runs change when re-reduced (Day log → Re-reduce all).</span>
+          <span className="muted"> · applies to the whole session: Re-reduce all (Day log) updates the other runs.</span>
         </p>
       ) : null}
 
@@ -197,6 +197,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
           {cp ? (
             <Plot config={cp} label={`Pressure coefficient against x/c, run ${current}, row ${rowName}; Cp axis inverted`} height={360}>
               Cp axis inverted (suction up). Click a tap to mark it bad or restore it; the tap list below does the same.
+              {result.inviscid.some((p) => p.cp < Number(cp.options.scales?.y?.min ?? -Infinity)) ? ' The inviscid suction peak runs off the top of the plot (clipped to keep the measured taps readable).' : ''}
               {' '}{working ? <b>Re-reducing with tap {working} changed…</b> : null}
             </Plot>
           ) : null}
@@ -313,7 +314,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
         <section className="panel" aria-label="Reduction history">
           <h3>Reduction history</h3>
           <table className="history">
-            <thead><tr><th scope="col">reduced</th><th scope="col">core</th><th scope="col" className="num">cl</th><th scope="col" className="num">cd</th><th scope="col">flags</th></tr></thead>
+            <thead><tr><th scope="col">reduced</th><th scope="col">core</th><th scope="col" className="num">c<sub>l</sub></th><th scope="col" className="num">c<sub>d</sub></th><th scope="col">flags</th></tr></thead>
             <tbody>
               {got.history.map((h) => (
                 <tr key={h.resultId}><td>{when(h.reducedAt)}</td><td>{h.coreVersion}</td><td className="num">{fix(h.cl, 4)}</td><td className="num">{fix(h.cd, 5)}</td><td>{h.flags.map((f) => f.code).join(', ') || '–'}</td></tr>

@@ -47,7 +47,6 @@ import type {
 } from '../../app/types';
 import { geometryPoints, naca4Point, panelSolve } from '../../app/panel';
 import { airState } from '../../app/air';
-import { PA_PER_UNIT } from '../../app/units';
 
 // ================================================================================================
 // Public types
@@ -118,8 +117,10 @@ export interface DemoRunTruth {
   rakeOffset: number;
   /** Upper-surface separation point x/c (1 = attached to the trailing edge). */
   separation: number;
-  /** Panel-method angle and aft de-cambering amplitude (ΔCp) that shape the surface Cp. */
+  /** Shape parameters of the surface Cp: panel-method angle, leading-edge suction factor, aft
+   *  de-cambering amplitude (ΔCp). */
   alphaEffDeg: number;
+  suctionFactor: number;
   decamber: number;
   /** std/mean of the generated q fluctuation model (not of the drawn samples). */
   qUnsteadiness: number;
@@ -166,7 +167,7 @@ const STEP_ZERO_RUN = 49;
 /** Offset step of every surface-tap channel from the STEP_ZERO_RUN on, Pa. */
 const ZERO_STEP_PA = 24;
 /** Rake height error of WAKE_RUN, m (probes sat this much lower than logged). */
-const RAKE_OFFSET = -0.16;
+const RAKE_OFFSET = -0.145;
 /** The leaking tap: row C upper surface, nearest this x/c. */
 const LEAK_XC = 0.3;
 const LEAK_ZERO_PA = 46;
@@ -541,19 +542,23 @@ interface SurfaceSolution {
   cmc4: number;
   alphaEff: number;
   kappa: number;
+  decamber: number;
 }
 
-/** Viscous-looking Cp at the panel midpoints (see the module comment). */
-function viscousCp(C: Contour, alphaEff: number, kappa: number, sh: Shape): Float64Array {
+/** Viscous-looking Cp at the panel midpoints (see the module comment): the panel-method Cp at
+ *  alphaEff, its leading-edge suction scaled by (1 + kappa) (Cp − 1 scaled, so stagnation stays at 1),
+ *  an aft de-cambering load (boundary-layer displacement: +decamber·bump on the upper surface, − on
+ *  the lower (upper only when stalled), zero ahead of 0.15c), the trailing-edge recovery deficit (smooth blend to cpTE over
+ *  0.6–1.0c) and the separated plateau past xs. */
+function viscousCp(C: Contour, alphaEff: number, kappa: number, decamber: number, sh: Shape): Float64Array {
   const sol = panelSolve(C.X, C.Y, alphaEff);
   const cp = new Float64Array(C.n);
   for (let i = 0; i < C.n; i++) {
     const x = clamp(C.xm[i], 0, 1);
-    // Aft de-cambering (boundary-layer displacement): the loading is relieved over the rear of the
-    // section, +on the upper surface, −on the lower, zero at the leading edge.
-    const sgn = i < C.iLE ? 1 : -1;
+    // Stalled: the de-cambering relieves the separated upper-surface plateau only.
+    const sgn = i < C.iLE ? 1 : sh.xs < 0.6 ? 0 : -1;
     const bump = x > 0.15 ? Math.sin((Math.PI * (x - 0.15)) / 0.85) ** 2 : 0;
-    let c = sol.cp[i] + sgn * kappa * bump;
+    let c = 1 + (sol.cp[i] - 1) * (1 + kappa * Math.exp(-x / 0.05)) + sgn * decamber * bump;
     const w = smoothstep((x - 0.6) / 0.4);
     c += w * (sh.cpTE - c);
     cp[i] = c;
@@ -599,44 +604,107 @@ function contourLoads(C: Contour, cp: Float64Array, alphaDeg: number): { cl: num
   return { cl: cn * Math.cos(a) - ca * Math.sin(a), cdp: cn * Math.sin(a) + ca * Math.cos(a), cmc4: cm + cn / 4 };
 }
 
-/** Solve the panel angle and the aft de-cambering amplitude for target cl and cd_p (Newton, finite-
- *  difference Jacobian). A lower panel angle tilts the resultant back (cd_p up), de-cambering at the
- *  geometric angle tilts it forward (cd_p down). Falls back to the angle alone (no de-cambering) if
- *  the amplitude would leave [−0.3, 1.5]. */
-function solveSurface(C: Contour, alpha: number, clT: number, cdpT: number, sh: Shape): SurfaceSolution {
-  const evalAt = (ae: number, k: number) => contourLoads(C, viscousCp(C, ae, k, sh), alpha);
-  let ae = alpha - (sh.xs < 0.6 ? 2 : 0.5);
-  let k = 0;
-  let twoD = true;
-  for (let it = 0; it < 30; it++) {
-    const f = evalAt(ae, k);
-    const r1 = f.cl - clT;
-    const r2 = f.cdp - cdpT;
-    if (Math.abs(r1) < 1e-7 && (!twoD || Math.abs(r2) < 1e-7)) break;
-    const fa = evalAt(ae + 0.01, k);
-    const a11 = (fa.cl - f.cl) / 0.01;
-    if (twoD) {
-      const fk = evalAt(ae, k + 0.001);
-      const a12 = (fk.cl - f.cl) / 0.001;
-      const a21 = (fa.cdp - f.cdp) / 0.01;
-      const a22 = (fk.cdp - f.cdp) / 0.001;
-      const det = a11 * a22 - a12 * a21;
-      const dA = (-r1 * a22 + r2 * a12) / det;
-      const dK = (-r2 * a11 + r1 * a21) / det;
-      ae += clamp(dA, -3, 3);
-      k += clamp(dK, -0.3, 0.3);
-      if (!Number.isFinite(ae) || !Number.isFinite(k) || k < -0.3 || k > 1.5) {
-        twoD = false;
-        k = 0;
-        ae = alpha - 1;
+/** Solves shape parameters p = (alphaEff, kappa, decamber), starting from `init`, so that the
+ *  loads (cl, cd_p, cm_c/4) named in `targets` match, by damped Newton with a finite-difference
+ *  Jacobian; `free` lists the indices of the parameters that move (as many as targets). Returns
+ *  null when it does not converge or a parameter leaves its range. */
+function newtonShape(
+  C: Contour, alpha: number, targets: [number, number][], sh: Shape, free: number[], init: number[],
+): number[] | null {
+  const lo = [-30, -0.5, -0.5];
+  const hi = [30, 4, 2];
+  const steps = [0.01, 0.001, 0.001];
+  const wts = [1, 10, 3];
+  const p = [...init];
+  const f = (q: number[]) => {
+    const l = contourLoads(C, viscousCp(C, q[0], q[1], q[2], sh), alpha);
+    const v = [l.cl, l.cdp, l.cmc4];
+    return targets.map(([k, t]) => v[k] - t);
+  };
+  const norm = (r: number[]) => Math.sqrt(r.reduce((s, v, i) => s + (wts[targets[i][0]] * v) ** 2, 0));
+  const m = free.length;
+  let r = f(p);
+  for (let it = 0; it < 40; it++) {
+    if (r.every((v) => Math.abs(v) < 1e-8)) return p;
+    const J: number[][] = Array.from({ length: m }, () => new Array<number>(m).fill(0));
+    for (let j = 0; j < m; j++) {
+      const q = [...p];
+      q[free[j]] += steps[free[j]];
+      const rj = f(q);
+      for (let i = 0; i < m; i++) J[i][j] = (rj[i] - r[i]) / steps[free[j]];
+    }
+    const d = solveLinear(J, r.map((v) => -v));
+    if (!d) return null;
+    let t = 1;
+    let accepted = false;
+    for (let k = 0; k < 12; k++) {
+      const q = [...p];
+      for (let j = 0; j < m; j++) q[free[j]] += t * d[j];
+      if (q.every((v, j) => v >= lo[j] && v <= hi[j])) {
+        const rq = f(q);
+        if (norm(rq) < norm(r)) {
+          for (let j = 0; j < 3; j++) p[j] = q[j];
+          r = rq;
+          accepted = true;
+          break;
+        }
       }
-    } else {
-      ae += clamp(-r1 / a11, -3, 3);
+      t /= 2;
+    }
+    if (!accepted) return null;
+  }
+  return r.every((v) => Math.abs(v) < 1e-6) ? p : null;
+}
+
+/** Gaussian elimination with partial pivoting for a small dense system; null if singular. */
+function solveLinear(A: number[][], b: number[]): number[] | null {
+  const n = b.length;
+  const M = A.map((row, i) => [...row, b[i]]);
+  for (let k = 0; k < n; k++) {
+    let piv = k;
+    for (let i = k + 1; i < n; i++) if (Math.abs(M[i][k]) > Math.abs(M[piv][k])) piv = i;
+    if (!(Math.abs(M[piv][k]) > 1e-14)) return null;
+    [M[k], M[piv]] = [M[piv], M[k]];
+    for (let i = k + 1; i < n; i++) {
+      const fct = M[i][k] / M[k][k];
+      for (let j = k; j <= n; j++) M[i][j] -= fct * M[k][j];
     }
   }
-  const cp = viscousCp(C, ae, k, sh);
+  const x = new Array<number>(n).fill(0);
+  for (let i = n - 1; i >= 0; i--) {
+    let s = M[i][n];
+    for (let j = i + 1; j < n; j++) s -= M[i][j] * x[j];
+    x[i] = s / M[i][i];
+  }
+  return x;
+}
+
+/** Surface distribution hitting the target cl exactly and, where the shape family allows, cd_p
+ *  and cm. Attached: (alphaEff, kappa, decamber) for (cl, cd_p, cm). Stalled: the de-cambering is
+ *  held at 0.4 (upper surface only) and (alphaEff, kappa) give (cl, cd_p) — this family cannot also hold cm there, and cm
+ *  comes out by itself. Last resort: the angle alone for cl. */
+function solveSurface(C: Contour, alpha: number, clT: number, cdpT: number, cmT: number, sh: Shape): SurfaceSolution {
+  const stalledShape = sh.xs < 0.6;
+  const tries: { targets: [number, number][]; free: number[]; init: number[] }[] = stalledShape
+    ? [
+        { targets: [[0, clT], [1, cdpT]], free: [0, 1], init: [alpha - 4, 0, 0.4] },
+        { targets: [[0, clT]], free: [0], init: [alpha - 4, 0, 0.4] },
+      ]
+    : [
+        { targets: [[0, clT], [1, cdpT], [2, cmT]], free: [0, 1, 2], init: [alpha - 0.5, 0, 0] },
+        { targets: [[0, clT], [1, cdpT]], free: [0, 1], init: [alpha - 0.5, 0, 0] },
+        { targets: [[0, clT]], free: [0], init: [alpha - 0.5, 0, 0] },
+      ];
+  let p: number[] | null = null;
+  for (const t of tries) {
+    p = newtonShape(C, alpha, t.targets, sh, t.free, t.init);
+    if (p) break;
+  }
+  if (!p) throw new Error(`demoSession: no surface distribution found for α = ${alpha}° (cl ${clT})`);
+  const [ae, k, dc] = p;
+  const cp = viscousCp(C, ae, k, dc, sh);
   const f = contourLoads(C, cp, alpha);
-  return { cp, cl: f.cl, cdp: f.cdp, cmc4: f.cmc4, alphaEff: ae, kappa: k };
+  return { cp, cl: f.cl, cdp: f.cdp, cmc4: f.cmc4, alphaEff: ae, kappa: k, decamber: dc };
 }
 
 /** Arc-length position of a tap (x/c, y/c) on the panel polygon of its surface. */
@@ -767,10 +835,14 @@ function computeAero(C: Contour, L: Layout, alpha: number, stalled: boolean, fau
   const D0 = 0.5 * (lo + hi);
   const cdWake = jonesContinuous(D0, yc, sig, (y, d) => cpw(y, d));
 
-  // --- surface: cd_p is the wake drag less an invented skin friction.
+  // --- surface: attached, cd_p is the wake drag less an invented skin friction; stalled, the
+  // pressure drag exceeds the rake's Jones drag (the rake under-reads a separated, unsteady wake:
+  // the wake is sized so that the rake captures it, see cdStalled).
   const cdf = 0.006 * (0.4 + 0.6 * Math.min(1, xs));
+  const cdpT = stalled ? 1.4 * cdWake : cdWake - cdf;
   const shape: Shape = { cpTE, xs: xs >= 0.999 ? 1 : xs, nPlat: stalled ? 2 : 1.5 };
-  const surf = solveSurface(C, alpha, clRows, cdWake - cdf, shape);
+  const cmT = -0.085 + 0.003 * Math.max(0, alpha - 8);
+  const surf = solveSurface(C, alpha, clRows, cdpT, cmT, shape);
 
   // --- walls: wall speed u/V = 1 + e + b ± g.
   const e = (x: number) => 0.0012 * (x / H);
@@ -793,14 +865,14 @@ function computeAero(C: Contour, L: Layout, alpha: number, stalled: boolean, fau
   const turb = new Map<string, number>();
   // Surface taps; side rows follow row C with a small spanwise change of the loading (Cp − 1 scaled,
   // so stagnation stays at 1).
-  const rowScale: Record<string, number> = stalled ? { C: 1, P: 0.985, S: 1.01 } : { C: 1, P: 0.99, S: 1.006 };
+  const rowScale: Record<string, number> = stalled ? { C: 1, P: 0.993, S: 1.005 } : { C: 1, P: 0.995, S: 1.003 };
   for (const t of L.taps) {
     const s = tapArcLength(C, t.x, t.y, t.surface);
     const c = cpAt(C, surf.cp, s);
     const k = rowScale[t.row] ?? 1;
     cp.set(`S_${t.id}`, 1 + k * (c - 1));
     const separated = t.surface === 'upper' && t.x > xs;
-    turb.set(`S_${t.id}`, separated ? (stalled ? 0.05 : 0.02) : 0.003);
+    turb.set(`S_${t.id}`, separated ? (stalled ? 0.035 : 0.015) : 0.003);
   }
   // Rake (the probes sit RAKE_OFFSET from their logged y in the wake fault run).
   const rakeOffset = fault === 'wake' ? RAKE_OFFSET : 0;
@@ -845,7 +917,8 @@ function computeAero(C: Contour, L: Layout, alpha: number, stalled: boolean, fau
       rakeOffset,
       separation: xs,
       alphaEffDeg: surf.alphaEff,
-      decamber: surf.kappa,
+      suctionFactor: surf.kappa,
+      decamber: surf.decamber,
     },
   };
 }
@@ -1114,6 +1187,3 @@ export function demoSession(opts: DemoOptions = {}): DemoSession {
     sampleRateHz: SAMPLE_RATE_HZ,
   };
 }
-
-/** Pa per unit, re-exported for the generator script's summary (channel unit → Pa). */
-export const paPerUnit = (u: ChannelUnit): number => (u === 'deg' ? 1 : PA_PER_UNIT[u]);
