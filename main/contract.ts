@@ -3,6 +3,7 @@
 // before any handler runs, and a result type. The renderer imports this file for types only
 // (and may use the schemas for client-side checks); the handlers live in main/handlers.ts.
 import { z } from 'zod';
+import { settingsPatchSchema } from '../app/log/schema';
 import type {
   Flag, RunResult, SessionSummary, Settings, Setup, RawRun, RunInfo, ZeroedRun,
 } from '../app/types';
@@ -11,27 +12,8 @@ const sessionId = z.number().int().positive();
 const runNo = z.number().int().nonnegative();
 const paper = z.enum(['A4', 'Letter']);
 
-/** Settings patch: only known keys, each with a sane range. */
-export const settingsPatchSchema = z
-  .object({
-    liftTolAbs: z.number().min(0).max(1),
-    liftTolRel: z.number().min(0).max(1),
-    spikeK: z.number().min(1).max(50),
-    unsteadyThreshold: z.number().min(0).max(1),
-    wakeEdgeTol: z.number().min(0).max(1),
-    stagnationMargin: z.number().min(0).max(2),
-    tapOutlierCp: z.number().min(0).max(10),
-    leakPa: z.number().min(0).max(1e5),
-    zeroDriftFraction: z.number().min(0).max(1),
-    machLimit: z.number().min(0).max(1),
-    spanSpreadTol: z.number().min(0).max(2),
-    mcDraws: z.number().int().min(0).max(20000),
-    mcSeed: z.number().int(),
-    correction: z.enum(['barlow-rae-pope', 'allen-vincenti', 'none']),
-    badTaps: z.array(z.string().min(1).max(64)).max(10000),
-  })
-  .partial()
-  .strict();
+/** Settings patch: only known keys, each with a sane range (the setup schema's own rules). */
+export { settingsPatchSchema };
 
 /** A file handed over from a file input or drag-and-drop (browser side). */
 const uploadedFile = z.object({
