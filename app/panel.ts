@@ -20,6 +20,7 @@
 // any α are cos α·γ(0°) + sin α·γ(90°), so one factorisation per geometry serves every α.
 
 import type { Geometry, Surface } from './types';
+import { bracket } from './quadrature';
 
 const DEG = Math.PI / 180;
 
@@ -117,13 +118,8 @@ function naturalSpline(s: number[], v: number[]): (t: number) => number {
   }
   for (let i = n - 2; i >= 1; i--) m[i] = d[i] - c[i] * (i + 1 < n - 1 ? m[i + 1] : 0);
   return (t: number) => {
-    let lo = 0;
-    let hi = n - 1;
-    while (hi - lo > 1) {
-      const mid = (lo + hi) >> 1;
-      if (s[mid] <= t) lo = mid;
-      else hi = mid;
-    }
+    const lo = bracket(s, t);
+    const hi = lo + 1;
     const h = s[hi] - s[lo];
     const A = (s[hi] - t) / h;
     const B = (t - s[lo]) / h;

@@ -14,6 +14,19 @@ export function trapezoid(x: ArrayLike<number>, y: ArrayLike<number>): number {
   return s;
 }
 
+/** Index lo of the interval xs[lo] <= x < xs[lo + 1] of a table sorted by increasing x, by
+ *  binary search (clamped to the first and last intervals). */
+export function bracket(xs: ArrayLike<number>, x: number): number {
+  let lo = 0;
+  let hi = xs.length - 1;
+  while (hi - lo > 1) {
+    const mid = (lo + hi) >> 1;
+    if (xs[mid] <= x) lo = mid;
+    else hi = mid;
+  }
+  return lo;
+}
+
 /** Linear interpolation in a table sorted by increasing x; constant beyond the ends. */
 export function interpLinear(xs: ArrayLike<number>, ys: ArrayLike<number>, x: number): number {
   const n = xs.length;
@@ -22,14 +35,8 @@ export function interpLinear(xs: ArrayLike<number>, ys: ArrayLike<number>, x: nu
   }
   if (x <= xs[0]) return ys[0];
   if (x >= xs[n - 1]) return ys[n - 1];
-  // Binary search for the interval xs[lo] <= x < xs[hi].
-  let lo = 0;
-  let hi = n - 1;
-  while (hi - lo > 1) {
-    const mid = (lo + hi) >> 1;
-    if (xs[mid] <= x) lo = mid;
-    else hi = mid;
-  }
+  const lo = bracket(xs, x);
+  const hi = lo + 1;
   const dx = xs[hi] - xs[lo];
   if (dx === 0) return ys[lo];
   const t = (x - xs[lo]) / dx;

@@ -65,6 +65,8 @@ interface Layout {
   areaC2: number;
   /** Pa per channel unit (1 for deg). */
   scale: Map<string, number>;
+  /** Flow-angle channels (not zeroed, not drift-checked). */
+  angle: Set<string>;
 }
 
 const layouts = new WeakMap<Setup, Layout>();
@@ -113,6 +115,7 @@ export function layoutOf(setup: Setup): Layout {
     mainRow,
     areaC2: sectionArea(setup.model.geometry),
     scale,
+    angle: angleChannels(setup),
   };
   layouts.set(setup, layout);
   return layout;
@@ -348,7 +351,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings): Run
     flags.push({ code: 'no-zero', severity: 'warn', reason: 'No wind-off zero was found for this run; channels are not zero-corrected.' });
   } else {
     const limit = settings.zeroDriftFraction * nominal.uncorrected.q;
-    const drifting = Object.entries(run.drift).filter(([n, d]) => L.scale.has(n) && !angleChannels(setup).has(n) && Math.abs(d) > limit);
+    const drifting = Object.entries(run.drift).filter(([n, d]) => L.scale.has(n) && !L.angle.has(n) && Math.abs(d) > limit);
     if (drifting.length) {
       const worst = drifting.reduce((a, b) => (Math.abs(b[1]) > Math.abs(a[1]) ? b : a));
       flags.push({

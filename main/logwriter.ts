@@ -114,13 +114,7 @@ export function writeSessionFolder(dir: string, setup: Setup, index: RunInfo[], 
       if (file === undefined) throw new Error(`writeSessionFolder: run ${raw.info.run} is not in the index`);
       if (long) writeRunLines(long, setup, raw, opts, true);
       else {
-        const out = new BufferedFile(join(dir, file));
-        try {
-          out.write(runHeader(setup, false) + eol);
-          writeRunLines(out, setup, raw, opts, false);
-        } finally {
-          out.close();
-        }
+        writeRunFile(join(dir, file), setup, raw, opts, eol);
       }
     }
   } finally {
@@ -130,19 +124,24 @@ export function writeSessionFolder(dir: string, setup: Setup, index: RunInfo[], 
   writeFileSync(join(dir, INDEX_FILE), lines.join(eol) + eol);
 }
 
-/** Live acquisition: write one more run log and append its line to runs.csv (the run log first,
- *  so a watcher that sees the index line finds the file complete). The folder must exist with a
- *  runs.csv written by writeSessionFolder (same baroUnit and line ending). */
-export function appendRunToFolder(dir: string, setup: Setup, raw: RawRun, opts: Omit<WriteOptions, 'singleFile'> = {}): void {
-  const eol = opts.eol ?? '\n';
-  const file = raw.info.file ?? runFileName(raw.info.run);
-  const out = new BufferedFile(join(dir, file));
+/** One run log file: header line, then one line per sample. */
+function writeRunFile(path: string, setup: Setup, raw: RawRun, opts: WriteOptions, eol: string): void {
+  const out = new BufferedFile(path);
   try {
     out.write(runHeader(setup, false) + eol);
     writeRunLines(out, setup, raw, opts, false);
   } finally {
     out.close();
   }
+}
+
+/** Live acquisition: write one more run log and append its line to runs.csv (the run log first,
+ *  so a watcher that sees the index line finds the file complete). The folder must exist with a
+ *  runs.csv written by writeSessionFolder (same baroUnit and line ending). */
+export function appendRunToFolder(dir: string, setup: Setup, raw: RawRun, opts: Omit<WriteOptions, 'singleFile'> = {}): void {
+  const eol = opts.eol ?? '\n';
+  const file = raw.info.file ?? runFileName(raw.info.run);
+  writeRunFile(join(dir, file), setup, raw, opts, eol);
   const idx = new BufferedFile(join(dir, INDEX_FILE), 'a');
   idx.write(indexLine(raw.info, file, opts.baroUnit) + eol);
   idx.close();
