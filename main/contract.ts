@@ -123,7 +123,7 @@ export type EventName = keyof Events;
 
 /** Errors cross the contract as { error: { kind, message, file?, line?, column? } }. */
 export interface ContractError {
-  kind: 'validation' | 'input' | 'not-found' | 'unsupported' | 'internal';
+  kind: 'validation' | 'input' | 'not-found' | 'unsupported' | 'busy' | 'internal';
   message: string;
   file?: string;
   line?: number;

@@ -8,6 +8,7 @@ import { mkdtemp, readFile, rm, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { Store } from './store';
+import { setImportWorkerScript } from './importPool';
 import {
   createHandlers, dispatch, disposeHandlers, ensureDemoSession, osActor, progressEmitter,
   type Emit, type Handlers, type Paper,
@@ -25,6 +26,8 @@ protocol.registerSchemesAsPrivileged([
 
 const rendererDir = path.join(__dirname, '..', 'renderer');
 const preloadFile = path.join(__dirname, 'preload.cjs');
+// Import worker threads run the bundled dist/main/importWorker.cjs (esbuild entry in scripts/build.mjs).
+setImportWorkerScript(path.join(__dirname, 'importWorker.cjs'));
 const demoFolder = app.isPackaged
   ? path.join(process.resourcesPath, 'demo-session')
   : path.join(app.getAppPath(), 'resources', 'demo', 'session');

@@ -19,7 +19,7 @@ import { isLogError } from '../app/log/errors';
 import { INDEX_FILE, LONG_LOG_DEFAULT, SETUP_FILE } from '../app/log/session';
 import { parseRunIndexDetailed } from '../app/log/runIndex';
 import type { Store, RunRow, ImportProgress, ImportReport } from './store';
-import { folderSource, importSessionFolder, readSession, readSessionFolder, type SessionSource } from './import';
+import { folderSource, importSession, importSessionFolder, type SessionSource } from './import';
 import { reduceStoredSession, sessionSummary } from './reduceService';
 import { daySheetHtml, FLAG_WORDS } from './daysheet';
 import { exportResultsCsv, exportResultsJson } from './export';
@@ -79,6 +79,7 @@ export function toContractError(e: unknown): ContractError {
     if (err.name === 'NotFoundError' || err.kind === 'not-found' || err.code === 'NOT_FOUND') {
       return { kind: 'not-found', message };
     }
+    if (err.name === 'StoreBusyError') return { kind: 'busy', message };
     if (typeof err.code === 'string' && ['ENOENT', 'ENOTDIR', 'EACCES', 'EPERM', 'EISDIR'].includes(err.code)) {
       const out: ContractError = { kind: 'input', message };
       if (typeof err.path === 'string') out.file = err.path;
@@ -356,6 +357,7 @@ export async function readySource(folder: string): Promise<{ source: SessionSour
     folder: base.folder,
     size: async (name) => (name === INDEX_FILE ? indexBytes.byteLength : base.size(name)),
     open: (name) => (name === INDEX_FILE ? (async function* () { yield indexBytes; })() : base.open(name)),
+    path: (name) => (name === INDEX_FILE ? null : base.path!(name)),
   };
   return { source, waiting };
 }
@@ -407,9 +409,8 @@ export function createHandlers(ctx: HandlerContext): Handlers {
     const onProgress = progressEmitter(emit, taskId, interval);
     let report: ImportReport;
     if (asUpload) {
-      // Same parser as a folder import; the temporary folder is not a place to remember.
-      const parsed = await readSessionFolder(folder, onProgress);
-      report = store.importParsed({ ...parsed, folder: null }, actor, { onProgress });
+      // Same import as a folder; the temporary folder is not a place to remember.
+      report = await importSession(store, folderSource(folder), { actor, onProgress, folder: null });
     } else {
       report = await importSessionFolder(store, folder, { actor, onProgress });
     }
@@ -423,7 +424,7 @@ export function createHandlers(ctx: HandlerContext): Handlers {
       const ready = await readySource(state.folder);
       if (!ready || state.stopped) return;
       const onProgress = progressEmitter(emit, 'watch', interval);
-      const report = store.importParsed(await readSession(ready.source, onProgress), actor, { onProgress });
+      const report = await importSession(store, ready.source, { actor, onProgress });
       if (state.stopped) return;
       const refused = report.changedFiles.length
         ? `Not imported from ${state.folder}: ${report.changedFiles.join(', ')} changed after it was imported (the stored runs are kept).`

@@ -1,19 +1,24 @@
-// Reading a session folder from disk: setup.json and runs.csv, then every run log streamed in
-// chunks through the pure parser (app/log) while its SHA-256 is computed (node:crypto) — a file is
-// never read whole, whatever its size. Bad input throws the parser's LogError (file, line,
-// channel, expected). importSessionFolder then stores the result in one transaction.
+// Reading a session folder: setup.json and runs.csv, then every run log streamed in chunks through
+// the pure parser (app/log) while its SHA-256 is computed (node:crypto) — a file is never read
+// whole, whatever its size. Bad input throws the parser's LogError (file, line, channel, expected).
+// importSession / importSessionFolder store run log after run log inside ONE transaction
+// (Store.beginImport) as each is read, so memory holds a few run logs, not the session; large
+// imports read, parse, average and pack the logs on worker threads (main/importPool.ts) while this
+// thread stores them. readSession keeps a whole parsed session in memory (tests, small sources).
 import { createReadStream } from 'node:fs';
 import { stat } from 'node:fs/promises';
 import { createHash } from 'node:crypto';
 import { join, resolve } from 'node:path';
-import type { RawRun } from '../app/types';
+import type { RawRun, RunInfo, Setup } from '../app/types';
 import { LogError } from '../app/log/errors';
 import { parseSetup } from '../app/log/setup';
 import { parseRunIndexDetailed } from '../app/log/runIndex';
 import {
-  INDEX_FILE, SETUP_FILE, collectRuns, missingFileError, parseSessionTexts, planRunFiles, runParserFor,
+  INDEX_FILE, SETUP_FILE, collectRuns, missingFileError, parseSessionTexts, planRunFiles, runParserFor, type RunFilePlan,
 } from '../app/log/session';
-import type { ImportProgress, ImportReport, ParsedSession, Store } from './store';
+import type { ImportProgress, ImportReport, ParsedSession, SourceInfo, Store } from './store';
+import { RunFileReader, type PreparedFile } from './runFile';
+import { ImportPool, workersFor } from './importPool';
 
 /** Where the files of a session come from (a folder on disk, or anything else that streams). */
 export interface SessionSource {
@@ -23,6 +28,8 @@ export interface SessionSource {
   size(name: string): Promise<number | null>;
   /** The file's bytes, chunk by chunk. */
   open(name: string): AsyncIterable<Uint8Array>;
+  /** Path on disk of a file, when it is one (lets worker threads read it themselves). */
+  path?(name: string): string | null;
 }
 
 /** Files of a folder on disk, read in chunks of `chunkSize` bytes. */
@@ -42,6 +49,9 @@ export function folderSource(folder: string, chunkSize = 1 << 20): SessionSource
     open(name) {
       return createReadStream(join(root, name), { highWaterMark: chunkSize });
     },
+    path(name) {
+      return join(root, name);
+    },
   };
 }
 
@@ -58,10 +68,20 @@ export async function readSessionFolder(folder: string, onProgress?: (p: ImportP
   return readSession(opts.source ?? folderSource(folder), onProgress);
 }
 
-export async function readSession(src: SessionSource, onProgress?: (p: ImportProgress) => void): Promise<ParsedSession> {
-  const sources: ParsedSession['sources'] = [];
-  const warnings: string[] = [];
+/** What is read before any run log: setup, index, the plan of run files and their sizes. */
+interface SessionHead {
+  setup: Setup;
+  index: RunInfo[];
+  plans: RunFilePlan[];
+  sizes: Map<string, number>;
+  bytesTotal: number;
+  setupSource: SourceInfo;
+  indexSource: SourceInfo;
+  warnings: string[];
+}
 
+async function readHead(src: SessionSource, onProgress?: (p: ImportProgress) => void): Promise<SessionHead> {
+  const sources: SourceInfo[] = [];
   const readText = async (name: string, what: string): Promise<string> => {
     const size = await src.size(name);
     if (size === null) throw new LogError({ file: name, reason: `the session folder has no ${what} (${name})` });
@@ -86,7 +106,6 @@ export async function readSession(src: SessionSource, onProgress?: (p: ImportPro
   onProgress?.({ phase: 'scan', bytesDone: 0, bytesTotal: 0, runsDone: 0, runsTotal: 0 });
   const setup = parseSetup(await readText(SETUP_FILE, 'setup file'), SETUP_FILE);
   const idx = parseRunIndexDetailed(await readText(INDEX_FILE, 'run index'), INDEX_FILE);
-  warnings.push(...idx.warnings);
   const plans = planRunFiles(idx.runs, idx.lines);
   const sizes = new Map<string, number>();
   for (const plan of plans) {
@@ -95,12 +114,21 @@ export async function readSession(src: SessionSource, onProgress?: (p: ImportPro
     sizes.set(plan.file, s);
   }
   const bytesTotal = [...sizes.values()].reduce((a, b) => a + b, 0);
-  const runsTotal = idx.runs.length;
+  onProgress?.({ phase: 'scan', bytesDone: 0, bytesTotal, runsDone: 0, runsTotal: idx.runs.length });
+  return { setup, index: idx.runs, plans, sizes, bytesTotal, setupSource: sources[0], indexSource: sources[1], warnings: [...idx.warnings] };
+}
+
+/** Parse a whole session into memory; LogError on bad input. */
+export async function readSession(src: SessionSource, onProgress?: (p: ImportProgress) => void): Promise<ParsedSession> {
+  const head = await readHead(src, onProgress);
+  const { setup, plans, bytesTotal } = head;
+  const warnings = head.warnings;
+  const sources: ParsedSession['sources'] = [head.setupSource, head.indexSource];
+  const runsTotal = head.index.length;
   let bytesDone = 0;
   let runsDone = 0;
-  onProgress?.({ phase: 'scan', bytesDone, bytesTotal, runsDone, runsTotal });
 
-  const byRun = new Map(idx.runs.map((r) => [r.run, r]));
+  const byRun = new Map(head.index.map((r) => [r.run, r]));
   const runs: RawRun[] = [];
   for (const plan of plans) {
     const parser = runParserFor(plan, setup);
@@ -120,19 +148,110 @@ export async function readSession(src: SessionSource, onProgress?: (p: ImportPro
     runsDone += got.length;
     onProgress?.({ phase: 'parse', file: plan.file, bytesDone, bytesTotal, runsDone, runsTotal });
   }
-  const order = new Map(idx.runs.map((r, i) => [r.run, i]));
+  const order = new Map(head.index.map((r, i) => [r.run, i]));
   runs.sort((a, b) => order.get(a.info.run)! - order.get(b.info.run)!);
-  return { folder: src.folder, setup, index: idx.runs, runs, sources, warnings };
+  return { folder: src.folder, setup, index: head.index, runs, sources, warnings };
+}
+
+export interface ImportOptions {
+  actor?: string;
+  onProgress?: (p: ImportProgress) => void;
+  /** The folder recorded with the session (default: the source's; null: none, e.g. an upload). */
+  folder?: string | null;
+  /** Worker threads: a number (0 = read on this thread), or 'auto' (default: by size). */
+  workers?: number | 'auto';
+}
+
+/**
+ * Import a session from any source into the store: ONE transaction, run log after run log as they
+ * are read (see the file header). Bad input → LogError and the database as it was.
+ */
+export async function importSession(store: Store, src: SessionSource, opts: ImportOptions = {}): Promise<ImportReport> {
+  const onProgress = opts.onProgress;
+  const head = await readHead(src, onProgress);
+  const folder = opts.folder === undefined ? src.folder : opts.folder;
+  const writer = store.beginImport(
+    { folder, setup: head.setup, index: head.index, setupSource: head.setupSource, indexSource: head.indexSource },
+    opts.actor ?? 'import',
+    { onProgress },
+  );
+  try {
+    if (!writer.refused) {
+      writer.bytes.total = head.bytesTotal;
+      const runsTotal = head.index.length;
+      let runsRead = 0;
+      const onBytes = (file: string, n: number) => {
+        writer.bytes.done += n;
+        onProgress?.({ phase: 'parse', file, bytesDone: writer.bytes.done, bytesTotal: head.bytesTotal, runsDone: runsRead, runsTotal });
+      };
+      const onFile = (f: PreparedFile) => {
+        runsRead += f.runs.length;
+        writer.addFile(f);
+      };
+      const wanted = opts.workers === undefined || opts.workers === 'auto' ? workersFor(head.bytesTotal) : opts.workers;
+      if (wanted > 0 && src.path) await readOnWorkers(src, head, writer.spikeK, wanted, onBytes, onFile);
+      else await readHere(src, head, writer.spikeK, onBytes, onFile);
+    }
+    return writer.finish(head.warnings);
+  } catch (e) {
+    writer.abort();
+    throw e;
+  }
+}
+
+/** Every run log read on this thread, one after the other. */
+async function readHere(
+  src: SessionSource, head: SessionHead, spikeK: number,
+  onBytes: (file: string, n: number) => void, onFile: (f: PreparedFile) => void,
+): Promise<void> {
+  const byRun = new Map(head.index.map((r) => [r.run, r]));
+  for (const plan of head.plans) {
+    const reader = new RunFileReader(plan, head.setup, byRun, spikeK);
+    for await (const chunk of src.open(plan.file)) {
+      reader.push(chunk);
+      onBytes(plan.file, chunk.byteLength);
+    }
+    onFile(reader.end());
+  }
+}
+
+/** Run logs read on worker threads; handed over in index order, a few in flight at a time. */
+async function readOnWorkers(
+  src: SessionSource, head: SessionHead, spikeK: number, workers: number,
+  onBytes: (file: string, n: number) => void, onFile: (f: PreparedFile) => void,
+): Promise<void> {
+  const pool = new ImportPool(workers);
+  const byRun = new Map(head.index.map((r) => [r.run, r]));
+  const started: Promise<PreparedFile>[] = [];
+  const start = (k: number) => {
+    const plan = head.plans[k];
+    const p = pool.run({
+      path: src.path!(plan.file)!, plan, infos: plan.runs.map((r) => byRun.get(r)!), setup: head.setup, spikeK, chunkSize: 1 << 20,
+    }, (n) => onBytes(plan.file, n));
+    p.catch(() => undefined); // awaited in order below; a later file's failure must not go unhandled
+    started[k] = p;
+  };
+  try {
+    const window = workers + 1;
+    for (let k = 0; k < Math.min(window, head.plans.length); k++) start(k);
+    for (let k = 0; k < head.plans.length; k++) {
+      const f = await started[k];
+      delete started[k];
+      if (k + window < head.plans.length) start(k + window);
+      onFile(f);
+    }
+  } finally {
+    await pool.close();
+  }
 }
 
 /** Read a folder and store it (one transaction). */
 export async function importSessionFolder(
   store: Store,
   folder: string,
-  opts: { actor?: string; onProgress?: (p: ImportProgress) => void } = {},
+  opts: Omit<ImportOptions, 'folder'> = {},
 ): Promise<ImportReport> {
-  const parsed = await readSessionFolder(folder, opts.onProgress);
-  return store.importParsed(parsed, opts.actor ?? 'import', { onProgress: opts.onProgress });
+  return importSession(store, folderSource(folder), opts);
 }
 
 /** A session from file texts already in memory (dropped files); SHA-256 of each file's UTF-8 bytes. */

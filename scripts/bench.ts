@@ -3,15 +3,18 @@
 //   large session: demoSession({ runs: 300, taps: 96, rakeProbes: 64, wallTaps: 40, samples: 2000 })
 //   written as CSV (≈ 1.2 GB at 6 significant digits, 2.8 GB with every digit), imported into a fresh database, reduced with Monte Carlo,
 //   one run re-reduced after a tap override; plus the default demo day reduced.
-// Options: --quick (a small session, for a smoke run), --keep (keep the files; path printed),
-// --digits N (significant digits of the logged values, default 6; 0 = every digit).
-import { mkdtempSync, readdirSync, rmSync, statSync } from 'node:fs';
+// Options: --quick (a small session, for a smoke run), --keep (keep the databases; path printed),
+// --digits N (significant digits of the logged values, default 6; 0 = every digit), --fresh
+// (generate the session files again rather than reuse those kept in .bench/ from an earlier run;
+// generating the large session takes about a minute and a half and is not part of any figure).
+import { existsSync, mkdtempSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { demoSession, type DemoOptions } from '../resources/demo/scenario';
 import { writeSessionFolder } from '../main/logwriter';
 import { Store } from '../main/store';
 import { importSessionFolder } from '../main/import';
+import { fileURLToPath } from 'node:url';
 import { reduceStoredSession } from '../main/reduceService';
 
 const argv = process.argv.slice(2);
@@ -22,7 +25,8 @@ if (args.has('--help')) {
   console.log('usage: npm run bench -- [--quick] [--keep] [--digits N]\n' +
     '  --quick     a small session (smoke run)\n' +
     '  --keep      keep the generated files and databases (path printed)\n' +
-    '  --digits N  significant digits of the logged sample values (default 6, like a scanner log; 0 = exact)');
+    '  --digits N  significant digits of the logged sample values (default 6, like a scanner log; 0 = exact)\n' +
+    '  --fresh     generate the session files again (they are kept in .bench/ between runs)');
   process.exit(0);
 }
 const digitsArg = argv.indexOf('--digits');
@@ -60,13 +64,19 @@ async function main(): Promise<void> {
   console.log(`Rakeline bench${quick ? ' (quick)' : ''} — files in ${root}`);
   console.log(`large session: ${JSON.stringify(LARGE)}, values written with ${DIGITS ? `${DIGITS} significant digits` : 'all digits (exact)'}`);
   try {
-    // 1. generate and write
+    // 1. generate and write (or reuse the files of an earlier run: same options, same bytes)
     const demo = demoSession(LARGE);
-    const folder = join(root, 'large');
+    const cache = join(fileURLToPath(new URL('..', import.meta.url)), '.bench',
+      `session-${LARGE.runs}r-${LARGE.taps}t-${LARGE.rakeProbes}p-${LARGE.wallTaps}w-${LARGE.samples}s-d${DIGITS}`);
+    const folder = cache;
     let t0 = t();
-    writeSessionFolder(folder, demo.setup, demo.index, demo.runs(), writeOpts);
-    const bytes = folderBytes(folder);
-    line('generate + write CSV', `${((t() - t0) / 1000).toFixed(1)} s`);
+    if (args.has('--fresh') || !existsSync(join(cache, '.complete'))) {
+      rmSync(cache, { recursive: true, force: true });
+      writeSessionFolder(folder, demo.setup, demo.index, demo.runs(), writeOpts);
+      writeFileSync(join(cache, '.complete'), new Date().toISOString() + '\n');
+      line('generate + write CSV', `${((t() - t0) / 1000).toFixed(1)} s`);
+    } else line('session files reused from', folder.replace(/^.*\/(\.bench\/)/, '$1'));
+    const bytes = folderBytes(folder) - statSync(join(cache, '.complete')).size;
     line('session folder size', `${mb(bytes).toFixed(0)} MB`, `(${demo.index.length} runs, ${demo.setup.channels.length} channels)`);
 
     // 2. import into a fresh database

@@ -38,7 +38,7 @@ const sqliteShim = {
 export async function buildMain({ quiet = false, outdir = r('dist', 'main') } = {}) {
   await esbuild({
     absWorkingDir: root,
-    entryPoints: { electron: r('main', 'electron.ts'), preload: r('main', 'preload.ts') },
+    entryPoints: { electron: r('main', 'electron.ts'), preload: r('main', 'preload.ts'), importWorker: r('main', 'importWorker.ts') },
     outdir,
     outExtension: { '.js': '.cjs' },
     bundle: true,

@@ -3,7 +3,7 @@
 import { join } from 'node:path';
 import Database from 'better-sqlite3';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { NotFoundError, SCHEMA_VERSION, Store } from '../main/store';
+import { MIGRATIONS, NotFoundError, SCHEMA_VERSION, Store } from '../main/store';
 import { importSessionFolder } from '../main/import';
 import { DEFAULT_SETTINGS } from '../app/types';
 import { cleanupTempDirs, miniFolder, tempDir } from './helpers/store-fixtures';
@@ -23,7 +23,7 @@ afterAll(() => {
 describe('schema and pragmas', () => {
   it('migrates a new file to the latest version, with WAL and foreign keys on', () => {
     expect(store.schemaVersion()).toBe(SCHEMA_VERSION);
-    expect(store.db.prepare('SELECT version, name FROM schema_migrations').all()).toEqual([{ version: 1, name: 'initial schema' }]);
+    expect(store.db.prepare('SELECT version, name FROM schema_migrations ORDER BY version').all()).toEqual(MIGRATIONS.map((m) => ({ version: m.version, name: m.name })));
     expect(store.db.pragma('journal_mode', { simple: true })).toBe('wal');
     expect(store.db.pragma('foreign_keys', { simple: true })).toBe(1);
   });
@@ -32,12 +32,31 @@ describe('schema and pragmas', () => {
     const file = join(dir, 'other.sqlite');
     Store.open(file).close();
     const s = Store.open(file);
-    expect(s.db.prepare('SELECT COUNT(*) AS n FROM schema_migrations').get()).toEqual({ n: 1 });
+    expect(s.db.prepare('SELECT COUNT(*) AS n FROM schema_migrations').get()).toEqual({ n: MIGRATIONS.length });
     s.close();
     const raw = new Database(file);
     raw.pragma('user_version = 99');
     raw.close();
-    expect(() => Store.open(file)).toThrow(/schema version 99 is newer than this Rakeline understands \(1\)/);
+    expect(() => Store.open(file)).toThrow(new RegExp(`schema version 99 is newer than this Rakeline understands \\(${SCHEMA_VERSION}\\)`));
+  });
+
+  it('a version-1 file (samples as doubles) migrates and its samples read back unchanged', () => {
+    const file = join(dir, 'v1.sqlite');
+    const raw = new Database(file);
+    raw.pragma('journal_mode = WAL');
+    raw.exec(MIGRATIONS[0].sql);
+    raw.exec("CREATE TABLE schema_migrations (version INTEGER PRIMARY KEY, name TEXT NOT NULL, applied_at TEXT NOT NULL); INSERT INTO schema_migrations VALUES (1, 'initial schema', '2026-01-01')");
+    raw.pragma('user_version = 1');
+    raw.exec("INSERT INTO sessions (title, date, facility, model, folder, created_at, imported_at) VALUES ('old', '2026-01-01', 'f', 'm', NULL, 'x', 'x')");
+    raw.exec("INSERT INTO runs VALUES (1, 1, 'zero', '2026-01-01T08:00:00Z', 0, 101325, 20, 50, NULL, NULL, 3, 0)");
+    const values = Float64Array.from([1.5, -0.1 + 0.2, Math.PI]);
+    raw.prepare("INSERT INTO samples (session_id, run, channel, dtype, n, data) VALUES (1, 1, 'P1', 'f64le', 3, ?)").run(Buffer.from(values.buffer));
+    raw.close();
+    const s = Store.open(file);
+    expect(s.schemaVersion()).toBe(SCHEMA_VERSION);
+    expect(s.getSamples(1, 1, 'P1')).toEqual(values);
+    expect(s.db.pragma('integrity_check', { simple: true })).toBe('ok');
+    s.close();
   });
 
   it('foreign keys hold: no samples for a run that does not exist', () => {

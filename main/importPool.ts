@@ -1,0 +1,117 @@
+// Worker threads that read, parse, average and pack run logs for an import (main/importWorker.ts),
+// so that a large session uses every core while the calling thread stores what they hand back.
+// Results are taken in the order the files were asked for; at most `workers + 1` files are in
+// flight, which bounds the memory to a few run logs whatever the session's size.
+import { availableParallelism } from 'node:os';
+import path from 'node:path';
+import { Worker } from 'node:worker_threads';
+import { LogError, type LogErrorDetail } from '../app/log/errors';
+import type { PreparedFile } from './runFile';
+import type { WorkerJob, WorkerReply } from './importWorker';
+
+let workerScript: string | URL | null = null;
+
+/** Where the worker's entry is: set by the packaged app (dist/main/importWorker.cjs); from the
+ *  TypeScript sources it is main/importWorker.boot.mjs next to this file. */
+export function setImportWorkerScript(script: string | URL): void {
+  workerScript = script;
+}
+
+function defaultScript(): string | URL {
+  if (workerScript) return workerScript;
+  const here = typeof import.meta === 'object' && import.meta && typeof import.meta.url === 'string' ? import.meta.url : '';
+  if (here) return new URL('./importWorker.boot.mjs', here);
+  // A CommonJS bundle (the desktop app) without an explicit script: next to the bundle.
+  return path.join(typeof __dirname === 'string' ? __dirname : process.cwd(), 'importWorker.cjs');
+}
+
+/** Threads for an import of `bytes` bytes: none below 64 MB (starting threads costs more than it
+ *  saves), else one per core. */
+export function workersFor(bytes: number): number {
+  if (bytes < 64 * 1024 * 1024) return 0;
+  return Math.max(1, Math.min(4, availableParallelism()));
+}
+
+type Pending = {
+  job: Omit<WorkerJob, 'id'>;
+  onBytes: (n: number) => void;
+  resolve: (f: PreparedFile) => void;
+  reject: (e: Error) => void;
+};
+
+function errorOf(e: { name: string; message: string; detail?: Record<string, unknown> }): Error {
+  if (e.name === 'LogError' && e.detail && typeof e.detail.file === 'string') return new LogError(e.detail as unknown as LogErrorDetail);
+  const err = new Error(e.message);
+  err.name = e.name;
+  return err;
+}
+
+export class ImportPool {
+  private readonly workers: Worker[] = [];
+  private readonly idle: Worker[] = [];
+  private readonly queue: { id: number; p: Pending }[] = [];
+  private readonly running = new Map<number, Pending>();
+  private nextId = 1;
+  private failed: Error | null = null;
+  private closed = false;
+
+  constructor(size: number, script: string | URL = defaultScript()) {
+    for (let i = 0; i < size; i++) {
+      const w = new Worker(script);
+      w.on('message', (m: WorkerReply) => this.onMessage(w, m));
+      w.on('error', (e) => this.fail(e instanceof Error ? e : new Error(String(e))));
+      w.on('exit', (code) => {
+        if (!this.closed && code !== 0) this.fail(new Error(`an import worker stopped (exit code ${code})`));
+      });
+      this.workers.push(w);
+      this.idle.push(w);
+    }
+  }
+
+  /** Read one run log on a worker. */
+  run(job: Omit<WorkerJob, 'id'>, onBytes: (n: number) => void): Promise<PreparedFile> {
+    return new Promise((resolve, reject) => {
+      if (this.failed) return reject(this.failed);
+      this.queue.push({ id: this.nextId++, p: { job, onBytes, resolve, reject } });
+      this.pump();
+    });
+  }
+
+  private pump(): void {
+    while (this.idle.length && this.queue.length) {
+      const w = this.idle.pop()!;
+      const { id, p } = this.queue.shift()!;
+      this.running.set(id, p);
+      (w as Worker & { jobId?: number }).jobId = id;
+      w.postMessage({ ...p.job, id } satisfies WorkerJob);
+    }
+  }
+
+  private onMessage(w: Worker, m: WorkerReply): void {
+    const p = this.running.get(m.id);
+    if (!p) return;
+    if (m.kind === 'progress') {
+      p.onBytes(m.bytes);
+      return;
+    }
+    this.running.delete(m.id);
+    this.idle.push(w);
+    if (m.kind === 'done') p.resolve(m.file);
+    else p.reject(errorOf(m.error));
+    this.pump();
+  }
+
+  private fail(e: Error): void {
+    if (this.failed) return;
+    this.failed = e;
+    for (const p of this.running.values()) p.reject(e);
+    for (const q of this.queue) q.p.reject(e);
+    this.running.clear();
+    this.queue.length = 0;
+  }
+
+  async close(): Promise<void> {
+    this.closed = true;
+    await Promise.all(this.workers.map((w) => w.terminate()));
+  }
+}
