@@ -385,6 +385,13 @@ export interface RunResult {
   inviscid: { x: number; cp: number; surface: Surface }[];
 }
 
+/** What the session summary (app/reduce.ts summariseSession) needs of a run's result: the store
+ *  keeps it beside the full result, so a summary never decodes every stored result. */
+export type ResultDigest = Pick<RunResult, 'run' | 'corrected' | 'uncorrected' | 'correction' | 'clMomentum' | 'flags'> & {
+  rows: Pick<RowLoads, 'row' | 'z' | 'cl'>[];
+  settings: Pick<Settings, 'spanSpreadTol'>;
+};
+
 export interface SessionStats {
   /** dcl/dα per degree over the linear range, with its fit range. */
   liftSlopePerDeg: number;

@@ -20,7 +20,7 @@ import { INDEX_FILE, LONG_LOG_DEFAULT, SETUP_FILE } from '../app/log/session';
 import { parseRunIndexDetailed } from '../app/log/runIndex';
 import type { Store, RunRow, ImportProgress, ImportReport } from './store';
 import { folderSource, importSession, importSessionFolder, type SessionSource } from './import';
-import { reduceStoredSession, sessionSummary } from './reduceService';
+import { reduceStoredSession, sessionSummary, zeroRunsFor } from './reduceService';
 import { daySheetHtml, FLAG_WORDS } from './daysheet';
 import { exportResultsCsv, exportResultsJson } from './export';
 
@@ -521,7 +521,8 @@ export function createHandlers(ctx: HandlerContext): Handlers {
       if (row.kind !== 'data') fail('validation', `Invalid payload for "runs.reductionInput": run: run ${run} is a wind-off zero, not a data run`);
       const setup = store.getSetup(sessionId);
       const settings = store.getSettings(sessionId);
-      const zeroed = prepareRuns(setup, store.getAveraged(sessionId)).find((z) => z.info.run === run);
+      const needed = zeroRunsFor(store.getIndex(sessionId), new Set([run]));
+      const zeroed = prepareRuns(setup, store.getAveraged(sessionId, needed)).find((z) => z.info.run === run);
       if (!zeroed) fail('not-found', `Run ${run} of session ${sessionId} has no stored samples.`);
       return { setup, settings, zeroed };
     },

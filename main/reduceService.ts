@@ -1,6 +1,6 @@
 // Reducing what the store holds with the pure core (app/reduce.ts) and storing the results as a
 // new reduction (history kept). The session summary comes from the latest stored results.
-import type { RunResult, SessionSummary, Settings } from '../app/types';
+import type { RunInfo, RunResult, SessionSummary, Settings } from '../app/types';
 import { averageRuns, prepareRuns, reduceRun, summariseSession } from '../app/reduce';
 import type { ImportProgress, Store } from './store';
 
@@ -12,18 +12,21 @@ export function reduceStoredSession(
   const setup = store.getSetup(sessionId);
   const stored = store.getSettings(sessionId);
   const settings: Settings = { ...stored, ...(opts.settings ?? {}) };
-  // Averages at the session's spike threshold come from the store; another threshold for this
-  // reduction only is applied to the stored samples.
-  const averaged = settings.spikeK === stored.spikeK
-    ? store.getAveraged(sessionId)
-    : averageRuns(store.getIndex(sessionId).map((i) => store.getRawRun(sessionId, i.run)), settings);
+  const index = store.getIndex(sessionId);
   const wanted = opts.runs ? new Set(opts.runs) : null;
   if (wanted) {
-    const known = new Map(averaged.map((a) => [a.info.run, a.info.kind]));
+    const known = new Map(index.map((i) => [i.run, i.kind]));
     for (const r of wanted) {
       if (!known.has(r)) throw new Error(`unknown run ${r} in session ${sessionId}`);
     }
   }
+  // Only the runs reduced and the wind-off zeros around them are read (zeroRunsFor).
+  const needed = wanted ? zeroRunsFor(index, wanted) : null;
+  // Averages at the session's spike threshold come from the store; another threshold for this
+  // reduction only is applied to the stored samples.
+  const averaged = settings.spikeK === stored.spikeK
+    ? store.getAveraged(sessionId, needed ?? undefined)
+    : averageRuns(index.filter((i) => !needed || needed.has(i.run)).map((i) => store.getRawRun(sessionId, i.run)), settings);
   const zeroed = prepareRuns(setup, averaged).filter((z) => !wanted || wanted.has(z.info.run));
   const results: RunResult[] = [];
   const total = zeroed.length;
@@ -43,4 +46,35 @@ export function sessionSummary(store: Store, sessionId: number, opts: { includeR
   const rejected = new Set(rows.filter((r) => r.review?.verdict === 'rejected').map((r) => r.run));
   const results = store.latestResults(sessionId).filter((r) => opts.includeRejected || !rejected.has(r.run));
   return summariseSession(setup, results, store.getIndex(sessionId));
+}
+
+/**
+ * The runs a reduction of `wanted` needs: those runs, and for each data run among them the
+ * wind-off zeros nearest before and after it in time (every zero run at those two times), which
+ * are all app/samples.ts applyZeros ever uses. Times that do not parse are left to applyZeros to
+ * report: then every zero run is included.
+ */
+export function zeroRunsFor(index: RunInfo[], wanted: ReadonlySet<number>): Set<number> {
+  const out = new Set<number>(wanted);
+  const zeros = index.filter((i) => i.kind === 'zero').map((z) => ({ run: z.run, t: Date.parse(z.time) }));
+  if (zeros.some((z) => Number.isNaN(z.t))) {
+    for (const z of zeros) out.add(z.run);
+    return out;
+  }
+  for (const info of index) {
+    if (!wanted.has(info.run) || info.kind !== 'data') continue;
+    const t = Date.parse(info.time);
+    if (Number.isNaN(t)) {
+      for (const z of zeros) out.add(z.run);
+      continue;
+    }
+    let before = -Infinity;
+    let after = Infinity;
+    for (const z of zeros) {
+      if (z.t <= t && z.t > before) before = z.t;
+      if (z.t > t && z.t < after) after = z.t;
+    }
+    for (const z of zeros) if (z.t === before || z.t === after) out.add(z.run);
+  }
+  return out;
 }

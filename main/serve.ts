@@ -51,7 +51,7 @@ export interface BrowserServer {
 }
 
 const STATUS_OF: Record<ContractError['kind'], number> = {
-  validation: 400, input: 422, 'not-found': 404, unsupported: 501, internal: 500,
+  validation: 400, input: 422, 'not-found': 404, unsupported: 501, busy: 409, internal: 500,
 };
 
 class HttpError extends Error {

@@ -20,7 +20,7 @@ import { dirname, resolve } from 'node:path';
 import Database from 'better-sqlite3';
 import {
   CORE_VERSION,
-  type ChannelStats, type Flag, type RawRun, type RunInfo, type RunKind, type RunResult, type Settings, type Setup,
+  type ChannelStats, type Flag, type RawRun, type ResultDigest, type RunInfo, type RunKind, type RunResult, type Settings, type Setup,
 } from '../app/types';
 import { averageRun } from '../app/samples';
 import { correctedMomentumCl, resolveSettings } from '../app/reduce';
@@ -193,10 +193,12 @@ CREATE VIEW latest_reductions AS
   },
   {
     version: 2,
-    name: 'compact samples (decimal mantissas), import on its own connection',
+    name: 'compact samples (decimal mantissas); result digests for the session summary',
     // Samples logged as decimal text are kept as packed integer mantissas with their exponent and
     // unit factor (main/sampleCodec.ts), ~2.5 bytes a sample instead of 8; rows stored before
     // keep their doubles ('f64le'). SQLite cannot alter a CHECK constraint: the table is rebuilt.
+    // Each reduction also keeps the digest the session summary needs (NULL for older ones, whose
+    // full result is read instead: the table is append-only, so no back-filling).
     sql: `
 CREATE TABLE samples_v2 (
   id INTEGER PRIMARY KEY,
@@ -212,6 +214,7 @@ CREATE TABLE samples_v2 (
 INSERT INTO samples_v2 (id, session_id, run, channel, dtype, n, data) SELECT id, session_id, run, channel, dtype, n, data FROM samples;
 DROP TABLE samples;
 ALTER TABLE samples_v2 RENAME TO samples;
+ALTER TABLE reductions ADD COLUMN digest_json TEXT;
 `,
   },
 ];
@@ -462,13 +465,22 @@ export class Store {
     return { info, channels };
   }
 
-  /** Averaged statistics of every run (index order) at the session's spike threshold; statistics
-   *  stored for another threshold are recomputed from the samples and the cache is refreshed. */
-  getAveraged(sessionId: number): Averaged[] {
+  /** Averaged statistics of every run (index order), or of the runs listed, at the session's spike
+   *  threshold; statistics stored for another threshold are recomputed from the samples and the
+   *  cache is refreshed. */
+  getAveraged(sessionId: number, only?: Iterable<number>): Averaged[] {
     const spikeK = this.getSettings(sessionId).spikeK;
-    const runs = this.db.prepare('SELECT * FROM runs WHERE session_id = ? ORDER BY index_pos').all(sessionId) as RunDbRow[];
-    const statRows = this.db.prepare('SELECT run, channel, spike_k, mean, std, n, std_err, rejected FROM channel_stats WHERE session_id = ?').all(sessionId) as
-      { run: number; channel: string; spike_k: number; mean: number | null; std: number | null; n: number; std_err: number | null; rejected: number }[];
+    type StatRow = { run: number; channel: string; spike_k: number; mean: number | null; std: number | null; n: number; std_err: number | null; rejected: number };
+    let runs = this.db.prepare('SELECT * FROM runs WHERE session_id = ? ORDER BY index_pos').all(sessionId) as RunDbRow[];
+    let statRows: StatRow[];
+    if (only === undefined) {
+      statRows = this.db.prepare('SELECT run, channel, spike_k, mean, std, n, std_err, rejected FROM channel_stats WHERE session_id = ?').all(sessionId) as StatRow[];
+    } else {
+      const want = new Set(only);
+      runs = runs.filter((r) => want.has(r.run));
+      const q = this.db.prepare('SELECT run, channel, spike_k, mean, std, n, std_err, rejected FROM channel_stats WHERE session_id = ? AND run = ?');
+      statRows = runs.flatMap((r) => q.all(sessionId, r.run) as StatRow[]);
+    }
     const byRun = new Map<number, typeof statRows>();
     for (const s of statRows) {
       let l = byRun.get(s.run);
@@ -664,8 +676,8 @@ export class Store {
     const kinds = new Map((this.db.prepare('SELECT run, kind FROM runs WHERE session_id = ?').all(sessionId) as { run: number; kind: RunKind }[]).map((r) => [r.run, r.kind]));
     for (const r of results) checkResult(r, kinds, sessionId);
     const ins = this.db.prepare(`INSERT INTO reductions (session_id, run, reduced_at, core_version, actor, audit_id, settings_json, result_json,
-      q, re, v, cl, cl_mom, cl_wall, cd, cdp, cmc4, gamma_pressure, gamma_momentum, alpha_corr_deg, flag_count)
-      VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`);
+      q, re, v, cl, cl_mom, cl_wall, cd, cdp, cmc4, gamma_pressure, gamma_momentum, alpha_corr_deg, flag_count, digest_json)
+      VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`);
     const insFlag = this.db.prepare('INSERT INTO flags (reduction_id, seq, code, severity, reason) VALUES (?, ?, ?, ?, ?)');
     return this.db.transaction(() => {
       const at = now();
@@ -678,7 +690,8 @@ export class Store {
         const id = Number(
           ins.run(sessionId, r.run, at, r.coreVersion, actor, auditId, encodeJson(r.settings), encodeJson(r),
             dbNum(c.q), dbNum(c.Re), dbNum(c.V), dbNum(c.cl), dbNum(correctedMomentumCl(r)), dbNum(r.walls?.clWall ?? NaN), dbNum(c.cd), dbNum(c.cdp),
-            dbNum(c.cmc4), dbNum(r.circulation.pressure), dbNum(r.circulation.momentum), dbNum(c.alphaDeg), r.flags.length).lastInsertRowid,
+            dbNum(c.cmc4), dbNum(r.circulation.pressure), dbNum(r.circulation.momentum), dbNum(c.alphaDeg), r.flags.length,
+            encodeJson(resultDigest(r))).lastInsertRowid,
         );
         r.flags.forEach((f, k) => insFlag.run(id, k, f.code, f.severity, f.reason));
         return id;
@@ -701,6 +714,15 @@ export class Store {
     const rows = this.db.prepare(`SELECT lr.result_json FROM latest_reductions lr JOIN runs r ON r.session_id = lr.session_id AND r.run = lr.run
       WHERE lr.session_id = ? ORDER BY r.index_pos`).all(sessionId) as { result_json: string }[];
     return rows.map((r) => decodeJson<RunResult>(r.result_json));
+  }
+
+  /** Digest of the latest result of every reduced run, index order (the session summary's input). */
+  latestDigests(sessionId: number): ResultDigest[] {
+    this.getSession(sessionId);
+    const rows = this.db.prepare(`SELECT lr.digest_json, CASE WHEN lr.digest_json IS NULL THEN lr.result_json END AS result_json
+      FROM latest_reductions lr JOIN runs r ON r.session_id = lr.session_id AND r.run = lr.run
+      WHERE lr.session_id = ? ORDER BY r.index_pos`).all(sessionId) as { digest_json: string | null; result_json: string | null }[];
+    return rows.map((r) => (r.digest_json !== null ? decodeJson<ResultDigest>(r.digest_json) : resultDigest(decodeJson<RunResult>(r.result_json!))));
   }
 
   /** Every reduction of a run, oldest first. */
@@ -916,6 +938,20 @@ export class ImportWriter {
       this.release();
     }
   }
+}
+
+/** What the session summary needs of a result (ResultDigest). */
+export function resultDigest(r: RunResult): ResultDigest {
+  return {
+    run: r.run,
+    corrected: r.corrected,
+    uncorrected: r.uncorrected,
+    correction: r.correction,
+    clMomentum: r.clMomentum,
+    flags: r.flags,
+    rows: r.rows.map((x) => ({ row: x.row, z: x.z, cl: x.cl })),
+    settings: { spanSpreadTol: r.settings.spanSpreadTol },
+  };
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -4,7 +4,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Store } from '../main/store';
 import { importSessionFolder, readSessionFolder } from '../main/import';
-import { reduceStoredSession, sessionSummary } from '../main/reduceService';
+import { reduceStoredSession, sessionSummary, zeroRunsFor } from '../main/reduceService';
 import { writeSessionFolder } from '../main/logwriter';
 import { reduceRawSession } from '../app/reduce';
 import { averageRun } from '../app/samples';
@@ -114,4 +114,27 @@ describe('reduceStoredSession', () => {
     expect(() => store.saveResults(1, [{ ...r, run: zero }], 'x')).toThrow(/is a wind-off zero/);
     expect(() => store.saveResults(1, [{ ...r, run: 999 }], 'x')).toThrow(/unknown run 999/);
   });
+});
+
+describe('re-reducing part of a session', () => {
+  it('one run re-reduced alone reads only it and its wind-off zeros, and gives the whole-session answer', async () => {
+    const own = Store.open(join(dir, 'partial.sqlite'));
+    await importSessionFolder(own, join(dir, 'day'), { actor: 'test' });
+    const index = own.getIndex(1);
+    const whole = reduceStoredSession(own, 1, { actor: 'test' }).results;
+    for (const run of dataRuns) {
+      const needed = zeroRunsFor(index, new Set([run]));
+      // The run itself and at most the zero before and the zero after it.
+      expect(needed.has(run)).toBe(true);
+      const zeros = [...needed].filter((r) => r !== run);
+      expect(zeros.length).toBeLessThanOrEqual(2);
+      expect(zeros.every((z) => index.find((i) => i.run === z)!.kind === 'zero')).toBe(true);
+      const alone = reduceStoredSession(own, 1, { runs: [run], actor: 'test' });
+      expect(alone.results).toEqual([whole.find((r) => r.run === run)]);
+    }
+    // The summary from the stored digests equals the one from the full results.
+    expect(sessionSummary(own, 1)).toEqual(reduceRawSession(parsed.setup, parsed.runs).summary);
+    own.close();
+  });
+
 });
