@@ -188,9 +188,31 @@ export async function importSession(store: Store, src: SessionSource, opts: Impo
         runsRead += f.runs.length;
         writer.addFile(f);
       };
-      const wanted = opts.workers === undefined || opts.workers === 'auto' ? workersFor(head.bytesTotal) : opts.workers;
-      if (wanted > 0 && src.path) await readOnWorkers(src, head, writer.spikeK, wanted, onBytes, onFile);
-      else await readHere(src, head, writer.spikeK, onBytes, onFile);
+      // Run logs already stored with these very bytes are only hashed, not parsed again.
+      const plans: RunFilePlan[] = [];
+      for (const plan of head.plans) {
+        const size = head.sizes.get(plan.file)!;
+        const known = writer.unchangedCandidate(plan.file, size, plan.runs);
+        if (known) {
+          const h = createHash('sha256');
+          for await (const chunk of src.open(plan.file)) {
+            h.update(chunk);
+            onBytes(plan.file, chunk.byteLength);
+          }
+          const sha256 = h.digest('hex');
+          if (sha256 === known.sha256) {
+            writer.addFile({ name: plan.file, sha256, bytes: size, runs: [], warnings: [] });
+            continue;
+          }
+          writer.bytes.total += size; // read again below, in full
+        }
+        plans.push(plan);
+      }
+      const rest: SessionHead = { ...head, plans };
+      const toRead = plans.reduce((t, p) => t + head.sizes.get(p.file)!, 0);
+      const wanted = opts.workers === undefined || opts.workers === 'auto' ? workersFor(toRead) : opts.workers;
+      if (wanted > 0 && src.path && plans.length > 1) await readOnWorkers(src, rest, writer.spikeK, wanted, onBytes, onFile);
+      else await readHere(src, rest, writer.spikeK, onBytes, onFile);
     }
     return writer.finish(head.warnings);
   } catch (e) {

@@ -839,6 +839,20 @@ export class ImportWriter {
     if (!this.refused) onProgress?.({ phase: 'store', bytesDone: 0, bytesTotal: 0, runsDone: 0, runsTotal: start.index.length });
   }
 
+  /**
+   * Whether a run log can be taken as unchanged without parsing it: the session was stored before,
+   * the latest stored copy of this file has `bytes` bytes and every run the index places in it is
+   * stored already. The caller then only hashes the file and hands addFile() no runs if the hash
+   * matches (`sha256` here), which is what live mode needs to stay cheap as the day grows.
+   */
+  unchangedCandidate(name: string, bytes: number, runs: number[]): { sha256: string } | null {
+    if (this.refused || this.report.created) return null;
+    if (!runs.every((r) => this.storedSet.has(r))) return null;
+    const prev = this.store.db.prepare('SELECT sha256, bytes FROM source_files WHERE session_id = ? AND name = ? ORDER BY id DESC LIMIT 1')
+      .get(this.sid, name) as { sha256: string; bytes: number } | undefined;
+    return prev && prev.bytes === bytes ? { sha256: prev.sha256 } : null;
+  }
+
   /** Store (or compare, or refuse) the runs of one run log. */
   addFile(f: PreparedFile): void {
     if (this.ended) throw new Error('ImportWriter: addFile() after the import ended');

@@ -167,6 +167,44 @@ describe('re-import', () => {
     store.close();
   });
 
+  it('run logs stored before with the same bytes are only hashed, not parsed again (live mode stays cheap)', async () => {
+    const dir = tempDir();
+    const f = miniFolder(join(dir, 's'), { runs: { dataRuns: 2, samples: 8 } });
+    // An extra column the setup does not map: parsing the file says so in the import's warnings.
+    const file = f.index[1].file!;
+    editFile(join(f.dir, file), (t) => t.split('\n').map((l, i) => (l === '' ? l : `${l},${i === 0 ? 'spare' : '7'}`)).join('\n'));
+    const store = freshStore(dir);
+    await importSessionFolder(store, f.dir);
+    const warned = `${file}: column "spare" is not in the setup's channel map; ignored`;
+    expect((store.auditTrail(1)[0].detail as { warnings: string[] }).warnings).toContain(warned);
+    const more = miniRuns(f.setup, { dataRuns: 1, firstRun: 20, seed: 9 });
+    appendRunToFolder(f.dir, f.setup, more.runs[1]);
+    const rep = await importSessionFolder(store, f.dir);
+    expect(rep.importedRuns).toEqual([more.runs[1].info.run]);
+    expect(rep.unchangedFiles).toEqual(expect.arrayContaining(f.index.map((i) => i.file!)));
+    // The second import did not parse the unchanged file: no warning about its column.
+    const second = store.auditTrail(1)[1];
+    expect(second.action).toBe('import');
+    expect((second.detail as { warnings: string[] }).warnings).not.toContain(warned);
+    // A stored file whose samples changed (same size) is read in full, compared and refused.
+    const size = readFileSync(join(f.dir, file)).length;
+    editFile(join(f.dir, file), (t) => {
+      const lines = t.split('\n');
+      const cells = lines[2].split(',');
+      const last = cells[1].slice(-1);
+      cells[1] = cells[1].slice(0, -1) + (last === '1' ? '2' : '1');
+      lines[2] = cells.join(',');
+      return lines.join('\n');
+    });
+    expect(readFileSync(join(f.dir, file)).length).toBe(size);
+    const before = dbSnapshot(store);
+    const rep2 = await importSessionFolder(store, f.dir);
+    expect(rep2.importedRuns).toEqual([]);
+    expect(rep2.changedFiles).toEqual([file]);
+    expect(dbSnapshot(store)).toBe(before);
+    store.close();
+  });
+
   it('one long log with a run column: grows with new runs, refuses edited ones', async () => {
     const dir = tempDir();
     const f = miniFolder(join(dir, 's'), { runs: { dataRuns: 2, samples: 8 }, write: { singleFile: true } });

@@ -1,0 +1,88 @@
+// Large imports read, parse, average and pack run logs on worker threads (main/importPool.ts);
+// small ones do the same on the calling thread. Both must store exactly the same database
+// contents, and a bad file read on a worker must fail the import with the same message (file,
+// line, channel) and leave the database as it was.
+import { join } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { Store } from '../main/store';
+import { importSessionFolder } from '../main/import';
+import { cleanupTempDirs, dbContents, dbSnapshot, editFile, miniFolder, tempDir } from './helpers/store-fixtures';
+
+afterAll(() => cleanupTempDirs());
+
+/** Everything stored, minus the times and folder (which differ between two imports). */
+function stored(store: Store): Record<string, unknown[]> {
+  const c = dbContents(store);
+  const strip = (rows: unknown[]) => rows.map((r) => {
+    const o = { ...(r as Record<string, unknown>) };
+    for (const k of ['imported_at', 'created_at', 'at', 'folder', 'detail_json', 'applied_at']) delete o[k];
+    return o;
+  });
+  return Object.fromEntries(Object.entries(c).map(([k, v]) => [k, strip(v)]));
+}
+
+describe('import on worker threads', () => {
+  it('stores the same samples, statistics and runs as an import on the calling thread', async () => {
+    const dir = tempDir();
+    const f = miniFolder(join(dir, 's'), { runs: { dataRuns: 6, samples: 300 }, write: { digits: 6 } });
+    const here = Store.open(join(dir, 'here.sqlite'));
+    const there = Store.open(join(dir, 'there.sqlite'));
+    const a = await importSessionFolder(here, f.dir, { actor: 'x', workers: 0 });
+    const b = await importSessionFolder(there, f.dir, { actor: 'x', workers: 2 });
+    expect(b).toEqual(a);
+    expect(stored(there)).toEqual(stored(here));
+    // The 6-digit log packs as decimal mantissas.
+    const kinds = there.db.prepare('SELECT dtype, COUNT(*) AS n FROM samples GROUP BY dtype').all() as { dtype: string; n: number }[];
+    expect(kinds.find((k) => k.dtype === 'dec')?.n).toBeGreaterThan(0);
+    for (const raw of f.index) {
+      for (const c of f.setup.channels) expect(there.getSamples(1, raw.run, c.name)).toEqual(here.getSamples(1, raw.run, c.name));
+    }
+    here.close();
+    there.close();
+  });
+
+  it('a bad cell found on a worker fails the import with file, line and channel; nothing is stored', async () => {
+    const dir = tempDir();
+    const f = miniFolder(join(dir, 's'), { runs: { dataRuns: 5, samples: 50 } });
+    const bad = f.index[4].file!;
+    editFile(join(f.dir, bad), (t) => {
+      const lines = t.split('\n');
+      const head = lines[0].split(',');
+      const col = head.indexOf('W_F01');
+      const cells = lines[7].split(',');
+      cells[col] = '12..5';
+      lines[7] = cells.join(',');
+      return lines.join('\n');
+    });
+    const store = Store.open(join(dir, 'db.sqlite'));
+    const before = dbSnapshot(store);
+    await expect(importSessionFolder(store, f.dir, { workers: 2 })).rejects.toThrow(`${bad} line 8, channel W_F01: expected a number, found "12..5"`);
+    expect(dbSnapshot(store)).toBe(before);
+    // And the store is free again for the next import.
+    expect(store.importInProgress).toBe(false);
+    store.close();
+  });
+
+  it('while an import is in progress, writes through the store are refused at once, reads see the committed state', async () => {
+    const dir = tempDir();
+    const f = miniFolder(join(dir, 's'), { runs: { dataRuns: 3, samples: 40 } });
+    const g = miniFolder(join(dir, 't'), { runs: { dataRuns: 3, samples: 40, seed: 4 } });
+    const store = Store.open(join(dir, 'db.sqlite'));
+    await importSessionFolder(store, f.dir);
+    let checked = false;
+    await importSessionFolder(store, g.dir, {
+      workers: 0,
+      onProgress: (p) => {
+        if (checked || p.phase !== 'store' || p.runsDone !== 1) return;
+        checked = true;
+        expect(store.importInProgress).toBe(true);
+        expect(store.listSessions().map((s) => s.id)).toEqual([1]); // the new session is not committed yet
+        expect(() => store.setTapBad(1, f.setup.taps[0].id, true, 'x')).toThrow(/an import into this database is in progress/);
+      },
+    });
+    expect(checked).toBe(true);
+    expect(store.listSessions().map((s) => s.id)).toEqual([1, 2]);
+    store.setTapBad(1, f.setup.taps[0].id, true, 'x'); // free again
+    store.close();
+  });
+});
