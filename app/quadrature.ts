@@ -43,7 +43,36 @@ export function interpLinear(xs: ArrayLike<number>, ys: ArrayLike<number>, x: nu
   return ys[lo] + t * (ys[hi] - ys[lo]);
 }
 
-/** Throws a clear error when a value is not a finite number. */
+/** The weights interpLinear(xs, ys, x) applies to a table's values at one x, for evaluating many
+ *  tables that share xs at the same x (Monte Carlo draws): the value is ys[lo] when hi < 0, else
+ *  ys[lo] + t·(ys[hi] − ys[lo]) — the same cases and the same arithmetic as interpLinear, so
+ *  applyStencil gives bit-identical results. */
+export interface LinearStencil {
+  lo: number;
+  hi: number;
+  t: number;
+}
+
+/** Stencil of interpLinear(xs, ·, x) (see LinearStencil). */
+export function linearStencil(xs: ArrayLike<number>, x: number): LinearStencil {
+  const n = xs.length;
+  if (n === 0) throw new Error('linearStencil: need a non-empty table');
+  if (x <= xs[0]) return { lo: 0, hi: -1, t: 0 };
+  if (x >= xs[n - 1]) return { lo: n - 1, hi: -1, t: 0 };
+  const lo = bracket(xs, x);
+  const hi = lo + 1;
+  const dx = xs[hi] - xs[lo];
+  if (dx === 0) return { lo, hi: -1, t: 0 };
+  return { lo, hi, t: (x - xs[lo]) / dx };
+}
+
+/** Value of a table at a stencil's x (see LinearStencil). */
+export function applyStencil(lo: number, hi: number, t: number, ys: ArrayLike<number>): number {
+  return hi < 0 ? ys[lo] : ys[lo] + t * (ys[hi] - ys[lo]);
+}
+
+/** Throws a clear error when a value is not a finite number. Hot callers test Number.isFinite
+ *  first and call this only on failure, so the message is built only when it is thrown. */
 export function requireFinite(value: number, what: string): void {
   if (!Number.isFinite(value)) throw new Error(`${what} must be a finite number (got ${value})`);
 }

@@ -9,11 +9,11 @@ import {
   CORE_VERSION, DEFAULT_SETTINGS,
   type Channel, type ChannelStats, type Coefficients, type Flag, type Interval, type PolarPoint,
   type RawRun, type RunInfo, type RunResult, type SessionSummary, type Settings, type Setup,
-  type SurfaceLoads, type TapCp, type WakeResult, type WallResult, type ZeroedRun, type RowLoads,
+  type TapCp, type WakeResult, type WallResult, type ZeroedRun, type RowLoads,
 } from './types';
 import { freeStream } from './air';
 import { averageRun, applyZeros, unsteadiness } from './samples';
-import { detectBadTaps, reduceSurface } from './surface';
+import { detectBadTaps, reduceSurface, type BadTapReason } from './surface';
 import { inviscidCp } from './panel';
 import { spanLoading, completeRow } from './spanwise';
 import { jonesDrag, interpolateStatic } from './wake';
@@ -22,6 +22,7 @@ import { wallLoads, angleFlux } from './walls';
 import { gammaFromCl, liftCrossCheck } from './crosscheck';
 import { sectionArea, wallCorrections, applyCorrections } from './corrections';
 import { monteCarlo, instrumentStd } from './uncertainty';
+import { buildMcPlan, evalMcPlan, type McPlan, type McValues, type PlanLayout } from './mcPlan';
 import { sessionStats } from './session';
 import { toPascal, isPressureUnit } from './units';
 
@@ -139,7 +140,7 @@ interface CoreOutput {
   pInf: number;
   taps: TapCp[];
   rows: RowLoads[];
-  main: SurfaceLoads;
+  main: RowLoads;
   wake: WakeResult | null;
   walls: WallResult | null;
   uncorrected: Coefficients;
@@ -279,9 +280,11 @@ function fmt(x: number, d = 3): string {
   return Number.isFinite(x) ? x.toFixed(d) : '—';
 }
 
-/** Reduce one data run to its result: every figure, its uncertainty and its flags. */
-export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings): RunResult {
-  const L = layoutOf(setup);
+/** The nominal result of a run: a first pass with no taps dropped finds the bad taps, a second
+ *  pass (when there are any) drops and bridges them. */
+function nominalPass(
+  setup: Setup, L: Layout, run: ZeroedRun, settings: Settings,
+): { bad: { id: string; reason: BadTapReason }[]; nominal: CoreOutput } {
   const info = run.info;
   const values = (name: string): number => {
     const x = run.values[name];
@@ -298,6 +301,21 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings): Run
   const nominal = bad.length
     ? runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad })
     : first;
+  return { bad, nominal };
+}
+
+/** How reduceRun evaluates the Monte Carlo draws: 'plan' (default) by the per-run plan of
+ *  app/mcPlan.ts, falling back to runCore for a draw the plan does not cover; 'core' by runCore for
+ *  every draw (the reference the plan is tested against). Both give the same values. */
+export interface ReduceOptions {
+  mcPath?: 'plan' | 'core';
+}
+
+/** Reduce one data run to its result: every figure, its uncertainty and its flags. */
+export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, options: ReduceOptions = {}): RunResult {
+  const L = layoutOf(setup);
+  const info = run.info;
+  const { bad, nominal } = nominalPass(setup, L, run, settings);
 
   // Flags.
   const flags: Flag[] = [];
@@ -377,7 +395,9 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings): Run
   }
 
   // Monte Carlo uncertainty on the corrected coefficients and circulations.
-  const uncertainty = settings.mcDraws > 0 ? runUncertainty(setup, L, run, settings, bad) : {};
+  const uncertainty = settings.mcDraws > 0
+    ? runUncertainty(mcModel(setup, L, run, settings, bad, nominal, options.mcPath !== 'core'), settings, run)
+    : {};
 
   return {
     run: info.run,
@@ -421,33 +441,53 @@ function badWords(reason: string): string {
 
 type UKey = 'cl' | 'cd' | 'cdp' | 'cmc4' | 'clMom' | 'gammaPressure' | 'gammaMomentum';
 
-function runUncertainty(
+/** The Monte Carlo model of one run: its random inputs and its per-draw evaluation. */
+export interface McModel {
+  /** Channels drawn, in draw order, with their nominal values and standard uncertainties. */
+  names: readonly string[];
+  mean: Float64Array;
+  sd: Float64Array;
+  /** Taps whose x/c is drawn (in layout order) and the standard uncertainty of each. */
+  tapCount: number;
+  tapSd: number;
+  /** Standard uncertainty of α (deg); k_q and its standard uncertainty (0: not drawn). */
+  alphaSd: number;
+  kq: number;
+  kqSd: number;
+  /** The model by runCore: values by `names`, tap offsets by tap, α, k_q. */
+  core(vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number): Record<UKey, number>;
+  /** The model as reduceRun evaluates it (the plan, or runCore where the plan does not cover a
+   *  draw or the option asks for runCore). */
+  evaluate(vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number): Record<UKey, number>;
+  /** Whether the run has a plan, and how the last `evaluate` went. */
+  hasPlan: boolean;
+  last: { path: 'plan' | 'core'; reordered: boolean };
+}
+
+function mcModel(
   setup: Setup, L: Layout, run: ZeroedRun, settings: Settings, bad: { id: string; reason: string }[],
-): Partial<Record<UKey, Interval>> {
+  nominal: CoreOutput, usePlan: boolean,
+): McModel {
   const names = setup.channels.map((c) => c.name).filter((n) => run.values[n] !== undefined);
-  const sd = new Map<string, number>();
+  const sdByName = new Map<string, number>();
   for (const ch of setup.channels) {
     const x = run.values[ch.name];
     if (x === undefined) continue;
     const ui = instrumentStd(ch.uncertainty, x, L.scale.get(ch.name) ?? 1);
     const se = run.stats[ch.name]?.stdErr ?? 0;
-    sd.set(ch.name, Math.sqrt(ui * ui + se * se));
+    sdByName.set(ch.name, Math.sqrt(ui * ui + se * se));
   }
-  const kq0 = setup.facility.qCalibration;
-  const ukq = setup.facility.qCalibrationUncertainty ?? 0;
-  const tapDx = new Float64Array(L.taps.length);
+  const mean = Float64Array.from(names, (n) => run.values[n]);
+  const sd = Float64Array.from(names, (n) => sdByName.get(n) ?? 0);
+  // A name drawn twice (duplicate channel names) is read at its last draw, as a record would be.
+  const index = new Map<string, number>();
+  names.forEach((n, k) => index.set(n, k));
+
   const perturbed: Record<string, number> = {};
   const values = (n: string) => perturbed[n];
-  return monteCarlo<UKey>(settings.mcDraws, settings.mcSeed + run.info.run, (d) => {
-    for (const n of names) perturbed[n] = d.normal(run.values[n], sd.get(n) ?? 0);
-    for (let i = 0; i < tapDx.length; i++) tapDx[i] = d.normal(0, setup.model.tapPositionUncertainty);
-    const out = runCore(setup, L, run.info, settings, {
-      values,
-      alphaDeg: d.normal(run.info.alphaDeg, setup.model.alphaUncertaintyDeg),
-      kq: ukq > 0 ? d.normal(kq0, ukq) : kq0,
-      tapDx,
-      bad,
-    });
+  const core = (vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number): Record<UKey, number> => {
+    for (let k = 0; k < names.length; k++) perturbed[names[k]] = vals[k];
+    const out = runCore(setup, L, run.info, settings, { values, alphaDeg, kq, tapDx, bad });
     return {
       cl: out.corrected.cl,
       cd: out.corrected.cd,
@@ -457,7 +497,93 @@ function runUncertainty(
       gammaPressure: out.gamma.pressure,
       gammaMomentum: out.gamma.momentum,
     };
+  };
+
+  const plan: McPlan | null = usePlan
+    ? buildMcPlan(setup, planLayout(L), run.info, settings.correction, bad, {
+        mainRow: nominal.main.row,
+        walls: nominal.walls,
+      }, index)
+    : null;
+  const o: McValues = { cl: NaN, cd: NaN, cdp: NaN, cmc4: NaN, clMom: NaN, gammaPressure: NaN, gammaMomentum: NaN };
+  const model: McModel = {
+    names,
+    mean,
+    sd,
+    tapCount: L.taps.length,
+    tapSd: setup.model.tapPositionUncertainty,
+    alphaSd: setup.model.alphaUncertaintyDeg,
+    kq: setup.facility.qCalibration,
+    kqSd: setup.facility.qCalibrationUncertainty ?? 0,
+    core,
+    hasPlan: plan !== null,
+    last: { path: 'core', reordered: false },
+    evaluate(vals, tapDx, alphaDeg, kq) {
+      if (plan && evalMcPlan(plan, vals, tapDx, alphaDeg, kq, o)) {
+        model.last.path = 'plan';
+        model.last.reordered = plan.reordered;
+        return {
+          cl: o.cl,
+          cd: o.cd,
+          cdp: o.cdp,
+          cmc4: o.cmc4,
+          clMom: o.clMom,
+          gammaPressure: o.gammaPressure,
+          gammaMomentum: o.gammaMomentum,
+        };
+      }
+      model.last.path = 'core';
+      model.last.reordered = false;
+      return core(vals, tapDx, alphaDeg, kq);
+    },
+  };
+  return model;
+}
+
+const planLayouts = new WeakMap<Layout, PlanLayout>();
+
+function planLayout(L: Layout): PlanLayout {
+  const hit = planLayouts.get(L);
+  if (hit) return hit;
+  const P: PlanLayout = {
+    dpRef: L.dpRef.name,
+    pStatic: L.pStatic.name,
+    taps: L.taps.map(({ tap, ch }) => ({ id: tap.id, x: tap.x, y: tap.y, surface: tap.surface, row: tap.row, ch: ch.name })),
+    rakeTotal: L.rakeTotal.map((r) => ({ y: r.y, ch: r.ch.name })),
+    rakeStatic: L.rakeStatic.map((r) => ({ y: r.y, ch: r.ch.name })),
+    rakeAngle: L.rakeAngle.map((r) => ({ y: r.y, ch: r.ch.name })),
+    floor: L.floor.map((f) => ({ x: f.x, ch: f.ch.name })),
+    ceiling: L.ceiling.map((c) => ({ x: c.x, ch: c.ch.name })),
+    mainRow: L.mainRow,
+    areaC2: L.areaC2,
+  };
+  planLayouts.set(L, P);
+  return P;
+}
+
+/** JCGM 101 Monte Carlo of one run: every channel from its instrument uncertainty and standard
+ *  error, the tap positions, α and k_q, drawn in that order from one seeded stream. */
+function runUncertainty(m: McModel, settings: Settings, run: ZeroedRun): Partial<Record<UKey, Interval>> {
+  const { mean, sd, tapSd } = m;
+  const vals = new Float64Array(mean.length);
+  const tapDx = new Float64Array(m.tapCount);
+  return monteCarlo<UKey>(settings.mcDraws, settings.mcSeed + run.info.run, (d) => {
+    for (let k = 0; k < vals.length; k++) vals[k] = d.normal(mean[k], sd[k]);
+    for (let i = 0; i < tapDx.length; i++) tapDx[i] = d.normal(0, tapSd);
+    const alphaDeg = d.normal(run.info.alphaDeg, m.alphaSd);
+    const kq = m.kqSd > 0 ? d.normal(m.kq, m.kqSd) : m.kq;
+    return m.evaluate(vals, tapDx, alphaDeg, kq);
   });
+}
+
+/**
+ * For tests (test/mc-fast.test.ts): the Monte Carlo model of one run, after the nominal pass of
+ * reduceRun, with the plan when `usePlan` (default) and the run allows one.
+ */
+export function uncertaintyModel(setup: Setup, run: ZeroedRun, settings: Settings, usePlan = true): McModel {
+  const L = layoutOf(setup);
+  const { bad, nominal } = nominalPass(setup, L, run, settings);
+  return mcModel(setup, L, run, settings, bad, nominal, usePlan);
 }
 
 // ---------------------------------------------------------------------------------------------

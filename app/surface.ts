@@ -40,18 +40,34 @@ function cmpId(a: string, b: string): number {
   return a < b ? -1 : a > b ? 1 : 0;
 }
 
+/** Contour order of two upper-surface taps: decreasing x, then higher y, then id. */
+export function compareUpper(a: Placed, b: Placed): number {
+  return b.x - a.x || b.y - a.y || cmpId(a.id, b.id);
+}
+
+/** Contour order of two lower-surface taps: increasing x, then higher y, then id. */
+export function compareLower(a: Placed, b: Placed): number {
+  return a.x - b.x || b.y - a.y || cmpId(a.id, b.id);
+}
+
 /** Orders taps around the closed contour: trailing edge → upper surface (decreasing x) → leading
  *  edge → lower surface (increasing x) → trailing edge. A leading-edge tap belongs to whichever
  *  surface the tap says. Ties in x are broken by y (higher first, which is the contour order near
  *  the leading edge on both surfaces), then by id, so the result never depends on input order. */
 export function orderContour<T extends Placed>(taps: readonly T[]): T[] {
-  const upper = taps
-    .filter((t) => t.surface === 'upper')
-    .sort((a, b) => b.x - a.x || b.y - a.y || cmpId(a.id, b.id));
-  const lower = taps
-    .filter((t) => t.surface === 'lower')
-    .sort((a, b) => a.x - b.x || b.y - a.y || cmpId(a.id, b.id));
-  return [...upper, ...lower];
+  const upper = taps.filter((t) => t.surface === 'upper');
+  const lower = taps.filter((t) => t.surface === 'lower');
+  // Array.prototype.sort is stable, so input that is already in order needs no sort (checked only
+  // with finite positions, where the comparators are consistent).
+  const finite = taps.every((t) => Number.isFinite(t.x) && Number.isFinite(t.y));
+  if (!finite || !isSorted(upper, compareUpper)) upper.sort(compareUpper);
+  if (!finite || !isSorted(lower, compareLower)) lower.sort(compareLower);
+  return upper.concat(lower);
+}
+
+function isSorted<T>(list: readonly T[], cmp: (a: T, b: T) => number): boolean {
+  for (let i = 1; i < list.length; i++) if (!(cmp(list[i - 1], list[i]) <= 0)) return false;
+  return true;
 }
 
 function validatePoints(points: readonly ContourPoint[], what: string): void {
@@ -59,57 +75,98 @@ function validatePoints(points: readonly ContourPoint[], what: string): void {
     if (p.surface !== 'upper' && p.surface !== 'lower') {
       throw new Error(`${what}: tap ${p.id} has surface '${String(p.surface)}' (expected 'upper' or 'lower')`);
     }
-    for (const key of ['x', 'y', 'cp'] as const) {
-      if (!Number.isFinite(p[key])) {
-        throw new Error(`${what}: tap ${p.id} has a non-finite ${key} (${p[key]})`);
+    if (!Number.isFinite(p.x) || !Number.isFinite(p.y) || !Number.isFinite(p.cp)) {
+      for (const key of ['x', 'y', 'cp'] as const) {
+        if (!Number.isFinite(p[key])) {
+          throw new Error(`${what}: tap ${p.id} has a non-finite ${key} (${p[key]})`);
+        }
       }
     }
   }
 }
 
-/** Value of one surface at x/c = 1: linear through the two taps nearest the trailing edge (distinct
- *  x), else the nearest tap. `surf` is sorted by decreasing x. */
-function trailingEdgeValue(surf: readonly ContourPoint[]): { cp: number; y: number; method: TeSurfaceMethod } {
-  const a = surf[0];
-  const b = surf.find((p) => a.x - p.x > 1e-9);
-  if (!b) return { cp: a.cp, y: a.y, method: 'nearest' };
-  const t = (1 - a.x) / (a.x - b.x);
-  return { cp: a.cp + t * (a.cp - b.cp), y: a.y + t * (a.y - b.y), method: 'linear' };
+/** Loads of one row from its points already in contour order, without checks (the arithmetic of
+ *  integrateContour, shared with the Monte Carlo plan of app/mcPlan.ts): x, y, cp of `nUpper`
+ *  upper-surface points (trailing edge → leading edge) followed by `n − nUpper` lower-surface points
+ *  (leading edge → trailing edge); 1 ≤ nUpper < n. */
+export interface ContourIntegrals {
+  cn: number;
+  ca: number;
+  cl: number;
+  cdp: number;
+  cmLE: number;
+  cmc4: number;
+  teCp: number;
+  teUpper: TeSurfaceMethod;
+  teLower: TeSurfaceMethod;
 }
 
-/** Integrates Cp around the closed contour of one row (see the module comment). The points are
- *  ordered here, so the result does not depend on their order. Needs at least one tap on each
- *  surface. `bridged` is always empty: the caller passes only good taps (see reduceSurface). */
-export function integrateContour(points: readonly ContourPoint[], alphaDeg: number): SurfaceLoads {
-  validatePoints(points, 'integrateContour');
-  if (!Number.isFinite(alphaDeg)) throw new Error(`integrateContour: angle of attack is not finite (${alphaDeg})`);
-  const ordered = orderContour(points);
-  const upper = ordered.filter((p) => p.surface === 'upper');
-  const lower = ordered.filter((p) => p.surface === 'lower').reverse();
-  if (upper.length === 0 || lower.length === 0) {
-    throw new Error(
-      `integrateContour: need at least one tap on each surface (upper ${upper.length}, lower ${lower.length})`,
-    );
+/** See ContourIntegrals. */
+export function contourIntegrals(
+  x: ArrayLike<number>, y: ArrayLike<number>, cp: ArrayLike<number>, n: number, nUpper: number, alphaDeg: number,
+): ContourIntegrals {
+  // Trailing-edge value of each surface at x/c = 1: linear through the tap nearest the trailing
+  // edge and the next one with a distinct x (by more than 1e-9), else the nearest tap.
+  let teUy: number;
+  let teUcp: number;
+  let teUpper: TeSurfaceMethod = 'nearest';
+  {
+    const a = 0;
+    let b = -1;
+    for (let k = 1; k < nUpper; k++) if (x[a] - x[k] > 1e-9) { b = k; break; }
+    if (b < 0) {
+      teUcp = cp[a];
+      teUy = y[a];
+    } else {
+      const t = (1 - x[a]) / (x[a] - x[b]);
+      teUcp = cp[a] + t * (cp[a] - cp[b]);
+      teUy = y[a] + t * (y[a] - y[b]);
+      teUpper = 'linear';
+    }
   }
-  const teU = trailingEdgeValue(upper);
-  const teL = trailingEdgeValue(lower);
-  const te = { x: 1, y: 0.5 * (teU.y + teL.y), cp: 0.5 * (teU.cp + teL.cp) };
-  const poly = [te, ...ordered, te];
+  let teLy: number;
+  let teLcp: number;
+  let teLower: TeSurfaceMethod = 'nearest';
+  {
+    const a = n - 1;
+    let b = -1;
+    for (let k = n - 2; k >= nUpper; k--) if (x[a] - x[k] > 1e-9) { b = k; break; }
+    if (b < 0) {
+      teLcp = cp[a];
+      teLy = y[a];
+    } else {
+      const t = (1 - x[a]) / (x[a] - x[b]);
+      teLcp = cp[a] + t * (cp[a] - cp[b]);
+      teLy = y[a] + t * (y[a] - y[b]);
+      teLower = 'linear';
+    }
+  }
+  const teX = 1;
+  const teY = 0.5 * (teUy + teLy);
+  const teCp = 0.5 * (teUcp + teLcp);
 
-  // Linear Cp along straight segments: exact integrals of the piecewise-linear integrands.
+  // Polygon te → points → te; linear Cp along straight segments: exact integrals of the
+  // piecewise-linear integrands.
   let sCpDx = 0;
   let sCpDy = 0;
   let sMom = 0;
-  for (let i = 0; i + 1 < poly.length; i++) {
-    const p = poly[i];
-    const q = poly[i + 1];
-    const dx = q.x - p.x;
-    const dy = q.y - p.y;
-    sCpDx += 0.5 * (p.cp + q.cp) * dx;
-    sCpDy += 0.5 * (p.cp + q.cp) * dy;
+  let px = teX;
+  let py = teY;
+  let pcp = teCp;
+  for (let k = 0; k <= n; k++) {
+    const qx = k < n ? x[k] : teX;
+    const qy = k < n ? y[k] : teY;
+    const qcp = k < n ? cp[k] : teCp;
+    const dx = qx - px;
+    const dy = qy - py;
+    sCpDx += 0.5 * (pcp + qcp) * dx;
+    sCpDy += 0.5 * (pcp + qcp) * dy;
     // ∫ Cp x dx with Cp and x linear in the segment parameter = dx/6 [Cp_p(2x_p + x_q) + Cp_q(x_p + 2x_q)].
-    sMom += (dx / 6) * (p.cp * (2 * p.x + q.x) + q.cp * (p.x + 2 * q.x));
-    sMom += (dy / 6) * (p.cp * (2 * p.y + q.y) + q.cp * (p.y + 2 * q.y));
+    sMom += (dx / 6) * (pcp * (2 * px + qx) + qcp * (px + 2 * qx));
+    sMom += (dy / 6) * (pcp * (2 * py + qy) + qcp * (py + 2 * qy));
+    px = qx;
+    py = qy;
+    pcp = qcp;
   }
   // Outward normal of the counter-clockwise contour is (dy, −dx)/ds; force = −∮ Cp n ds.
   const cn = sCpDx;
@@ -123,8 +180,45 @@ export function integrateContour(points: readonly ContourPoint[], alphaDeg: numb
     cdp: cn * Math.sin(a) + ca * Math.cos(a),
     cmLE,
     cmc4: cmLE + cn / 4,
-    teCp: te.cp,
-    teMethod: teMethodText(teU.method, teL.method),
+    teCp,
+    teUpper,
+    teLower,
+  };
+}
+
+/** Integrates Cp around the closed contour of one row (see the module comment). The points are
+ *  ordered here, so the result does not depend on their order. Needs at least one tap on each
+ *  surface. `bridged` is always empty: the caller passes only good taps (see reduceSurface). */
+export function integrateContour(points: readonly ContourPoint[], alphaDeg: number): SurfaceLoads {
+  validatePoints(points, 'integrateContour');
+  if (!Number.isFinite(alphaDeg)) throw new Error(`integrateContour: angle of attack is not finite (${alphaDeg})`);
+  const ordered = orderContour(points);
+  const n = ordered.length;
+  let nUpper = 0;
+  while (nUpper < n && ordered[nUpper].surface === 'upper') nUpper++;
+  if (nUpper === 0 || nUpper === n) {
+    throw new Error(
+      `integrateContour: need at least one tap on each surface (upper ${nUpper}, lower ${n - nUpper})`,
+    );
+  }
+  const x = new Float64Array(n);
+  const y = new Float64Array(n);
+  const cp = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    x[k] = ordered[k].x;
+    y[k] = ordered[k].y;
+    cp[k] = ordered[k].cp;
+  }
+  const r = contourIntegrals(x, y, cp, n, nUpper, alphaDeg);
+  return {
+    cn: r.cn,
+    ca: r.ca,
+    cl: r.cl,
+    cdp: r.cdp,
+    cmLE: r.cmLE,
+    cmc4: r.cmc4,
+    teCp: r.teCp,
+    teMethod: teMethodText(r.teUpper, r.teLower),
     bridged: [],
   };
 }
@@ -160,26 +254,36 @@ function lagrange(nodes: readonly { s: number; cp: number }[], s: number): numbe
  *  neighbours on each side that has a neighbour on both sides; at an end of the chain, linear and
  *  quadratic extrapolation through subsets of the three nearest. Sets that skip the nearest
  *  neighbour keep a bad neighbour from making a good tap look wrong. */
-function neighbourPredictions(chain: readonly { s: number; cp: number }[], k: number): number[] {
-  const at = (i: number) => (i >= 0 && i < chain.length ? [chain[i]] : []);
-  const left = [...at(k - 1), ...at(k - 2)];
-  const right = [...at(k + 1), ...at(k + 2)];
-  const sets: { s: number; cp: number }[][] = [];
+type ChainNode = { s: number; cp: number };
+
+/** [chain[i]] when i is inside the chain, else []. */
+function nodeAt(chain: readonly ChainNode[], i: number): ChainNode[] {
+  return i >= 0 && i < chain.length ? [chain[i]] : [];
+}
+
+/** The set has a node on each side. */
+function spansBothSides(set: readonly ChainNode[], left: readonly ChainNode[], right: readonly ChainNode[]): boolean {
+  return set.some((p) => left.includes(p)) && set.some((p) => right.includes(p));
+}
+
+function neighbourPredictions(chain: readonly ChainNode[], k: number): number[] {
+  const left = [...nodeAt(chain, k - 1), ...nodeAt(chain, k - 2)];
+  const right = [...nodeAt(chain, k + 1), ...nodeAt(chain, k + 2)];
+  const sets: ChainNode[][] = [];
   if (left.length && right.length) {
     const window = [...left, ...right];
     for (let i = 0; i < window.length; i++) {
       for (let j = i + 1; j < window.length; j++) {
         const pair = [window[i], window[j]];
-        const both = (set: typeof pair) => set.some((p) => left.includes(p)) && set.some((p) => right.includes(p));
-        if (both(pair)) sets.push(pair);
+        if (spansBothSides(pair, left, right)) sets.push(pair);
         for (let l = j + 1; l < window.length; l++) {
           const triple = [window[i], window[j], window[l]];
-          if (both(triple)) sets.push(triple);
+          if (spansBothSides(triple, left, right)) sets.push(triple);
         }
       }
     }
   } else {
-    const side = left.length ? [...left, ...at(k - 3)] : [...right, ...at(k + 3)];
+    const side = left.length ? [...left, ...nodeAt(chain, k - 3)] : [...right, ...nodeAt(chain, k + 3)];
     if (side.length === 3) sets.push([side[0], side[1]], [side[0], side[2]], [side[1], side[2]], side);
     else if (side.length === 2) sets.push(side);
   }

@@ -51,20 +51,20 @@ export function splitMix64(seed: bigint): () => bigint {
   };
 }
 
-/** Seeded uniform generator on [0, 1) (xoshiro128** seeded by SplitMix64). `seed`: any integer. */
-export function createRng(seed: number): Rng {
+/** The xoshiro128** state for a seed: two SplitMix64 outputs, low word first. */
+function seedState(seed: number): [number, number, number, number] {
   if (!Number.isSafeInteger(seed)) {
     throw new RangeError(`createRng: seed must be a safe integer (got ${seed})`);
   }
   const sm = splitMix64(BigInt.asUintN(64, BigInt(seed)));
   const w0 = sm();
   const w1 = sm();
-  const next = xoshiro128ss(
-    Number(w0 & 0xffffffffn),
-    Number(w0 >> 32n),
-    Number(w1 & 0xffffffffn),
-    Number(w1 >> 32n),
-  );
+  return [Number(w0 & 0xffffffffn), Number(w0 >> 32n), Number(w1 & 0xffffffffn), Number(w1 >> 32n)];
+}
+
+/** Seeded uniform generator on [0, 1) (xoshiro128** seeded by SplitMix64). `seed`: any integer. */
+export function createRng(seed: number): Rng {
+  const next = xoshiro128ss(...seedState(seed));
   return () => next() / 4294967296;
 }
 
@@ -149,12 +149,40 @@ export interface Draw {
   uniform(lo: number, hi: number): number;
 }
 
-/** Draw implementation: Box–Muller pairs, the sine branch cached for the next call. */
+/** Draw implementation: Box–Muller pairs, the sine branch cached for the next call. The uniforms
+ *  are createRng(seed)'s (xoshiro128** on the same seeded state, inlined here because a Monte Carlo
+ *  run draws hundreds of thousands of them). */
 class StreamDraw implements Draw {
   index = 0;
   private spare = 0;
   private hasSpare = false;
-  constructor(private readonly rng: Rng) {}
+  private a: number;
+  private b: number;
+  private c: number;
+  private d: number;
+  constructor(seed: number) {
+    const [s0, s1, s2, s3] = seedState(seed);
+    this.a = s0 | 0;
+    this.b = s1 | 0;
+    this.c = s2 | 0;
+    this.d = s3 | 0;
+    if ((this.a | this.b | this.c | this.d) === 0) throw new RangeError('xoshiro128**: the all-zero state is not allowed');
+  }
+
+  /** Next uniform on [0, 1): xoshiro128** (as xoshiro128ss) divided by 2³². */
+  private uniform01(): number {
+    const b = this.b;
+    const m = Math.imul(b, 5);
+    const result = Math.imul((m << 7) | (m >>> 25), 9) >>> 0;
+    const t = b << 9;
+    const c = this.c ^ this.a;
+    const d = this.d ^ b;
+    this.b = b ^ c;
+    this.a ^= d;
+    this.c = c ^ t;
+    this.d = (d << 11) | (d >>> 21);
+    return result / 4294967296;
+  }
 
   normal(mean: number, std: number): number {
     let z: number;
@@ -162,8 +190,8 @@ class StreamDraw implements Draw {
       z = this.spare;
       this.hasSpare = false;
     } else {
-      const r = Math.sqrt(-2 * Math.log(1 - this.rng()));
-      const th = TWO_PI * this.rng();
+      const r = Math.sqrt(-2 * Math.log(1 - this.uniform01()));
+      const th = TWO_PI * this.uniform01();
       z = r * Math.cos(th);
       this.spare = r * Math.sin(th);
       this.hasSpare = true;
@@ -172,7 +200,7 @@ class StreamDraw implements Draw {
   }
 
   uniform(lo: number, hi: number): number {
-    return lo + (hi - lo) * this.rng();
+    return lo + (hi - lo) * this.uniform01();
   }
 }
 
@@ -189,7 +217,7 @@ export function monteCarlo<K extends string>(
   if (!Number.isInteger(draws) || draws < 2) {
     throw new RangeError(`monteCarlo: draws must be an integer ≥ 2 (got ${draws})`);
   }
-  const draw = new StreamDraw(createRng(seed));
+  const draw = new StreamDraw(seed);
   let keys: K[] = [];
   let columns: Float64Array[] = [];
   for (let i = 0; i < draws; i++) {

@@ -39,12 +39,32 @@ export const WAKE_WIDTH_FRACTION = 0.05;
  */
 export function interpolateStatic(statics: { y: number; p: number }[], y: number): number {
   if (statics.length === 0) throw new Error('interpolateStatic: the rake has no static probes');
-  const s = [...statics].sort((a, b) => a.y - b.y);
-  s.forEach((q, i) => {
-    requireFinite(q.y, `static probe ${i} y`);
-    requireFinite(q.p, `static probe ${i} (y = ${q.y} m) pressure`);
-  });
-  return interpLinear(s.map((q) => q.y), s.map((q) => q.p), y);
+  let sorted = true;
+  for (let i = 1; i < statics.length; i++) if (!(statics[i - 1].y - statics[i].y <= 0)) { sorted = false; break; }
+  const s = sorted ? statics : [...statics].sort((a, b) => a.y - b.y);
+  const ys = new Array<number>(s.length);
+  const ps = new Array<number>(s.length);
+  for (let i = 0; i < s.length; i++) {
+    const q = s[i];
+    if (!Number.isFinite(q.y)) requireFinite(q.y, `static probe ${i} y`);
+    if (!Number.isFinite(q.p)) requireFinite(q.p, `static probe ${i} (y = ${q.y} m) pressure`);
+    ys[i] = q.y;
+    ps[i] = q.p;
+  }
+  return interpLinear(ys, ps, y);
+}
+
+/** The Jones integrand √a·(1 − √b) for a = (H_w − p_w)/q∞ and b = (H_w − p∞)/q∞, each radicand
+ *  clamped at 0 (shared with the Monte Carlo plan of app/mcPlan.ts). */
+export function jonesTerm(a: number, b: number): number {
+  if (a < 0) a = 0;
+  if (b < 0) b = 0;
+  return Math.sqrt(a) * (1 - Math.sqrt(b));
+}
+
+/** cd = (2/c) ∫ integrand dy, trapezoid over the probes sorted by y. */
+export function jonesIntegral(y: ArrayLike<number>, integrand: ArrayLike<number>, chord: number): number {
+  return (2 / chord) * trapezoid(y, integrand);
 }
 
 /** Jones wake-momentum drag, wake centre, width and capture test from a rake traverse. */
@@ -58,7 +78,10 @@ export function jonesDrag(args: JonesArgs): WakeResult {
   if (args.probes.length < 2) {
     throw new Error(`Wake: need at least 2 total-pressure probes (got ${args.probes.length})`);
   }
-  const probes = [...args.probes].sort((a, b) => a.y - b.y);
+  const probes = [...args.probes];
+  let sorted = true;
+  for (let i = 1; i < probes.length; i++) if (!(probes[i - 1].y - probes[i].y <= 0)) { sorted = false; break; }
+  if (!sorted) probes.sort((a, b) => a.y - b.y);
   const withStatic = probes.filter((p) => p.ps !== undefined).length;
   if (withStatic !== 0 && withStatic !== probes.length) {
     throw new Error(
@@ -67,9 +90,9 @@ export function jonesDrag(args: JonesArgs): WakeResult {
   }
   const staticUsed = withStatic === probes.length;
   probes.forEach((p, i) => {
-    requireFinite(p.y, `Wake probe ${i} y`);
-    requireFinite(p.H, `Wake probe at y = ${p.y} m total pressure`);
-    if (p.ps !== undefined) requireFinite(p.ps, `Wake probe at y = ${p.y} m local static`);
+    if (!Number.isFinite(p.y)) requireFinite(p.y, `Wake probe ${i} y`);
+    if (!Number.isFinite(p.H)) requireFinite(p.H, `Wake probe at y = ${p.y} m total pressure`);
+    if (p.ps !== undefined && !Number.isFinite(p.ps)) requireFinite(p.ps, `Wake probe at y = ${p.y} m local static`);
   });
 
   const y = probes.map((p) => p.y);
@@ -77,13 +100,13 @@ export function jonesDrag(args: JonesArgs): WakeResult {
   let clamped = 0;
   const integrand = probes.map((p, i) => {
     const pw = staticUsed ? (p.ps as number) : pInf;
-    let a = (p.H - pw) / qInf;
-    let b = cpt[i];
-    if (a < 0) { a = 0; clamped++; }
-    if (b < 0) { b = 0; clamped++; }
-    return Math.sqrt(a) * (1 - Math.sqrt(b));
+    const a = (p.H - pw) / qInf;
+    const b = cpt[i];
+    if (a < 0) clamped++;
+    if (b < 0) clamped++;
+    return jonesTerm(a, b);
   });
-  const cd = (2 / chord) * trapezoid(y, integrand);
+  const cd = jonesIntegral(y, integrand, chord);
 
   const n = probes.length;
   const edgeCpt: [number, number] = [cpt[0], cpt[n - 1]];

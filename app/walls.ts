@@ -66,8 +66,8 @@ export function captureFraction(x1: number, x2: number, h: number): number {
 function checkWall(taps: WallTapCp[], name: string): WallTapCp[] {
   if (taps.length < 2) throw new Error(`Walls: the ${name} needs at least 2 static taps (got ${taps.length})`);
   taps.forEach((t, i) => {
-    requireFinite(t.x, `Walls: ${name} tap ${i} x`);
-    requireFinite(t.cp, `Walls: ${name} tap at x = ${t.x} m Cp`);
+    if (!Number.isFinite(t.x)) requireFinite(t.x, `Walls: ${name} tap ${i} x`);
+    if (!Number.isFinite(t.cp)) requireFinite(t.cp, `Walls: ${name} tap at x = ${t.x} m Cp`);
   });
   return [...taps].sort((a, b) => a.x - b.x);
 }
@@ -75,6 +75,19 @@ function checkWall(taps: WallTapCp[], name: string): WallTapCp[] {
 /** Wall speed ratio u/V = √(1 − Cp), clamped at 0 for Cp > 1. */
 function speedRatio(cp: number): number {
   return Math.sqrt(Math.max(0, 1 - cp));
+}
+
+/** Both walls on one grid: every tap station of either wall (fx, cx) inside [a, b], plus a and b,
+ *  increasing, without repeats. */
+export function wallGrid(a: number, b: number, fx: readonly number[], cx: readonly number[]): number[] {
+  const xs = [a, b, ...fx, ...cx].filter((x) => x >= a && x <= b).sort((p, q) => p - q);
+  return xs.filter((x, i) => i === 0 || x !== xs[i - 1]);
+}
+
+/** cl_mom from the floor − ceiling Cp integral over the grid, the chord, the capture fraction of
+ *  that integral and the rake angle-flux term. */
+export function momentumCl(cpIntegral: number, chord: number, F: number, angleFluxCl: number): number {
+  return cpIntegral / chord / F + angleFluxCl;
 }
 
 /** Momentum lift, wall circulation and its Kutta–Joukowski cl from floor and ceiling Cp. */
@@ -99,15 +112,10 @@ export function wallLoads(args: WallLoadsArgs): WallResult {
   const cx = ceiling.map((t) => t.x);
   const ccp = ceiling.map((t) => t.cp);
 
-  // Both walls on one grid: every tap station of either wall inside [a, b], plus a and b.
-  const grid = (a: number, b: number): number[] => {
-    const xs = [a, b, ...fx, ...cx].filter((x) => x >= a && x <= b).sort((p, q) => p - q);
-    return xs.filter((x, i) => i === 0 || x !== xs[i - 1]);
-  };
   const cpIntegral = (xs: number[]): number =>
     trapezoid(xs, xs.map((x) => interpLinear(fx, fcp, x) - interpLinear(cx, ccp, x)));
 
-  const xs = grid(x1, x2);
+  const xs = wallGrid(x1, x2, fx, cx);
   const F = captureFraction(x1, x2, height);
   const gammaMeasured = trapezoid(
     xs,
@@ -129,9 +137,9 @@ export function wallLoads(args: WallLoadsArgs): WallResult {
     }
     FMom = (gd((Math.PI * xEnd) / height) - gd((Math.PI * x1) / height)) /
       (gd((Math.PI * xr) / height) + Math.PI / 2);
-    clMom = cpIntegral(grid(x1, xEnd)) / chord / FMom + angleFluxCl;
+    clMom = momentumCl(cpIntegral(wallGrid(x1, xEnd, fx, cx)), chord, FMom, angleFluxCl);
   } else {
-    clMom = cpIntegral(xs) / chord / F + angleFluxCl;
+    clMom = momentumCl(cpIntegral(xs), chord, F, angleFluxCl);
   }
 
   const result: WallResult = { clMom, gammaWall, clWall, F, angleFluxCl, floor, ceiling };
@@ -163,13 +171,20 @@ export function angleFlux(args: { probes: AngleProbe[]; chord: number }): number
   }
   const probes = [...args.probes].sort((a, b) => a.y - b.y);
   probes.forEach((p, i) => {
-    requireFinite(p.y, `Rake angle probe ${i} y`);
-    requireFinite(p.angleDeg, `Rake angle probe at y = ${p.y} m angle`);
-    requireFinite(p.cpt, `Rake angle probe at y = ${p.y} m cpt`);
+    if (!Number.isFinite(p.y)) requireFinite(p.y, `Rake angle probe ${i} y`);
+    if (!Number.isFinite(p.angleDeg)) requireFinite(p.angleDeg, `Rake angle probe at y = ${p.y} m angle`);
+    if (!Number.isFinite(p.cpt)) requireFinite(p.cpt, `Rake angle probe at y = ${p.y} m cpt`);
   });
-  const uv = probes.map((p) => {
-    const th = (p.angleDeg * Math.PI) / 180;
-    return Math.max(0, p.cpt) * Math.cos(th) * Math.sin(th);
-  });
-  return -(2 / chord) * trapezoid(probes.map((p) => p.y), uv);
+  return angleFluxIntegral(probes.map((p) => p.y), probes.map((p) => angleFluxTerm(p.angleDeg, p.cpt)), chord);
+}
+
+/** u v / V∞² at one flow-angle probe: max(0, cpt)·cos θ·sin θ (shared with app/mcPlan.ts). */
+export function angleFluxTerm(angleDeg: number, cpt: number): number {
+  const th = (angleDeg * Math.PI) / 180;
+  return Math.max(0, cpt) * Math.cos(th) * Math.sin(th);
+}
+
+/** −(2/c) ∫ (u v / V∞²) dy, trapezoid over the probes sorted by y. */
+export function angleFluxIntegral(y: ArrayLike<number>, uv: ArrayLike<number>, chord: number): number {
+  return -(2 / chord) * trapezoid(y, uv);
 }
