@@ -8,7 +8,7 @@
 import {
   CORE_VERSION, DEFAULT_SETTINGS,
   type Channel, type ChannelStats, type Coefficients, type Flag, type Interval, type PolarPoint,
-  type RawRun, type RunInfo, type RunResult, type SessionSummary, type Settings, type Setup,
+  type RawRun, type ResultDigest, type RunInfo, type RunResult, type SessionSummary, type Settings, type Setup,
   type TapCp, type WakeResult, type WallResult, type ZeroedRun, type RowLoads,
 } from './types';
 import { freeStream } from './air';
@@ -590,16 +590,17 @@ export function uncertaintyModel(setup: Setup, run: ZeroedRun, settings: Setting
 // Session.
 
 /** The momentum-method cl put on the corrected basis of the pressure cl (same factor). */
-export function correctedMomentumCl(r: RunResult): number {
+export function correctedMomentumCl(r: Pick<ResultDigest, 'uncorrected' | 'corrected' | 'correction' | 'clMomentum'>): number {
   const f = r.uncorrected.cl !== 0 ? r.corrected.cl / r.uncorrected.cl : 1 - r.correction.sigma - 2 * r.correction.eps;
   return r.clMomentum * f;
 }
 
-export function summariseSession(setup: Setup, results: RunResult[], infos: RunInfo[]): SessionSummary {
+/** Session summary from the results (or their stored digests, ResultDigest) and the run index. */
+export function summariseSession(setup: Setup, results: ResultDigest[], infos: RunInfo[]): SessionSummary {
   const byRun = new Map(infos.map((i) => [i.run, i]));
   const rows = results
     .map((r) => ({ r, info: byRun.get(r.run) }))
-    .filter((x): x is { r: RunResult; info: RunInfo } => x.info !== undefined)
+    .filter((x): x is { r: ResultDigest; info: RunInfo } => x.info !== undefined)
     .sort((a, b) => a.info.time.localeCompare(b.info.time));
   const polar: PolarPoint[] = rows.map(({ r, info }) => ({
     run: r.run,
@@ -630,7 +631,7 @@ export function summariseSession(setup: Setup, results: RunResult[], infos: RunI
       const s = spanLoading(r.rows, setup.model.chord, setup.model.span, r.settings.spanSpreadTol);
       return { run: r.run, alphaDeg: r.corrected.alphaDeg, z: s.z, cl: s.cl, CL: s.CL };
     });
-  const range = (f: (x: { r: RunResult; info: RunInfo }) => number): [number, number] => {
+  const range = (f: (x: { r: ResultDigest; info: RunInfo }) => number): [number, number] => {
     const v = rows.map(f).filter(Number.isFinite);
     return v.length ? [Math.min(...v), Math.max(...v)] : [NaN, NaN];
   };

@@ -44,7 +44,7 @@ export function sessionSummary(store: Store, sessionId: number, opts: { includeR
   const setup = store.getSetup(sessionId);
   const rows = store.listRuns(sessionId);
   const rejected = new Set(rows.filter((r) => r.review?.verdict === 'rejected').map((r) => r.run));
-  const results = store.latestResults(sessionId).filter((r) => opts.includeRejected || !rejected.has(r.run));
+  const results = store.latestDigests(sessionId).filter((r) => opts.includeRejected || !rejected.has(r.run));
   return summariseSession(setup, results, store.getIndex(sessionId));
 }
 
