@@ -228,7 +228,7 @@ async function readHere(
 ): Promise<void> {
   const byRun = new Map(head.index.map((r) => [r.run, r]));
   for (const plan of head.plans) {
-    const reader = new RunFileReader(plan, head.setup, byRun, spikeK);
+    const reader = new RunFileReader(plan, head.setup, byRun, spikeK, head.sizes.get(plan.file));
     for await (const chunk of src.open(plan.file)) {
       reader.push(chunk);
       onBytes(plan.file, chunk.byteLength);

@@ -1,7 +1,7 @@
 // Import worker thread: reads run logs from disk, hashing and parsing them as they stream in, and
 // hands back their runs packed and averaged (main/runFile.ts) so that the calling thread only has
 // to store them. Started by main/importPool.ts; one file at a time per worker.
-import { closeSync, openSync, readSync } from 'node:fs';
+import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
 import { parentPort } from 'node:worker_threads';
 import type { RunInfo, Setup } from '../app/types';
 import type { RunFilePlan } from '../app/log/session';
@@ -27,11 +27,12 @@ const PROGRESS_STEP = 4 << 20;
 
 function run(job: WorkerJob): void {
   const port = parentPort!;
-  const reader = new RunFileReader(job.plan, job.setup, new Map(job.infos.map((i) => [i.run, i])), job.spikeK);
-  const buf = new Uint8Array(job.chunkSize);
   const fd = openSync(job.path, 'r');
+  let reader: RunFileReader;
   let sinceReport = 0;
   try {
+    reader = new RunFileReader(job.plan, job.setup, new Map(job.infos.map((i) => [i.run, i])), job.spikeK, fstatSync(fd).size);
+    const buf = new Uint8Array(job.chunkSize);
     for (;;) {
       const n = readSync(fd, buf, 0, buf.length, null);
       if (n === 0) break;

@@ -42,8 +42,7 @@ export function reduceStoredSession(
  *  left out unless includeRejected. */
 export function sessionSummary(store: Store, sessionId: number, opts: { includeRejected?: boolean } = {}): SessionSummary {
   const setup = store.getSetup(sessionId);
-  const rows = store.listRuns(sessionId);
-  const rejected = new Set(rows.filter((r) => r.review?.verdict === 'rejected').map((r) => r.run));
+  const rejected = opts.includeRejected ? new Set<number>() : store.rejectedRuns(sessionId);
   const results = store.latestDigests(sessionId).filter((r) => opts.includeRejected || !rejected.has(r.run));
   return summariseSession(setup, results, store.getIndex(sessionId));
 }

@@ -62,8 +62,9 @@ export class RunFileReader {
     private readonly setup: Setup,
     private readonly infos: Map<number, RunInfo>,
     private readonly spikeK: number,
+    expectedBytes?: number,
   ) {
-    this.parser = runParserFor(plan, setup);
+    this.parser = runParserFor(plan, setup, expectedBytes);
   }
 
   get bytesRead(): number {

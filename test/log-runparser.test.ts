@@ -43,6 +43,23 @@ function withCell(text: string, line: number, col: number, cell: string): string
 }
 
 describe('run log values', () => {
+  it('sizing the sample buffers from the file size changes nothing read (any size hint, any chunking)', () => {
+    fc.assert(
+      fc.property(fc.integer({ min: 1, max: 400 }), fc.integer({ min: 0, max: 3 }), fc.integer({ min: 1, max: 5000 }), (rows, hintKind, chunk) => {
+        const text = simpleLog(rows);
+        const bytes = Buffer.byteLength(text);
+        // Exact size, too small, far too large, or none.
+        const hint = [bytes, Math.floor(bytes / 3), bytes * 7, undefined][hintKind];
+        const plain = parse(text).result as Record<string, Float64Array>;
+        const p = createRunParser(FILE, setup, { expectedBytes: hint });
+        for (let i = 0; i < text.length; i += chunk) p.push(text.slice(i, i + chunk));
+        const sized = p.end() as Record<string, Float64Array>;
+        for (const n of names) expect(Array.from(sized[n])).toEqual(Array.from(plain[n]));
+      }),
+      { numRuns: 60 },
+    );
+  });
+
   it('reads every channel, converting to Pa with the channel unit', () => {
     const { result } = parse(simpleLog(3));
     const r = result as Record<string, Float64Array>;

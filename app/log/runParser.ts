@@ -25,6 +25,9 @@ export interface RunParserOptions {
   runColumn?: boolean;
   /** Longest line accepted, in bytes (default 16 MiB). */
   maxLineLength?: number;
+  /** Size of the whole file in bytes, if known: the sample buffers of a one-run file are then
+   *  sized from it and the first line's length once, instead of growing by doubling. */
+  expectedBytes?: number;
 }
 
 export type RunChannels = Record<string, Float64Array>;
@@ -80,8 +83,10 @@ class RunBuffers {
     });
     this.cap = cap;
   }
+  /** The columns cut to the samples read: views when little is left over, else copies. */
   trimmed(): Float64Array[] {
-    return this.cols.map((c) => (c.length === this.n ? c : c.slice(0, this.n)));
+    const n = this.n;
+    return this.cols.map((c) => (c.length === n ? c : c.length - n <= c.length / 8 ? c.subarray(0, n) : c.slice(0, n)));
   }
 }
 
@@ -263,6 +268,22 @@ class Scanner {
     this.factors = Float64Array.from(f);
     this.row = new Float64Array(this.names.length);
     if (!this.long) this.single = new RunBuffers(this.names.length, 1024);
+    this.headerBytes = raw.length + 1;
+  }
+
+  private headerBytes = 0;
+  private sized = false;
+
+  /** Size the one-run buffers from the file size and the first sample line (see expectedBytes). */
+  private sizeFrom(b: Uint8Array, i: number): void {
+    this.sized = true;
+    const total = this.opts.expectedBytes;
+    if (!total || !this.single || this.single.n !== 0) return;
+    const nl = b.indexOf(NL, i);
+    if (nl < 0) return;
+    const lineLen = nl - i + 1;
+    const estimate = Math.ceil(((total - this.headerBytes) / lineLen) * 1.05) + 8;
+    if (estimate > this.single.cap && estimate < 1 << 26) this.single = new RunBuffers(this.names.length, estimate);
   }
 
   private label(col: number): { column: string; columnKind: 'channel' | 'column' } {
@@ -292,6 +313,7 @@ class Scanner {
     const rv = this.row;
     const nv = rv.length;
     const factors = this.factors;
+    if (!this.sized) this.sizeFrom(b, i);
     while (i < to) {
       const lineNo = this.line + 1;
       let c = b[i];

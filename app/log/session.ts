@@ -41,8 +41,8 @@ export function planRunFiles(index: RunInfo[], lines?: number[]): RunFilePlan[] 
   return [...byFile.values()];
 }
 
-export function runParserFor(plan: RunFilePlan, setup: Setup): RunParser {
-  return createRunParser(plan.file, setup, { runColumn: plan.long });
+export function runParserFor(plan: RunFilePlan, setup: Setup, expectedBytes?: number): RunParser {
+  return createRunParser(plan.file, setup, { runColumn: plan.long, expectedBytes });
 }
 
 /** Match one parsed file to the index runs it should hold. */
