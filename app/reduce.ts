@@ -595,13 +595,17 @@ export function correctedMomentumCl(r: Pick<ResultDigest, 'uncorrected' | 'corre
   return r.clMomentum * f;
 }
 
+/** String.prototype.localeCompare's own order (default locale and options), one collator reused:
+ *  localeCompare builds one per call, which dominated the summary of a 300-run day. */
+const timeOrder = new Intl.Collator();
+
 /** Session summary from the results (or their stored digests, ResultDigest) and the run index. */
 export function summariseSession(setup: Setup, results: ResultDigest[], infos: RunInfo[]): SessionSummary {
   const byRun = new Map(infos.map((i) => [i.run, i]));
   const rows = results
     .map((r) => ({ r, info: byRun.get(r.run) }))
     .filter((x): x is { r: ResultDigest; info: RunInfo } => x.info !== undefined)
-    .sort((a, b) => a.info.time.localeCompare(b.info.time));
+    .sort((a, b) => timeOrder.compare(a.info.time, b.info.time));
   const polar: PolarPoint[] = rows.map(({ r, info }) => ({
     run: r.run,
     alphaDeg: r.corrected.alphaDeg,

@@ -121,7 +121,7 @@ function segmentsOf(ordered: SessionPoint[]): Segment[] {
   return segs;
 }
 
-function maxAbsResidual(a: number[], c: number[], fit: LineFit): { max: number; rms: number } {
+function maxAbsResidual(a: ArrayLike<number>, c: ArrayLike<number>, fit: LineFit): { max: number; rms: number } {
   let max = 0;
   let ss = 0;
   for (let i = 0; i < a.length; i++) {
@@ -139,11 +139,12 @@ function linearRange(primary: SessionPoint[], tol: number): { fit: LineFit; rang
   let iMax = 0;
   for (let i = 1; i < pts.length; i++) if (pts[i].cl > pts[iMax].cl) iMax = i;
   const use = pts.slice(0, iMax + 1).length >= 2 ? pts.slice(0, iMax + 1) : pts;
-  const a = use.map((p) => p.alphaDeg);
-  const c = use.map((p) => p.cl);
+  // Typed arrays: the windows below are views (subarray), not copies — O(n²) windows of O(n).
+  const a = Float64Array.from(use, (p) => p.alphaDeg);
+  const c = Float64Array.from(use, (p) => p.cl);
   const fitOf = (i: number, j: number): LineFit | null => {
     if (a[j] - a[i] <= ALPHA_TOL_DEG) return null; // window at one α: no line
-    return linearFit(a.slice(i, j + 1), c.slice(i, j + 1));
+    return linearFit(a.subarray(i, j + 1), c.subarray(i, j + 1));
   };
   if (use.length === 2) {
     const fit = fitOf(0, 1);
@@ -155,7 +156,7 @@ function linearRange(primary: SessionPoint[], tol: number): { fit: LineFit; rang
     for (let j = i + 2; j < use.length; j++) {
       const fit = fitOf(i, j);
       if (!fit) continue;
-      const r = maxAbsResidual(a.slice(i, j + 1), c.slice(i, j + 1), fit);
+      const r = maxAbsResidual(a.subarray(i, j + 1), c.subarray(i, j + 1), fit);
       const n = j - i + 1;
       if (r.max <= tol && (!best || n > best.n || (n === best.n && r.rms < best.rms))) {
         best = { n, rms: r.rms, i, j, fit };

@@ -345,6 +345,11 @@ export class Store {
     return sessionOf(r);
   }
 
+  /** NotFoundError unless the session exists (a cheap check: getSession also counts runs and flags). */
+  assertSession(sessionId: number): void {
+    if (!this.db.prepare('SELECT 1 FROM sessions WHERE id = ?').get(sessionId)) throw new NotFoundError(`unknown session ${sessionId}`);
+  }
+
   /** The session's setup. A setup never changes once stored, so it is decoded once and the same
    *  (deeply frozen) object is handed out after that; the core's per-setup caches then hold too. */
   getSetup(sessionId: number): Setup {
@@ -448,7 +453,7 @@ export class Store {
   // ------------------------------------------------------------------ runs and samples
 
   listRuns(sessionId: number): RunRow[] {
-    this.getSession(sessionId);
+    this.assertSession(sessionId);
     return (this.db.prepare(`${RUN_SELECT} WHERE r.session_id = ? ORDER BY r.index_pos`).all(sessionId) as RunJoinRow[]).map(runRowOf);
   }
 
@@ -466,7 +471,7 @@ export class Store {
 
   /** The run index as stored (index order). Optional extra. */
   getIndex(sessionId: number): RunInfo[] {
-    this.getSession(sessionId);
+    this.assertSession(sessionId);
     return (this.db.prepare('SELECT * FROM runs WHERE session_id = ? ORDER BY index_pos').all(sessionId) as RunDbRow[]).map(infoOf);
   }
 
@@ -697,7 +702,7 @@ export class Store {
   /** Store reductions (one transaction, one audit entry); history is kept. Returns the result ids. */
   saveResults(sessionId: number, results: RunResult[], actor: string): number[] {
     this.assertWritable('saveResults');
-    this.getSession(sessionId);
+    this.assertSession(sessionId);
     const kinds = new Map((this.db.prepare('SELECT run, kind FROM runs WHERE session_id = ?').all(sessionId) as { run: number; kind: RunKind }[]).map((r) => [r.run, r.kind]));
     for (const r of results) checkResult(r, kinds, sessionId);
     const ins = this.db.prepare(`INSERT INTO reductions (session_id, run, reduced_at, core_version, actor, audit_id, settings_json, result_json,
@@ -735,7 +740,7 @@ export class Store {
 
   /** Latest result of every reduced run, index order (optional extra). */
   latestResults(sessionId: number): RunResult[] {
-    this.getSession(sessionId);
+    this.assertSession(sessionId);
     const rows = this.db.prepare(`SELECT lr.result_json FROM latest_reductions lr JOIN runs r ON r.session_id = lr.session_id AND r.run = lr.run
       WHERE lr.session_id = ? ORDER BY r.index_pos`).all(sessionId) as { result_json: string }[];
     return rows.map((r) => decodeJson<RunResult>(r.result_json));
@@ -743,7 +748,7 @@ export class Store {
 
   /** Digest of the latest result of every reduced run, index order (the session summary's input). */
   latestDigests(sessionId: number): ResultDigest[] {
-    this.getSession(sessionId);
+    this.assertSession(sessionId);
     const rows = this.db.prepare(`SELECT lr.digest_json, CASE WHEN lr.digest_json IS NULL THEN lr.result_json END AS result_json
       FROM latest_reductions lr JOIN runs r ON r.session_id = lr.session_id AND r.run = lr.run
       WHERE lr.session_id = ? ORDER BY r.index_pos`).all(sessionId) as { digest_json: string | null; result_json: string | null }[];
