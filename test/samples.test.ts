@@ -1,6 +1,7 @@
 // Sample statistics and wind-off zeros (REDUCTION.md §2): common practice, no source.
 import { describe, expect, it } from 'vitest';
-import { applyZeros, averageRun, channelStats, mad, median, unsteadiness } from '../app/samples';
+import fc from 'fast-check';
+import { applyZeros, averageRun, channelCentre, channelStats, mad, median, unsteadiness } from '../app/samples';
 import { createRng, gaussian } from '../app/uncertainty';
 import type { ChannelStats, RunInfo } from '../app/types';
 
@@ -166,5 +167,229 @@ describe('applyZeros', () => {
 describe('unsteadiness', () => {
   it('is std/|mean|', () => {
     expect(unsteadiness({ mean: -400, std: 8, n: 10, stdErr: 1, rejected: 0 })).toBeCloseTo(0.02, 14);
+  });
+});
+
+// ---- channelStats against a plain sort-based reference ------------------------------------------
+// channelStats finds the median and the MAD by bucketing (exact order statistics, no sort); these
+// properties compare it with the definition computed the obvious way: sort a copy, take the middle
+// value (mean of the two middle values for an even count), the same for |x − median|; reject
+// samples with |x − median| > k·1.4826·MAD (none if the MAD is 0). Common practice, no source.
+// Mean and standard deviation of the kept samples are compared with a two-pass reference whose
+// mean is summed with Neumaier's compensated summation (A. Neumaier, ZAMM 54 (1974) 39–51, from
+// memory), so that the reference itself is accurate to a few 1e-16 relative.
+
+type Ref = { median: number; mad: number; rejected: number; mean: number; std: number };
+
+function sortedMiddle(s: number[]): number {
+  const h = s.length >> 1;
+  return s.length % 2 === 1 ? s[h] : 0.5 * (s[h - 1] + s[h]);
+}
+
+function reference(a: readonly number[], spikeK: number): Ref {
+  const median = sortedMiddle([...a].sort((p, q) => p - q));
+  const mad = sortedMiddle(a.map((v) => Math.abs(v - median)).sort((p, q) => p - q));
+  const sigma = 1.4826 * mad;
+  const limit = sigma > 0 && spikeK > 0 ? spikeK * sigma : Number.POSITIVE_INFINITY;
+  const kept = a.filter((v) => !(Math.abs(v - median) > limit));
+  let sum = 0;
+  let comp = 0;
+  for (const v of kept) {
+    const t = sum + v;
+    comp += Math.abs(sum) >= Math.abs(v) ? sum - t + v : v - t + sum;
+    sum = t;
+  }
+  const mean = kept.length > 0 ? (sum + comp) / kept.length : 0;
+  let ss = 0;
+  for (const v of kept) ss += (v - mean) ** 2;
+  const std = kept.length > 1 ? Math.sqrt(ss / (kept.length - 1)) : 0;
+  return { median, mad, rejected: a.length - kept.length, mean, std };
+}
+
+/** Checks channelStats and channelCentre on `a` (as Float64Array and as number[]) against the
+ *  reference; returns a description of the first mismatch, or '' if none. */
+function mismatch(a: readonly number[], spikeK: number): string {
+  const r = reference(a, spikeK);
+  const f64 = Float64Array.from(a);
+  const c = channelCentre(f64);
+  const s = channelStats(f64, spikeK);
+  const s2 = channelStats(a, spikeK);
+  // === treats −0 and +0 as equal: the sign of a zero median is not defined by the sort either.
+  if (c.median !== r.median) return `median ${c.median} ≠ ${r.median}`;
+  if (c.mad !== r.mad) return `MAD ${c.mad} ≠ ${r.mad}`;
+  if (s.rejected !== r.rejected) return `rejected ${s.rejected} ≠ ${r.rejected}`;
+  if (s.n !== a.length - r.rejected) return `n ${s.n} ≠ ${a.length - r.rejected}`;
+  if (JSON.stringify(s2) !== JSON.stringify(s)) return `number[] ${JSON.stringify(s2)} ≠ Float64Array ${JSON.stringify(s)}`;
+  // Only where the reference is finite and its squares neither overflow (std < 1e150) nor
+  // underflow into subnormals, which keep fewer digits (std ≥ 1e-150, or exactly 0). Tolerances:
+  // 1e-12 relative, the mean relative to max(|mean|, std) (its rounding error scales with the
+  // spread: the mean of ±1 is 0 ± ~1e-16), and the std with a floor of 1e-15·|mean| (the samples
+  // themselves are only resolved to ~1e-16·|x|; a constant set's std is 0 to that resolution).
+  if (Number.isFinite(r.mean) && Number.isFinite(r.std) && r.std < 1e150) {
+    if (!(Math.abs(s.mean - r.mean) <= 1e-12 * Math.max(Math.abs(r.mean), r.std))) {
+      return `mean ${s.mean} ≠ ${r.mean}`;
+    }
+    if ((r.std === 0 || r.std >= 1e-150) && !(Math.abs(s.std - r.std) <= 1e-12 * r.std + 1e-15 * Math.abs(r.mean))) {
+      return `std ${s.std} ≠ ${r.std}`;
+    }
+  }
+  return '';
+}
+
+const spikeKs = fc.constantFrom(5, 3, 1, 10, 0.5, Number.POSITIVE_INFINITY);
+
+/** A channel as an instrument records it: offset + Gaussian noise, optionally quantised, with a
+ *  drift and a few spikes; lengths on both sides of the 64-sample threshold of the fast route. */
+const channel = fc
+  .record({
+    n: fc.oneof(fc.integer({ min: 1, max: 80 }), fc.integer({ min: 65, max: 2500 })),
+    offset: fc.double({ min: -1e6, max: 1e6, noNaN: true }),
+    log10Noise: fc.double({ min: -10, max: 4, noNaN: true }),
+    quantum: fc.constantFrom(0, 0, 1e-3, 0.1, 1, 50),
+    drift: fc.constantFrom(0, 0, 1e-4, 1e-2),
+    spikes: fc.integer({ min: 0, max: 40 }),
+    log10Spike: fc.double({ min: 0, max: 10, noNaN: true }),
+    seed: fc.integer({ min: 0, max: 1_000_000 }),
+  })
+  .map((p) => {
+    const rng = createRng(p.seed);
+    const noise = 10 ** p.log10Noise;
+    const a = Array.from({ length: p.n }, (_, i) => {
+      const v = p.offset + p.drift * i + noise * gaussian(rng);
+      return p.quantum > 0 ? Math.round(v / p.quantum) * p.quantum : v;
+    });
+    for (let s = 0; s < p.spikes && a.length > 0; s++) {
+      a[Math.floor(rng() * a.length)] += (rng() < 0.5 ? -1 : 1) * noise * 10 ** (p.log10Spike * rng());
+    }
+    return a;
+  });
+
+describe('channelStats: exact median, MAD and rejection (fast-check)', () => {
+  it('realistic channels: noise levels, offsets, quantisation, drift, spikes', () => {
+    fc.assert(
+      fc.property(channel, spikeKs, (a, k) => {
+        expect(mismatch(a, k)).toBe('');
+      }),
+      { numRuns: 400 },
+    );
+  });
+
+  it('arbitrary doubles, subnormal to ±1.8e308, ±0 included', () => {
+    fc.assert(
+      fc.property(
+        fc.array(fc.double({ noNaN: true, noDefaultInfinity: true }), { minLength: 1, maxLength: 400 }),
+        spikeKs,
+        (a, k) => {
+          expect(mismatch(a, k)).toBe('');
+        },
+      ),
+      { numRuns: 300 },
+    );
+  });
+
+  it('small integers: many duplicates, odd and even counts', () => {
+    fc.assert(
+      fc.property(
+        fc.array(fc.integer({ min: -4, max: 4 }), { minLength: 1, maxLength: 1500 }),
+        spikeKs,
+        (a, k) => {
+          expect(mismatch(a, k)).toBe('');
+        },
+      ),
+      { numRuns: 300 },
+    );
+  });
+
+  it('mostly one value (a bucket holding most samples), a few others', () => {
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 1, max: 2000 }),
+        fc.double({ min: -1e3, max: 1e3, noNaN: true }),
+        fc.array(fc.double({ min: -1e3, max: 1e3, noNaN: true }), { maxLength: 900 }),
+        fc.integer({ min: 0, max: 1_000_000 }),
+        spikeKs,
+        (n, value, others, seed, k) => {
+          const rng = createRng(seed);
+          const a: number[] = Array.from({ length: n }, () => value);
+          for (const o of others) a.splice(Math.floor(rng() * (a.length + 1)), 0, o);
+          expect(mismatch(a, k)).toBe('');
+        },
+      ),
+      { numRuns: 200 },
+    );
+  });
+
+  it('two clusters far apart: the middle values of an even count lie in different clusters', () => {
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 1, max: 1000 }),
+        fc.double({ min: 1, max: 1e9, noNaN: true }),
+        fc.integer({ min: 0, max: 1_000_000 }),
+        spikeKs,
+        (half, gap, seed, k) => {
+          const rng = createRng(seed);
+          const a = Array.from({ length: 2 * half }, (_, i) => (i % 2 === 0 ? 0 : gap) + gaussian(rng));
+          expect(mismatch(a, k)).toBe('');
+        },
+      ),
+      { numRuns: 150 },
+    );
+  });
+});
+
+describe('channelStats: edge cases against the reference', () => {
+  const cases: Record<string, number[]> = {
+    'one sample': [4.5],
+    'two samples': [1, 4],
+    'constant, long': Array.from({ length: 3000 }, () => 0.1),
+    'constant but one, long': Array.from({ length: 2001 }, (_, i) => (i === 1234 ? 7 : 0.1)),
+    '±0 only': Array.from({ length: 999 }, (_, i) => (i % 3 === 0 ? -0 : 0)),
+    '±0 and a few values': Array.from({ length: 1000 }, (_, i) => (i % 7 === 0 ? i : i % 2 === 0 ? -0 : 0)),
+    'near ±MAX_VALUE': Array.from({ length: 500 }, (_, i) => (i % 2 === 0 ? 1 : -1) * Number.MAX_VALUE * (1 - i * 1e-4)),
+    'huge spike among small values': Array.from({ length: 2000 }, (_, i) => (i === 77 ? 1.7e308 : Math.sin(i))),
+    subnormal: Array.from({ length: 700 }, (_, i) => (i - 350) * Number.MIN_VALUE),
+    'exponentially spaced': Array.from({ length: 1500 }, (_, i) => 1.4 ** (i % 700) * (i % 2 === 0 ? 1 : -1)),
+    'integers 0…n−1 shuffled': (() => {
+      const rng = createRng(3);
+      const a = Array.from({ length: 4096 }, (_, i) => i);
+      for (let i = a.length - 1; i > 0; i--) {
+        const j = Math.floor(rng() * (i + 1));
+        [a[i], a[j]] = [a[j], a[i]];
+      }
+      return a;
+    })(),
+  };
+  for (const [name, a] of Object.entries(cases)) {
+    it(name, () => {
+      for (const k of [5, 1, Number.POSITIVE_INFINITY]) expect(mismatch(a, k)).toBe('');
+    });
+  }
+
+  it('two samples: median is their mean, MAD half their distance', () => {
+    expect(channelCentre([1, 4])).toEqual({ median: 2.5, mad: 1.5 });
+  });
+
+  it('spikeK 0, negative or NaN rejects nothing, as ∞ does', () => {
+    const rng = createRng(11);
+    const a = Float64Array.from({ length: 2000 }, (_, i) => gaussian(rng) + (i % 100 === 0 ? 1e6 : 0));
+    const all = channelStats(a, Number.POSITIVE_INFINITY);
+    expect(all.rejected).toBe(0);
+    for (const k of [0, -3, Number.NaN]) expect(channelStats(a, k)).toEqual(all);
+    expect(channelStats(a, 5).rejected).toBe(20);
+  });
+
+  it('a non-finite sample is reported by its first position, in short and long arrays', () => {
+    for (const n of [5, 64, 65, 2000]) {
+      for (const bad of [Number.NaN, Number.POSITIVE_INFINITY, Number.NEGATIVE_INFINITY]) {
+        for (const at of [0, Math.floor(n / 2), n - 1]) {
+          const a = Array.from({ length: n }, (_, i) => 10 + Math.cos(i));
+          a[at] = bad;
+          if (at + 1 < n) a[n - 1] = Number.NaN; // a later one too: the first is named
+          const msg = `sample ${at + 1} is not a finite number`;
+          expect(() => channelStats(a, 5)).toThrow(msg);
+          expect(() => channelStats(Float64Array.from(a), 5)).toThrow(msg);
+        }
+      }
+    }
   });
 });
