@@ -254,7 +254,7 @@ async function readOnWorkers(
     started[k] = p;
   };
   try {
-    const window = workers + 1;
+    const window = 2 * workers + 2;
     for (let k = 0; k < Math.min(window, head.plans.length); k++) start(k);
     for (let k = 0; k < head.plans.length; k++) {
       const f = await started[k];

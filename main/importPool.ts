@@ -1,6 +1,6 @@
 // Worker threads that read, parse, average and pack run logs for an import (main/importWorker.ts),
 // so that a large session uses every core while the calling thread stores what they hand back.
-// Results are taken in the order the files were asked for; at most `workers + 1` files are in
+// Results are taken in the order the files were asked for; at most 2·workers + 2 files are in
 // flight, which bounds the memory to a few run logs whatever the session's size.
 import { availableParallelism } from 'node:os';
 import path from 'node:path';

@@ -247,6 +247,11 @@ export function decodeJson<T>(s: string): T {
 const num = (x: number | null): number => (x === null ? Number.NaN : x);
 const dbNum = (x: number): number | null => (Number.isFinite(x) ? x : null);
 
+const SAMPLE_COLUMNS = ['session_id', 'run', 'channel', 'dtype', 'n', 'data', 'dec_exp', 'unit_factor'] as const;
+const STAT_COLUMNS = ['session_id', 'run', 'channel', 'spike_k', 'mean', 'std', 'n', 'std_err', 'rejected'] as const;
+/** Rows a multi-row INSERT of the import takes (64 × 9 parameters, well inside SQLite's limit). */
+const ROWS_PER_INSERT = 64;
+
 interface SampleRow { channel: string; dtype: string; n: number; data: Buffer; dec_exp: number | null; unit_factor: number | null }
 function samplesOfRow(r: SampleRow): Float64Array {
   return decodeSamples(r.dtype, r.data, r.n, r.dec_exp, r.unit_factor);
@@ -684,12 +689,37 @@ export class Store {
     this.db.prepare(`INSERT INTO runs (session_id, run, kind, time, alpha_deg, baro, temperature_c, humidity, file, source_id, samples, index_pos)
       VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`)
       .run(sessionId, i.run, i.kind, i.time, i.alphaDeg, i.baro, i.temperatureC, i.humidity, i.file ?? null, sourceId, p.n, indexPos);
-    const ins = this.db.prepare('INSERT INTO samples (session_id, run, channel, dtype, n, data, dec_exp, unit_factor) VALUES (?, ?, ?, ?, ?, ?, ?, ?)');
+    // Many rows a statement (one call into SQLite per 64 channels rather than per channel).
     const buf = Buffer.from(p.bytes.buffer, p.bytes.byteOffset, p.bytes.byteLength);
-    p.parts.forEach((part, k) => {
-      ins.run(sessionId, i.run, p.names[k], part.dtype, part.n, buf.subarray(part.offset, part.offset + part.length), part.decExp, part.factor);
-    });
-    this.putStats(sessionId, { info: i, stats: p.stats }, spikeK, false);
+    const K = p.parts.length;
+    for (let k0 = 0; k0 < K; k0 += ROWS_PER_INSERT) {
+      const k1 = Math.min(K, k0 + ROWS_PER_INSERT);
+      const sv: unknown[] = [];
+      const tv: unknown[] = [];
+      for (let k = k0; k < k1; k++) {
+        const part = p.parts[k];
+        const name = p.names[k];
+        sv.push(sessionId, i.run, name, part.dtype, part.n, buf.subarray(part.offset, part.offset + part.length), part.decExp, part.factor);
+        const st = p.stats[name];
+        if (!st) throw new Error(`import: run ${i.run} has no statistics for channel ${name}`);
+        tv.push(sessionId, i.run, name, spikeK, dbNum(st.mean), dbNum(st.std), st.n, dbNum(st.stdErr), st.rejected);
+      }
+      this.multiInsert('samples', SAMPLE_COLUMNS, k1 - k0).run(...sv);
+      this.multiInsert('channel_stats', STAT_COLUMNS, k1 - k0).run(...tv);
+    }
+  }
+
+  private readonly multi = new Map<string, Database.Statement>();
+  /** INSERT of `rows` rows at once, prepared once per shape. */
+  private multiInsert(table: string, columns: readonly string[], rows: number): Database.Statement {
+    const key = `${table}/${rows}`;
+    let st = this.multi.get(key);
+    if (!st) {
+      const one = `(${columns.map(() => '?').join(', ')})`;
+      st = this.db.prepare(`INSERT INTO ${table} (${columns.join(', ')}) VALUES ${Array.from({ length: rows }, () => one).join(', ')}`);
+      this.multi.set(key, st);
+    }
+    return st;
   }
 
   /** (import) One audit row. */
