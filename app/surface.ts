@@ -89,17 +89,10 @@ function validatePoints(points: readonly ContourPoint[], what: string): void {
  *  integrateContour, shared with the Monte Carlo plan of app/mcPlan.ts): x, y, cp of `nUpper`
  *  upper-surface points (trailing edge → leading edge) followed by `n − nUpper` lower-surface points
  *  (leading edge → trailing edge); 1 ≤ nUpper < n. */
-export interface ContourIntegrals {
-  cn: number;
-  ca: number;
-  cl: number;
-  cdp: number;
-  cmLE: number;
-  cmc4: number;
-  teCp: number;
+export type ContourIntegrals = Pick<SurfaceLoads, 'cn' | 'ca' | 'cl' | 'cdp' | 'cmLE' | 'cmc4' | 'teCp'> & {
   teUpper: TeSurfaceMethod;
   teLower: TeSurfaceMethod;
-}
+};
 
 /** See ContourIntegrals. */
 export function contourIntegrals(
