@@ -27,7 +27,7 @@ protocol.registerSchemesAsPrivileged([
 const rendererDir = path.join(__dirname, '..', 'renderer');
 const preloadFile = path.join(__dirname, 'preload.cjs');
 // Import worker threads run the bundled dist/main/importWorker.cjs (esbuild entry in scripts/build.mjs).
-setImportWorkerScript(path.join(__dirname, 'importWorker.cjs'));
+setImportWorkerScript(path.join(__dirname, 'importWorker.cjs').replace(/app\.asar([\\/])/, 'app.asar.unpacked$1'));
 const demoFolder = app.isPackaged
   ? path.join(process.resourcesPath, 'demo-session')
   : path.join(app.getAppPath(), 'resources', 'demo', 'session');

@@ -10,7 +10,7 @@ import { stat } from 'node:fs/promises';
 import { createHash } from 'node:crypto';
 import { join, resolve } from 'node:path';
 import type { RawRun, RunInfo, Setup } from '../app/types';
-import { LogError } from '../app/log/errors';
+import { LogError, isLogError } from '../app/log/errors';
 import { parseSetup } from '../app/log/setup';
 import { parseRunIndexDetailed } from '../app/log/runIndex';
 import {
@@ -242,29 +242,54 @@ async function readOnWorkers(
   src: SessionSource, head: SessionHead, spikeK: number, workers: number,
   onBytes: (file: string, n: number) => void, onFile: (f: PreparedFile) => void,
 ): Promise<void> {
-  const pool = new ImportPool(workers);
+  let pool: ImportPool;
+  try {
+    pool = new ImportPool(workers);
+  } catch (e) {
+    return readHereAfterWorkers(e, src, head, 0, spikeK, onBytes, onFile);
+  }
   const byRun = new Map(head.index.map((r) => [r.run, r]));
   const started: Promise<PreparedFile>[] = [];
+  const counted = new Map<string, number>();
   const start = (k: number) => {
     const plan = head.plans[k];
     const p = pool.run({
       path: src.path!(plan.file)!, plan, infos: plan.runs.map((r) => byRun.get(r)!), setup: head.setup, spikeK, chunkSize: 1 << 20,
-    }, (n) => onBytes(plan.file, n));
+    }, (n) => {
+      counted.set(plan.file, (counted.get(plan.file) ?? 0) + n);
+      onBytes(plan.file, n);
+    });
     p.catch(() => undefined); // awaited in order below; a later file's failure must not go unhandled
     started[k] = p;
   };
+  let k = 0;
   try {
     const window = 2 * workers + 2;
-    for (let k = 0; k < Math.min(window, head.plans.length); k++) start(k);
-    for (let k = 0; k < head.plans.length; k++) {
+    for (let j = 0; j < Math.min(window, head.plans.length); j++) start(j);
+    for (; k < head.plans.length; k++) {
       const f = await started[k];
       delete started[k];
       if (k + window < head.plans.length) start(k + window);
       onFile(f);
     }
+  } catch (e) {
+    // Bad input is the import's answer; a worker that could not start or died is not: the rest
+    // of the run logs are then read on this thread (progress counted again from there).
+    if (isLogError(e) || k >= head.plans.length) throw e;
+    for (const plan of head.plans.slice(k)) onBytes(plan.file, -(counted.get(plan.file) ?? 0));
+    await pool.close();
+    return readHereAfterWorkers(e, src, head, k, spikeK, onBytes, onFile);
   } finally {
     await pool.close();
   }
+}
+
+async function readHereAfterWorkers(
+  e: unknown, src: SessionSource, head: SessionHead, from: number, spikeK: number,
+  onBytes: (file: string, n: number) => void, onFile: (f: PreparedFile) => void,
+): Promise<void> {
+  process.emitWarning(`rakeline: import worker threads unavailable (${e instanceof Error ? e.message : String(e)}); reading on the main thread`);
+  await readHere(src, { ...head, plans: head.plans.slice(from) }, spikeK, onBytes, onFile);
 }
 
 /** Read a folder and store it (one transaction). */

@@ -12,8 +12,8 @@ import type { WorkerJob, WorkerReply } from './importWorker';
 let workerScript: string | URL | null = null;
 
 /** Where the worker's entry is: set by the packaged app (dist/main/importWorker.cjs); from the
- *  TypeScript sources it is main/importWorker.boot.mjs next to this file. */
-export function setImportWorkerScript(script: string | URL): void {
+ *  TypeScript sources it is main/importWorker.boot.mjs next to this file (also after null). */
+export function setImportWorkerScript(script: string | URL | null): void {
   workerScript = script;
 }
 

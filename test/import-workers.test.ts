@@ -6,6 +6,7 @@ import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { Store } from '../main/store';
 import { importSessionFolder } from '../main/import';
+import { setImportWorkerScript } from '../main/importPool';
 import { cleanupTempDirs, dbContents, dbSnapshot, editFile, miniFolder, tempDir } from './helpers/store-fixtures';
 
 afterAll(() => cleanupTempDirs());
@@ -61,6 +62,24 @@ describe('import on worker threads', () => {
     // And the store is free again for the next import.
     expect(store.importInProgress).toBe(false);
     store.close();
+  });
+
+  it('worker threads that cannot start: the import reads on the calling thread instead, same result', async () => {
+    const dir = tempDir();
+    const f = miniFolder(join(dir, 's'), { runs: { dataRuns: 3, samples: 60 }, write: { digits: 6 } });
+    const here = Store.open(join(dir, 'here.sqlite'));
+    const there = Store.open(join(dir, 'there.sqlite'));
+    await importSessionFolder(here, f.dir, { actor: 'x', workers: 0 });
+    setImportWorkerScript(join(dir, 'no-such-worker.mjs'));
+    try {
+      const rep = await importSessionFolder(there, f.dir, { actor: 'x', workers: 2 });
+      expect(rep.importedRuns).toEqual(f.index.map((i) => i.run));
+    } finally {
+      setImportWorkerScript(null);
+    }
+    expect(stored(there)).toEqual(stored(here));
+    here.close();
+    there.close();
   });
 
   it('while an import is in progress, writes through the store are refused at once, reads see the committed state', async () => {
