@@ -782,3 +782,34 @@ export function applyZeros(
     zeroRaw,
   };
 }
+
+/**
+ * The runs a reduction of `wanted` needs: those runs, and for each data run among them the
+ * wind-off zeros nearest before and after it in time (every zero run at those two times), which
+ * are all applyZeros (above) ever uses. Times that do not parse are left to applyZeros to
+ * report: then every zero run is included.
+ */
+export function zeroRunsFor(index: RunInfo[], wanted: ReadonlySet<number>): Set<number> {
+  const out = new Set<number>(wanted);
+  const zeros = index.filter((i) => i.kind === 'zero').map((z) => ({ run: z.run, t: Date.parse(z.time) }));
+  if (zeros.some((z) => Number.isNaN(z.t))) {
+    for (const z of zeros) out.add(z.run);
+    return out;
+  }
+  for (const info of index) {
+    if (!wanted.has(info.run) || info.kind !== 'data') continue;
+    const t = Date.parse(info.time);
+    if (Number.isNaN(t)) {
+      for (const z of zeros) out.add(z.run);
+      continue;
+    }
+    let before = -Infinity;
+    let after = Infinity;
+    for (const z of zeros) {
+      if (z.t <= t && z.t > before) before = z.t;
+      if (z.t > t && z.t < after) after = z.t;
+    }
+    for (const z of zeros) if (z.t === before || z.t === after) out.add(z.run);
+  }
+  return out;
+}

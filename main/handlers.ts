@@ -20,7 +20,8 @@ import { INDEX_FILE, LONG_LOG_DEFAULT, SETUP_FILE } from '../app/log/session';
 import { parseRunIndexDetailed } from '../app/log/runIndex';
 import type { Store, RunRow, ImportProgress, ImportReport } from './store';
 import { folderSource, importSession, importSessionFolder, type SessionSource } from './import';
-import { reduceStoredSession, sessionSummary, zeroRunsFor } from './reduceService';
+import { reduceStoredSession, sessionSummary } from './reduceService';
+import { zeroRunsFor } from '../app/samples';
 import { daySheetHtml, FLAG_WORDS } from './daysheet';
 import { exportResultsCsv, exportResultsJson } from './export';
 

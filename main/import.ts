@@ -14,7 +14,7 @@ import { LogError, isLogError } from '../app/log/errors';
 import { parseSetup } from '../app/log/setup';
 import { parseRunIndexDetailed } from '../app/log/runIndex';
 import {
-  INDEX_FILE, SETUP_FILE, collectRuns, missingFileError, parseSessionTexts, planRunFiles, runParserFor, type RunFilePlan,
+  INDEX_FILE, SETUP_FILE, missingFileError, parseSessionTexts, planRunFiles, type RunFilePlan,
 } from '../app/log/session';
 import type { ImportProgress, ImportReport, ParsedSession, SourceInfo, Store } from './store';
 import { RunFileReader, type PreparedFile } from './runFile';
@@ -131,21 +131,17 @@ export async function readSession(src: SessionSource, onProgress?: (p: ImportPro
   const byRun = new Map(head.index.map((r) => [r.run, r]));
   const runs: RawRun[] = [];
   for (const plan of plans) {
-    const parser = runParserFor(plan, setup);
-    const h = createHash('sha256');
-    let bytes = 0;
+    const reader = new RunFileReader(plan, setup, byRun, Number.NaN, head.sizes.get(plan.file));
     for await (const chunk of src.open(plan.file)) {
-      h.update(chunk);
-      parser.push(chunk);
-      bytes += chunk.byteLength;
+      reader.push(chunk);
       bytesDone += chunk.byteLength;
       onProgress?.({ phase: 'parse', file: plan.file, bytesDone, bytesTotal, runsDone, runsTotal });
     }
-    const got = collectRuns(plan, parser.end(), byRun, warnings);
-    warnings.push(...parser.warnings);
-    sources.push({ name: plan.file, sha256: h.digest('hex'), bytes });
-    runs.push(...got);
-    runsDone += got.length;
+    const got = reader.endRaw();
+    warnings.push(...got.warnings);
+    sources.push({ name: got.name, sha256: got.sha256, bytes: got.bytes });
+    runs.push(...got.raws);
+    runsDone += got.raws.length;
     onProgress?.({ phase: 'parse', file: plan.file, bytesDone, bytesTotal, runsDone, runsTotal });
   }
   const order = new Map(head.index.map((r, i) => [r.run, i]));
@@ -263,6 +259,7 @@ async function readOnWorkers(
     started[k] = p;
   };
   let k = 0;
+  let broken: { error: unknown } | null = null;
   try {
     const window = 2 * workers + 2;
     for (let j = 0; j < Math.min(window, head.plans.length); j++) start(j);
@@ -276,12 +273,13 @@ async function readOnWorkers(
     // Bad input is the import's answer; a worker that could not start or died is not: the rest
     // of the run logs are then read on this thread (progress counted again from there).
     if (isLogError(e) || k >= head.plans.length) throw e;
-    for (const plan of head.plans.slice(k)) onBytes(plan.file, -(counted.get(plan.file) ?? 0));
-    await pool.close();
-    return readHereAfterWorkers(e, src, head, k, spikeK, onBytes, onFile);
+    broken = { error: e };
   } finally {
     await pool.close();
   }
+  if (broken === null) return;
+  for (const plan of head.plans.slice(k)) onBytes(plan.file, -(counted.get(plan.file) ?? 0));
+  return readHereAfterWorkers(broken.error, src, head, k, spikeK, onBytes, onFile);
 }
 
 async function readHereAfterWorkers(

@@ -82,7 +82,6 @@ export class ImportPool {
       const w = this.idle.pop()!;
       const { id, p } = this.queue.shift()!;
       this.running.set(id, p);
-      (w as Worker & { jobId?: number }).jobId = id;
       w.postMessage({ ...p.job, id } satisfies WorkerJob);
     }
   }

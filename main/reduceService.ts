@@ -1,7 +1,8 @@
 // Reducing what the store holds with the pure core (app/reduce.ts) and storing the results as a
-// new reduction (history kept). The session summary comes from the latest stored results.
-import type { RunInfo, RunResult, SessionSummary, Settings } from '../app/types';
+// new reduction (history kept). The session summary comes from the latest stored digests.
+import type { RunResult, SessionSummary, Settings } from '../app/types';
 import { averageRuns, prepareRuns, reduceRun, summariseSession } from '../app/reduce';
+import { zeroRunsFor } from '../app/samples';
 import type { ImportProgress, Store } from './store';
 
 export function reduceStoredSession(
@@ -45,35 +46,4 @@ export function sessionSummary(store: Store, sessionId: number, opts: { includeR
   const rejected = opts.includeRejected ? new Set<number>() : store.rejectedRuns(sessionId);
   const results = store.latestDigests(sessionId).filter((r) => opts.includeRejected || !rejected.has(r.run));
   return summariseSession(setup, results, store.getIndex(sessionId));
-}
-
-/**
- * The runs a reduction of `wanted` needs: those runs, and for each data run among them the
- * wind-off zeros nearest before and after it in time (every zero run at those two times), which
- * are all app/samples.ts applyZeros ever uses. Times that do not parse are left to applyZeros to
- * report: then every zero run is included.
- */
-export function zeroRunsFor(index: RunInfo[], wanted: ReadonlySet<number>): Set<number> {
-  const out = new Set<number>(wanted);
-  const zeros = index.filter((i) => i.kind === 'zero').map((z) => ({ run: z.run, t: Date.parse(z.time) }));
-  if (zeros.some((z) => Number.isNaN(z.t))) {
-    for (const z of zeros) out.add(z.run);
-    return out;
-  }
-  for (const info of index) {
-    if (!wanted.has(info.run) || info.kind !== 'data') continue;
-    const t = Date.parse(info.time);
-    if (Number.isNaN(t)) {
-      for (const z of zeros) out.add(z.run);
-      continue;
-    }
-    let before = -Infinity;
-    let after = Infinity;
-    for (const z of zeros) {
-      if (z.t <= t && z.t > before) before = z.t;
-      if (z.t > t && z.t < after) after = z.t;
-    }
-    for (const z of zeros) if (z.t === before || z.t === after) out.add(z.run);
-  }
-  return out;
 }

@@ -4,7 +4,7 @@
 // (main/importWorker.ts) and, for small imports or sources that are not files on disk, on the
 // calling thread (main/import.ts). Bad input throws the parser's LogError (file, line, channel).
 import { createHash, type Hash } from 'node:crypto';
-import type { ChannelStats, RunInfo, Setup } from '../app/types';
+import type { ChannelStats, RawRun, RunInfo, Setup } from '../app/types';
 import { averageRun } from '../app/samples';
 import { channelToSI } from '../app/units';
 import { collectRuns, runParserFor, type RunFilePlan } from '../app/log/session';
@@ -61,6 +61,7 @@ export class RunFileReader {
     private readonly plan: RunFilePlan,
     private readonly setup: Setup,
     private readonly infos: Map<number, RunInfo>,
+    /** Spike threshold for end()'s statistics (endRaw() does not average). */
     private readonly spikeK: number,
     expectedBytes?: number,
   ) {
@@ -77,16 +78,17 @@ export class RunFileReader {
     this.size += chunk.byteLength;
   }
 
-  end(): PreparedFile {
+  /** The file's runs as parsed (samples in SI units), its hash and the parser's notes. */
+  endRaw(): { name: string; sha256: string; bytes: number; raws: RawRun[]; warnings: string[] } {
     const warnings: string[] = [];
     const raws = collectRuns(this.plan, this.parser.end(), this.infos, warnings);
     warnings.push(...this.parser.warnings);
-    return {
-      name: this.plan.file,
-      sha256: this.hash.digest('hex'),
-      bytes: this.size,
-      runs: raws.map((r) => prepareRun(this.setup, r.info, r.channels, this.spikeK)),
-      warnings,
-    };
+    return { name: this.plan.file, sha256: this.hash.digest('hex'), bytes: this.size, raws, warnings };
+  }
+
+  /** The file's runs ready for the store (averaged and packed). */
+  end(): PreparedFile {
+    const { raws, ...rest } = this.endRaw();
+    return { ...rest, runs: raws.map((r) => prepareRun(this.setup, r.info, r.channels, this.spikeK)) };
   }
 }

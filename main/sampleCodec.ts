@@ -21,7 +21,6 @@
 //
 // Pure module (no Node APIs): used by the import worker threads and by the store.
 
-export type SampleDtype = 'f64le' | 'f32le' | 'dec';
 
 /** Where one channel's bytes are in a run's packed buffer, and how to read them. */
 export interface ChannelPart {
@@ -86,8 +85,7 @@ export class PackedRun {
 /** Append x as plain little-endian doubles. */
 export function packF64(run: PackedRun, x: Float64Array): ChannelPart {
   const len = x.length * 8;
-  const out = run.reserve(len + 8);
-  // Keep the doubles 8-byte aligned in the buffer only where it costs nothing: copy bytewise.
+  const out = run.reserve(len);
   out.set(new Uint8Array(x.buffer, x.byteOffset, len), run.length);
   const part: ChannelPart = { dtype: 'f64le', n: x.length, decExp: null, factor: null, offset: run.length, length: len };
   run.length += len;

@@ -247,11 +247,6 @@ export function decodeJson<T>(s: string): T {
 const num = (x: number | null): number => (x === null ? Number.NaN : x);
 const dbNum = (x: number): number | null => (Number.isFinite(x) ? x : null);
 
-const SAMPLE_COLUMNS = ['session_id', 'run', 'channel', 'dtype', 'n', 'data', 'dec_exp', 'unit_factor'] as const;
-const STAT_COLUMNS = ['session_id', 'run', 'channel', 'spike_k', 'mean', 'std', 'n', 'std_err', 'rejected'] as const;
-/** Rows a multi-row INSERT of the import takes (64 × 9 parameters, well inside SQLite's limit). */
-const ROWS_PER_INSERT = 64;
-
 interface SampleRow { channel: string; dtype: string; n: number; data: Buffer; dec_exp: number | null; unit_factor: number | null }
 function samplesOfRow(r: SampleRow): Float64Array {
   return decodeSamples(r.dtype, r.data, r.n, r.dec_exp, r.unit_factor);
@@ -568,10 +563,12 @@ export class Store {
     try {
       if (!w.refused) {
         // Progress in bytes of samples (8 per value), as they are stored.
-        w.bytes.total = parsed.runs.reduce((t, r) => t + Object.values(r.channels).reduce((u, a) => u + a.byteLength, 0), 0);
+        const sampleBytes = (r: RawRun) => Object.values(r.channels).reduce((u, a) => u + a.byteLength, 0);
+        w.bytes.total = parsed.runs.reduce((t, r) => t + sampleBytes(r), 0);
         const byFile = new Map<string, RawRun[]>();
+        const rawOf = new Map(parsed.runs.map((r) => [r.info.run, r]));
         for (const i of parsed.index) {
-          const raw = parsed.runs.find((r) => r.info.run === i.run)!;
+          const raw = rawOf.get(i.run)!;
           const f = raw.info.file!;
           if (!byFile.has(f)) byFile.set(f, []);
           byFile.get(f)!.push(raw);
@@ -581,7 +578,7 @@ export class Store {
           w.addFile({
             name: f, sha256: s.sha256, bytes: s.bytes, warnings: [],
             runs: raws.map((r) => {
-              w.bytes.done += Object.values(r.channels).reduce((u, a) => u + a.byteLength, 0);
+              w.bytes.done += sampleBytes(r);
               return prepareRun(parsed.setup, r.info, r.channels, w.spikeK);
             }),
           });
@@ -677,9 +674,9 @@ export class Store {
   }
 
   /** (import) Latest source row of a file name. */
-  latestSource(sessionId: number, name: string): { id: number; sha256: string } | undefined {
-    return this.db.prepare('SELECT id, sha256 FROM source_files WHERE session_id = ? AND name = ? ORDER BY id DESC LIMIT 1').get(sessionId, name) as
-      | { id: number; sha256: string }
+  latestSource(sessionId: number, name: string): { id: number; sha256: string; bytes: number } | undefined {
+    return this.db.prepare('SELECT id, sha256, bytes FROM source_files WHERE session_id = ? AND name = ? ORDER BY id DESC LIMIT 1').get(sessionId, name) as
+      | { id: number; sha256: string; bytes: number }
       | undefined;
   }
 
@@ -689,37 +686,12 @@ export class Store {
     this.db.prepare(`INSERT INTO runs (session_id, run, kind, time, alpha_deg, baro, temperature_c, humidity, file, source_id, samples, index_pos)
       VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`)
       .run(sessionId, i.run, i.kind, i.time, i.alphaDeg, i.baro, i.temperatureC, i.humidity, i.file ?? null, sourceId, p.n, indexPos);
-    // Many rows a statement (one call into SQLite per 64 channels rather than per channel).
+    const ins = this.db.prepare('INSERT INTO samples (session_id, run, channel, dtype, n, data, dec_exp, unit_factor) VALUES (?, ?, ?, ?, ?, ?, ?, ?)');
     const buf = Buffer.from(p.bytes.buffer, p.bytes.byteOffset, p.bytes.byteLength);
-    const K = p.parts.length;
-    for (let k0 = 0; k0 < K; k0 += ROWS_PER_INSERT) {
-      const k1 = Math.min(K, k0 + ROWS_PER_INSERT);
-      const sv: unknown[] = [];
-      const tv: unknown[] = [];
-      for (let k = k0; k < k1; k++) {
-        const part = p.parts[k];
-        const name = p.names[k];
-        sv.push(sessionId, i.run, name, part.dtype, part.n, buf.subarray(part.offset, part.offset + part.length), part.decExp, part.factor);
-        const st = p.stats[name];
-        if (!st) throw new Error(`import: run ${i.run} has no statistics for channel ${name}`);
-        tv.push(sessionId, i.run, name, spikeK, dbNum(st.mean), dbNum(st.std), st.n, dbNum(st.stdErr), st.rejected);
-      }
-      this.multiInsert('samples', SAMPLE_COLUMNS, k1 - k0).run(...sv);
-      this.multiInsert('channel_stats', STAT_COLUMNS, k1 - k0).run(...tv);
-    }
-  }
-
-  private readonly multi = new Map<string, Database.Statement>();
-  /** INSERT of `rows` rows at once, prepared once per shape. */
-  private multiInsert(table: string, columns: readonly string[], rows: number): Database.Statement {
-    const key = `${table}/${rows}`;
-    let st = this.multi.get(key);
-    if (!st) {
-      const one = `(${columns.map(() => '?').join(', ')})`;
-      st = this.db.prepare(`INSERT INTO ${table} (${columns.join(', ')}) VALUES ${Array.from({ length: rows }, () => one).join(', ')}`);
-      this.multi.set(key, st);
-    }
-    return st;
+    p.parts.forEach((part, k) => {
+      ins.run(sessionId, i.run, p.names[k], part.dtype, part.n, buf.subarray(part.offset, part.offset + part.length), part.decExp, part.factor);
+    });
+    this.putStats(sessionId, { info: i, stats: p.stats }, spikeK, false);
   }
 
   /** (import) One audit row. */
@@ -908,8 +880,7 @@ export class ImportWriter {
   unchangedCandidate(name: string, bytes: number, runs: number[]): { sha256: string } | null {
     if (this.refused || this.report.created) return null;
     if (!runs.every((r) => this.storedSet.has(r))) return null;
-    const prev = this.store.db.prepare('SELECT sha256, bytes FROM source_files WHERE session_id = ? AND name = ? ORDER BY id DESC LIMIT 1')
-      .get(this.sid, name) as { sha256: string; bytes: number } | undefined;
+    const prev = this.store.latestSource(this.sid, name);
     return prev && prev.bytes === bytes ? { sha256: prev.sha256 } : null;
   }
 

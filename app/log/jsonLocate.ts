@@ -39,67 +39,14 @@ export function locateJsonPath(text: string, path: JsonPath): number | undefined
   const skipScalar = () => {
     while (i < text.length && !',]}'.includes(text[i]) && !/\s/.test(text[i])) i++;
   };
-  // value at depth d; returns true when the target was found inside (stop scanning)
-  const value = (d: number): boolean => {
+  // The value at depth d of the path (d = null: a value off the path, only skipped); returns
+  // true when the target was found inside (stop scanning).
+  const walk = (d: number | null): boolean => {
     ws();
     if (d === path.length) {
       best = i;
       return true;
     }
-    const c = text[i];
-    if (c === '{') {
-      i++;
-      ws();
-      if (text[i] === '}') {
-        i++;
-        return false;
-      }
-      for (;;) {
-        ws();
-        const key = str();
-        ws();
-        i++; // ':'
-        if (key === path[d]) {
-          ws();
-          best = i;
-          if (value(d + 1)) return true;
-        } else if (skip()) return true;
-        ws();
-        if (text[i] === ',') i++;
-        else {
-          i++;
-          return false;
-        }
-      }
-    }
-    if (c === '[') {
-      i++;
-      ws();
-      if (text[i] === ']') {
-        i++;
-        return false;
-      }
-      for (let k = 0; ; k++) {
-        ws();
-        if (k === path[d]) {
-          best = i;
-          if (value(d + 1)) return true;
-        } else if (skip()) return true;
-        ws();
-        if (text[i] === ',') i++;
-        else {
-          i++;
-          return false;
-        }
-      }
-    }
-    if (c === '"') str();
-    else skipScalar();
-    return false;
-  };
-  // skip a value that is not on the path
-  const skip = (): boolean => {
-    ws();
     const c = text[i];
     if (c === '{' || c === '[') {
       const close = c === '{' ? '}' : ']';
@@ -109,14 +56,19 @@ export function locateJsonPath(text: string, path: JsonPath): number | undefined
         i++;
         return false;
       }
-      for (;;) {
+      for (let k = 0; ; k++) {
         ws();
+        let key: string | number = k;
         if (c === '{') {
-          str();
+          key = str();
           ws();
-          i++;
+          i++; // ':'
         }
-        skip();
+        if (d !== null && key === path[d]) {
+          ws();
+          best = i;
+          if (walk(d + 1)) return true;
+        } else if (walk(null)) return true;
         ws();
         if (text[i] === ',') i++;
         else {
@@ -130,7 +82,7 @@ export function locateJsonPath(text: string, path: JsonPath): number | undefined
     return false;
   };
   try {
-    value(0);
+    walk(0);
   } catch {
     /* malformed text: keep what was found */
   }
