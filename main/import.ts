@@ -166,6 +166,7 @@ export async function importSession(store: Store, src: SessionSource, opts: Impo
   const onProgress = opts.onProgress;
   const head = await readHead(src, onProgress);
   const folder = opts.folder === undefined ? src.folder : opts.folder;
+  let pool: ImportPool | null = null;
   const writer = store.beginImport(
     { folder, setup: head.setup, index: head.index, setupSource: head.setupSource, indexSource: head.indexSource },
     opts.actor ?? 'import',
@@ -207,13 +208,27 @@ export async function importSession(store: Store, src: SessionSource, opts: Impo
       const rest: SessionHead = { ...head, plans };
       const toRead = plans.reduce((t, p) => t + head.sizes.get(p.file)!, 0);
       const wanted = opts.workers === undefined || opts.workers === 'auto' ? workersFor(toRead) : opts.workers;
-      if (wanted > 0 && src.path && plans.length > 1) await readOnWorkers(src, rest, writer.spikeK, wanted, onBytes, onFile);
+      if (wanted > 0 && src.path && plans.length > 1) pool = await readOnWorkers(src, rest, writer.spikeK, wanted, onBytes, onFile);
       else await readHere(src, rest, writer.spikeK, onBytes, onFile);
     }
-    return writer.finish(head.warnings);
+    // After a large import the WAL holds every page it wrote: one of the (now idle) import threads
+    // copies it into the database file, so the import is done once its COMMIT is (the data are
+    // safe in the WAL from then on) and the calling thread stays free.
+    const report = writer.finish(head.warnings, { checkpoint: pool ? 'later' : 'now' });
+    if (pool && writer.committed) {
+      const p = pool;
+      pool = null;
+      store.track(p.checkpointAndClose(store.file).then((r) => {
+        if (!r.ok) process.emitWarning(`rakeline: the checkpoint after the import did not finish (${r.error ?? 'database busy'}); SQLite completes it at a later write`);
+        return r;
+      }));
+    }
+    return report;
   } catch (e) {
     writer.abort();
     throw e;
+  } finally {
+    if (pool) void pool.close();
   }
 }
 
@@ -233,16 +248,18 @@ async function readHere(
   }
 }
 
-/** Run logs read on worker threads; handed over in index order, a few in flight at a time. */
+/** Run logs read on worker threads; handed over in index order, a few in flight at a time.
+ *  Returns the pool, still open, if every file was read on it (else null, the pool closed). */
 async function readOnWorkers(
   src: SessionSource, head: SessionHead, spikeK: number, workers: number,
   onBytes: (file: string, n: number) => void, onFile: (f: PreparedFile) => void,
-): Promise<void> {
+): Promise<ImportPool | null> {
   let pool: ImportPool;
   try {
     pool = new ImportPool(workers);
   } catch (e) {
-    return readHereAfterWorkers(e, src, head, 0, spikeK, onBytes, onFile);
+    await readHereAfterWorkers(e, src, head, 0, spikeK, onBytes, onFile);
+    return null;
   }
   const byRun = new Map(head.index.map((r) => [r.run, r]));
   const started: Promise<PreparedFile>[] = [];
@@ -270,16 +287,16 @@ async function readOnWorkers(
       onFile(f);
     }
   } catch (e) {
+    await pool.close();
     // Bad input is the import's answer; a worker that could not start or died is not: the rest
     // of the run logs are then read on this thread (progress counted again from there).
     if (isLogError(e) || k >= head.plans.length) throw e;
     broken = { error: e };
-  } finally {
-    await pool.close();
   }
-  if (broken === null) return;
+  if (broken === null) return pool;
   for (const plan of head.plans.slice(k)) onBytes(plan.file, -(counted.get(plan.file) ?? 0));
-  return readHereAfterWorkers(broken.error, src, head, k, spikeK, onBytes, onFile);
+  await readHereAfterWorkers(broken.error, src, head, k, spikeK, onBytes, onFile);
+  return null;
 }
 
 async function readHereAfterWorkers(

@@ -7,7 +7,7 @@ import path from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { LogError, type LogErrorDetail } from '../app/log/errors';
 import type { PreparedFile } from './runFile';
-import type { WorkerJob, WorkerReply } from './importWorker';
+import type { CheckpointJob, CheckpointReport, WorkerJob, WorkerReply } from './importWorker';
 
 let workerScript: string | URL | null = null;
 
@@ -86,7 +86,37 @@ export class ImportPool {
     }
   }
 
+  /**
+   * Copy the WAL of database `file` into the file on one of the threads, close the others at
+   * once and that one when it is done. Never rejects: a checkpoint that cannot run is reported
+   * (SQLite then checkpoints at a later commit, as it always does).
+   */
+  checkpointAndClose(file: string): Promise<CheckpointReport> {
+    const w = this.failed ? undefined : this.idle.pop();
+    const others = this.workers.filter((x) => x !== w);
+    this.closed = true;
+    void Promise.all(others.map((x) => x.terminate()));
+    if (!w) return Promise.resolve({ ok: false, ms: 0, walFrames: -1, copied: -1, error: 'no import thread left to run it' });
+    const id = this.nextId++;
+    return new Promise<CheckpointReport>((resolve) => {
+      const done = (r: CheckpointReport) => {
+        w.off('message', onMessage);
+        w.off('exit', onExit);
+        void w.terminate();
+        resolve(r);
+      };
+      const onMessage = (m: WorkerReply) => {
+        if (m.id === id && m.kind === 'checkpointed') done(m.report);
+      };
+      const onExit = (code: number) => done({ ok: false, ms: 0, walFrames: -1, copied: -1, error: `the thread stopped (exit code ${code})` });
+      w.on('message', onMessage);
+      w.on('exit', onExit);
+      w.postMessage({ id, kind: 'checkpoint', file } satisfies CheckpointJob);
+    });
+  }
+
   private onMessage(w: Worker, m: WorkerReply): void {
+    if (m.kind === 'checkpointed') return;
     const p = this.running.get(m.id);
     if (!p) return;
     if (m.kind === 'progress') {

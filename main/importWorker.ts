@@ -1,11 +1,14 @@
 // Import worker thread: reads run logs from disk, hashing and parsing them as they stream in, and
 // hands back their runs packed and averaged (main/runFile.ts) so that the calling thread only has
-// to store them. Started by main/importPool.ts; one file at a time per worker.
+// to store them. Started by main/importPool.ts; one file at a time per worker. After a large
+// import one of these threads also copies the committed WAL into the database file (a checkpoint),
+// so the calling thread does not wait for it.
 import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
 import { parentPort } from 'node:worker_threads';
 import type { RunInfo, Setup } from '../app/types';
 import type { RunFilePlan } from '../app/log/session';
 import { RunFileReader } from './runFile';
+import { SampleArena } from '../app/log/runParser';
 
 export interface WorkerJob {
   id: number;
@@ -17,10 +20,30 @@ export interface WorkerJob {
   chunkSize: number;
 }
 
+/** Copy the WAL of a database into its file (PRAGMA wal_checkpoint(PASSIVE)). */
+export interface CheckpointJob {
+  id: number;
+  kind: 'checkpoint';
+  file: string;
+}
+
+/** What a checkpoint did: WAL frames in all and copied (-1 each if it could not run: busy). */
+export interface CheckpointReport {
+  ok: boolean;
+  ms: number;
+  walFrames: number;
+  copied: number;
+  error?: string;
+}
+
 export type WorkerReply =
+  | { id: number; kind: 'checkpointed'; report: CheckpointReport }
   | { id: number; kind: 'progress'; bytes: number }
   | { id: number; kind: 'done'; file: import('./runFile').PreparedFile }
   | { id: number; kind: 'error'; error: { name: string; message: string; detail?: Record<string, unknown> } };
+
+/** Sample buffers reused from one run log to the next. */
+const arena = new SampleArena();
 
 /** Progress is reported every this many bytes. */
 const PROGRESS_STEP = 4 << 20;
@@ -31,7 +54,7 @@ function run(job: WorkerJob): void {
   let reader: RunFileReader;
   let sinceReport = 0;
   try {
-    reader = new RunFileReader(job.plan, job.setup, new Map(job.infos.map((i) => [i.run, i])), job.spikeK, fstatSync(fd).size);
+    reader = new RunFileReader(job.plan, job.setup, new Map(job.infos.map((i) => [i.run, i])), job.spikeK, fstatSync(fd).size, arena);
     const buf = new Uint8Array(job.chunkSize);
     for (;;) {
       const n = readSync(fd, buf, 0, buf.length, null);
@@ -52,7 +75,30 @@ function run(job: WorkerJob): void {
   port.postMessage({ id: job.id, kind: 'done', file } satisfies WorkerReply, transfer);
 }
 
-parentPort?.on('message', (job: WorkerJob) => {
+/** PASSIVE: copies every frame no reader still needs and never waits for, nor blocks, a writer. */
+async function checkpoint(job: CheckpointJob): Promise<void> {
+  const t0 = performance.now();
+  let report: CheckpointReport;
+  try {
+    const { default: Database } = await import('better-sqlite3');
+    const db = new Database(job.file, { fileMustExist: true });
+    try {
+      const r = (db.pragma('wal_checkpoint(PASSIVE)') as { busy: number; log: number; checkpointed: number }[])[0];
+      report = { ok: r.busy === 0, ms: performance.now() - t0, walFrames: r.log, copied: r.checkpointed };
+    } finally {
+      db.close();
+    }
+  } catch (e) {
+    report = { ok: false, ms: performance.now() - t0, walFrames: -1, copied: -1, error: e instanceof Error ? e.message : String(e) };
+  }
+  parentPort!.postMessage({ id: job.id, kind: 'checkpointed', report } satisfies WorkerReply);
+}
+
+parentPort?.on('message', (job: WorkerJob | CheckpointJob) => {
+  if ('kind' in job) {
+    void checkpoint(job);
+    return;
+  }
   try {
     run(job);
   } catch (e) {

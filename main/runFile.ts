@@ -8,7 +8,7 @@ import type { ChannelStats, RawRun, RunInfo, Setup } from '../app/types';
 import { averageRun } from '../app/samples';
 import { channelToSI } from '../app/units';
 import { collectRuns, runParserFor, type RunFilePlan } from '../app/log/session';
-import type { RunParser } from '../app/log/runParser';
+import type { RunParser, SampleArena } from '../app/log/runParser';
 import { PackedRun, packSamples, type ChannelPart } from './sampleCodec';
 
 /** A run ready to be stored: packed samples (channels in setup order) and their statistics. */
@@ -64,8 +64,10 @@ export class RunFileReader {
     /** Spike threshold for end()'s statistics (endRaw() does not average). */
     private readonly spikeK: number,
     expectedBytes?: number,
+    /** Sample buffers to reuse (end() gives them back; endRaw() hands them to the caller). */
+    private readonly arena?: SampleArena,
   ) {
-    this.parser = runParserFor(plan, setup, expectedBytes);
+    this.parser = runParserFor(plan, setup, expectedBytes, arena);
   }
 
   get bytesRead(): number {
@@ -89,6 +91,8 @@ export class RunFileReader {
   /** The file's runs ready for the store (averaged and packed). */
   end(): PreparedFile {
     const { raws, ...rest } = this.endRaw();
-    return { ...rest, runs: raws.map((r) => prepareRun(this.setup, r.info, r.channels, this.spikeK)) };
+    const runs = raws.map((r) => prepareRun(this.setup, r.info, r.channels, this.spikeK));
+    if (this.arena) for (const r of raws) for (const x of Object.values(r.channels)) this.arena.give(x);
+    return { ...rest, runs };
   }
 }

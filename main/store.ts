@@ -604,6 +604,8 @@ export class Store {
     if (opts.ownConnection !== false) {
       db = new Database(this.file);
       configure(db);
+      // Not at COMMIT: release() checkpoints (or leaves it to another thread).
+      db.pragma('wal_autocheckpoint = 0');
     }
     const store = db === this.db ? this : new Store(this.file, db);
     try {
@@ -613,13 +615,15 @@ export class Store {
       throw e;
     }
     this.importing = true;
-    const release = () => {
+    /** Called once the transaction has ended; `later`: the caller checkpoints on another thread
+     *  (an import on this Store's own connection leaves it to SQLite's automatic checkpoint). */
+    const release = (later: boolean) => {
       this.importing = false;
       if (db !== this.db) {
         try {
           // The import's pages are in the WAL: copy them into the database file now, while the
           // import is still the caller's work, rather than at some later small write.
-          db.pragma('wal_checkpoint(TRUNCATE)');
+          if (!later) db.pragma('wal_checkpoint(TRUNCATE)');
         } catch {
           /* another reader holds an old snapshot: the next checkpoint will do it */
         }
@@ -630,9 +634,22 @@ export class Store {
       return new ImportWriter(store, start, actor, opts.onProgress, release);
     } catch (e) {
       db.exec('ROLLBACK');
-      release();
+      release(false);
       throw e;
     }
+  }
+
+  private readonly background = new Set<Promise<unknown>>();
+
+  /** Keep track of work on this database done on another thread (a checkpoint after an import). */
+  track(p: Promise<unknown>): void {
+    const q = p.catch(() => undefined).finally(() => this.background.delete(q));
+    this.background.add(q);
+  }
+
+  /** Resolves once the work handed to track() has finished. */
+  async settled(): Promise<void> {
+    while (this.background.size) await Promise.all([...this.background]);
   }
 
   /** Whether an import transaction is open on this database through this Store. */
@@ -824,7 +841,7 @@ export class ImportWriter {
     private readonly start: ImportStart,
     private readonly actor: string,
     private readonly onProgress: ((p: ImportProgress) => void) | undefined,
-    private readonly release: () => void,
+    private readonly release: (later: boolean) => void,
   ) {
     const db = store.db;
     const s = start.setup;
@@ -931,8 +948,16 @@ export class ImportWriter {
     }
   }
 
-  /** Commit (or, when nothing changed or the import was refused, leave the database untouched). */
-  finish(warnings: string[] = []): ImportReport {
+  /** True once finish() has committed. */
+  committed = false;
+
+  /**
+   * Commit (or, when nothing changed or the import was refused, leave the database untouched).
+   * `checkpoint: 'later'`: the caller copies the WAL into the database file on another thread
+   * after the commit (see ImportPool.checkpointAndClose), so neither this COMMIT nor the closing
+   * of the import's connection does it here.
+   */
+  finish(warnings: string[] = [], opts: { checkpoint?: 'now' | 'later' } = {}): ImportReport {
     if (this.ended) throw new Error('ImportWriter: finish() after the import ended');
     const r = this.report;
     const index = this.start.index;
@@ -960,8 +985,9 @@ export class ImportWriter {
         warnings: [...warnings, ...this.warnings],
       });
       this.store.db.exec('COMMIT');
+      this.committed = true;
       this.ended = true;
-      this.release();
+      this.release(opts.checkpoint === 'later');
       return r;
     } catch (e) {
       if (!this.ended) this.abort();
@@ -980,7 +1006,7 @@ export class ImportWriter {
     try {
       if (this.store.db.inTransaction) this.store.db.exec('ROLLBACK');
     } finally {
-      this.release();
+      this.release(false);
     }
   }
 }

@@ -2,6 +2,7 @@
 // small ones do the same on the calling thread. Both must store exactly the same database
 // contents, and a bad file read on a worker must fail the import with the same message (file,
 // line, channel) and leave the database as it was.
+import { statSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { Store } from '../main/store';
@@ -40,6 +41,25 @@ describe('import on worker threads', () => {
     }
     here.close();
     there.close();
+  });
+
+  it('the WAL is copied into the database file: by the import itself on the calling thread, after it by a worker thread', async () => {
+    // Common practice, no source: SQLite's WAL keeps committed pages until a checkpoint copies them
+    // into the database file (sqlite.org/wal.html); the import connection's automatic checkpoint
+    // is off, so the file only grows if the import's own checkpoint ran.
+    const dir = tempDir();
+    const f = miniFolder(join(dir, 's'), { runs: { dataRuns: 6, samples: 400 } });
+    for (const workers of [0, 2]) {
+      const file = join(dir, `db${workers}.sqlite`);
+      const store = Store.open(file);
+      const before = statSync(file).size;
+      await importSessionFolder(store, f.dir, { workers });
+      await store.settled();
+      const blobs = (store.db.prepare('SELECT SUM(length(data)) AS b FROM samples').get() as { b: number }).b;
+      expect(blobs).toBeGreaterThan(100_000);
+      expect(statSync(file).size - before).toBeGreaterThanOrEqual(blobs);
+      store.close();
+    }
   });
 
   it('a bad cell found on a worker fails the import with file, line and channel; nothing is stored', async () => {

@@ -2,7 +2,7 @@
 // with its message (file, line, channel, expected).
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { createRunParser } from '../app/log/runParser';
+import { SampleArena, createRunParser } from '../app/log/runParser';
 import { LogError } from '../app/log/errors';
 import { miniSetup } from './helpers/mini-session';
 import type { Setup } from '../app/types';
@@ -126,6 +126,42 @@ describe('run log values', () => {
     expect(crlf).toEqual(base);
     const spaced = simpleLog(5).replace(/,/g, ' , ').replace(/\n(?=.)/, '\n\n  \n');
     expect(parse(spaced.trimEnd()).result).toEqual(base);
+  });
+
+  it('reusing sample buffers from one file to the next (SampleArena) changes nothing read', () => {
+    // Common practice, no source: a free list must hand back buffers whose stale contents never
+    // show. Files of different lengths, one-run and long logs, buffers grown past their first size.
+    const arena = new SampleArena();
+    const long = (rows: number) => {
+      const lines = [`run,t_s,${names.join(',')}`];
+      for (let i = 0; i < rows; i++) lines.push(rowOf([3 + (i % 2), i, ...names.map((_, k) => -k - i / 4)]));
+      return lines.join('\n') + '\n';
+    };
+    const given = new Set<ArrayBufferLike>();
+    let checked = 0;
+    for (const [text, runColumn] of [[simpleLog(3000), false], [simpleLog(40), false], [long(2500), true], [simpleLog(700), false]] as const) {
+      const plain = parse(text, { runColumn }).result;
+      const p = createRunParser(FILE, setup, { runColumn, arena, expectedBytes: runColumn ? undefined : Buffer.byteLength(text) });
+      for (let i = 0; i < text.length; i += 4096) p.push(text.slice(i, i + 4096));
+      const got = p.end();
+      const sets = (r: typeof got) => (r instanceof Map ? [...r.values()] : [r]);
+      expect(sets(got).length).toBe(sets(plain).length);
+      sets(got).forEach((ch, k) => {
+        for (const n of names) expect(Array.from(ch[n])).toEqual(Array.from(sets(plain)[k][n]));
+      });
+      if (given.size && !runColumn) {
+        // A one-run file after the first: every column is a buffer given back before.
+        for (const n of names) expect(given.has((got as Record<string, Float64Array>)[n].buffer)).toBe(true);
+        checked++;
+      }
+      for (const ch of sets(got)) {
+        for (const n of names) {
+          given.add(ch[n].buffer);
+          arena.give(ch[n]);
+        }
+      }
+    }
+    expect(checked).toBe(2);
   });
 
   it('reads a long log with a run column into one set of channels per run', () => {

@@ -28,6 +28,35 @@ export interface RunParserOptions {
   /** Size of the whole file in bytes, if known: the sample buffers of a one-run file are then
    *  sized from it and the first line's length once, instead of growing by doubling. */
   expectedBytes?: number;
+  /** Reusable sample buffers: the columns are taken from it (and returned to it when they grow),
+   *  so a reader of many files does not allocate fresh ones for each; the caller gives them back
+   *  with SampleArena.give() once it no longer needs the channels. */
+  arena?: SampleArena;
+}
+
+/** A free list of sample buffers, reused from one run log to the next (common practice, no
+ *  source): each file otherwise allocates megabytes of columns that the garbage collector and the
+ *  kernel must clear again. */
+export class SampleArena {
+  private readonly free: Float64Array[] = [];
+  /** Keep at most this many buffers. */
+  constructor(private readonly max = 4096) {}
+  /** A buffer of at least `cap` samples (its contents are stale). */
+  take(cap: number): Float64Array {
+    for (let k = this.free.length - 1; k >= 0; k--) {
+      const f = this.free[k];
+      if (f.length >= cap) {
+        this.free[k] = this.free[this.free.length - 1];
+        this.free.pop();
+        return f;
+      }
+    }
+    return new Float64Array(cap);
+  }
+  /** Hand back the buffer behind a column (or a view of it). */
+  give(x: Float64Array): void {
+    if (this.free.length < this.max) this.free.push(x.byteOffset === 0 && x.byteLength === x.buffer.byteLength ? x : new Float64Array(x.buffer));
+  }
 }
 
 export type RunChannels = Record<string, Float64Array>;
@@ -70,23 +99,31 @@ class RunBuffers {
   n = 0;
   cap: number;
   cols: Float64Array[];
-  constructor(ncols: number, cap: number) {
+  constructor(ncols: number, cap: number, private readonly arena?: SampleArena) {
     this.cap = cap;
-    this.cols = Array.from({ length: ncols }, () => new Float64Array(cap));
+    this.cols = Array.from({ length: ncols }, () => (arena ? arena.take(cap).subarray(0, cap) : new Float64Array(cap)));
   }
   grow(): void {
     const cap = this.cap * 2;
+    const a = this.arena;
     this.cols = this.cols.map((c) => {
-      const g = new Float64Array(cap);
-      g.set(c);
+      const g = a ? a.take(cap).subarray(0, cap) : new Float64Array(cap);
+      g.set(c.subarray(0, this.n));
+      a?.give(c);
       return g;
     });
     this.cap = cap;
   }
-  /** The columns cut to the samples read: views when little is left over, else copies. */
+  /** Give the columns back to the arena (a buffer that is dropped unread). */
+  release(): void {
+    if (this.arena) for (const c of this.cols) this.arena.give(c);
+  }
+  /** The columns cut to the samples read: views when little is left over (always, with an arena:
+   *  the caller gives them back), else copies. */
   trimmed(): Float64Array[] {
     const n = this.n;
-    return this.cols.map((c) => (c.length === n ? c : c.length - n <= c.length / 8 ? c.subarray(0, n) : c.slice(0, n)));
+    const view = (c: Float64Array) => this.arena !== undefined || c.length - n <= c.length / 8;
+    return this.cols.map((c) => (c.length === n ? c : view(c) ? c.subarray(0, n) : c.slice(0, n)));
   }
 }
 
@@ -267,7 +304,7 @@ class Scanner {
     });
     this.factors = Float64Array.from(f);
     this.row = new Float64Array(this.names.length);
-    if (!this.long) this.single = new RunBuffers(this.names.length, 1024);
+    if (!this.long) this.single = new RunBuffers(this.names.length, 1024, this.opts.arena);
     this.headerBytes = raw.length + 1;
   }
 
@@ -283,7 +320,10 @@ class Scanner {
     if (nl < 0) return;
     const lineLen = nl - i + 1;
     const estimate = Math.ceil(((total - this.headerBytes) / lineLen) * 1.05) + 8;
-    if (estimate > this.single.cap && estimate < 1 << 26) this.single = new RunBuffers(this.names.length, estimate);
+    if (estimate > this.single.cap && estimate < 1 << 26) {
+      this.single.release();
+      this.single = new RunBuffers(this.names.length, estimate, this.opts.arena);
+    }
   }
 
   private label(col: number): { column: string; columnKind: 'channel' | 'column' } {
@@ -421,7 +461,7 @@ class Scanner {
       else {
         let r = this.byRun.get(runNo);
         if (!r) {
-          r = new RunBuffers(nv, 256);
+          r = new RunBuffers(nv, 256, this.opts.arena);
           this.byRun.set(runNo, r);
         }
         buf = r;
