@@ -19,6 +19,7 @@ import {
 import type { ImportProgress, ImportReport, ParsedSession, SourceInfo, Store } from './store';
 import { RunFileReader, type PreparedFile } from './runFile';
 import { ImportPool, workersFor } from './importPool';
+import { SampleArena } from '../app/log/runParser';
 
 /** Where the files of a session come from (a folder on disk, or anything else that streams). */
 export interface SessionSource {
@@ -131,7 +132,7 @@ export async function readSession(src: SessionSource, onProgress?: (p: ImportPro
   const byRun = new Map(head.index.map((r) => [r.run, r]));
   const runs: RawRun[] = [];
   for (const plan of plans) {
-    const reader = new RunFileReader(plan, setup, byRun, Number.NaN, head.sizes.get(plan.file));
+    const reader = new RunFileReader(plan, setup, byRun, Number.NaN, { expectedBytes: head.sizes.get(plan.file) });
     for await (const chunk of src.open(plan.file)) {
       reader.push(chunk);
       bytesDone += chunk.byteLength;
@@ -238,8 +239,9 @@ async function readHere(
   onBytes: (file: string, n: number) => void, onFile: (f: PreparedFile) => void,
 ): Promise<void> {
   const byRun = new Map(head.index.map((r) => [r.run, r]));
+  const arena = new SampleArena();
   for (const plan of head.plans) {
-    const reader = new RunFileReader(plan, head.setup, byRun, spikeK, head.sizes.get(plan.file));
+    const reader = new RunFileReader(plan, head.setup, byRun, spikeK, { expectedBytes: head.sizes.get(plan.file), arena });
     for await (const chunk of src.open(plan.file)) {
       reader.push(chunk);
       onBytes(plan.file, chunk.byteLength);

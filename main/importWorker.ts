@@ -54,7 +54,7 @@ function run(job: WorkerJob): void {
   let reader: RunFileReader;
   let sinceReport = 0;
   try {
-    reader = new RunFileReader(job.plan, job.setup, new Map(job.infos.map((i) => [i.run, i])), job.spikeK, fstatSync(fd).size, arena);
+    reader = new RunFileReader(job.plan, job.setup, new Map(job.infos.map((i) => [i.run, i])), job.spikeK, { expectedBytes: fstatSync(fd).size, arena });
     const buf = new Uint8Array(job.chunkSize);
     for (;;) {
       const n = readSync(fd, buf, 0, buf.length, null);

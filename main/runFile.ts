@@ -63,12 +63,17 @@ export class RunFileReader {
     private readonly infos: Map<number, RunInfo>,
     /** Spike threshold for end()'s statistics (endRaw() does not average). */
     private readonly spikeK: number,
-    expectedBytes?: number,
-    /** Sample buffers to reuse (end() gives them back; endRaw() hands them to the caller). */
-    private readonly arena?: SampleArena,
+    opts: {
+      expectedBytes?: number;
+      /** Sample buffers to reuse (end() gives them back; endRaw() hands them to the caller). */
+      arena?: SampleArena;
+    } = {},
   ) {
-    this.parser = runParserFor(plan, setup, expectedBytes, arena);
+    this.arena = opts.arena;
+    this.parser = runParserFor(plan, setup, { expectedBytes: opts.expectedBytes, arena: opts.arena });
   }
+
+  private readonly arena?: SampleArena;
 
   get bytesRead(): number {
     return this.size;

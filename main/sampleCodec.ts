@@ -53,7 +53,8 @@ function mantissaAt(x: number, e: number, p10: number, f: number, inv: number): 
 }
 
 let mantScratch = new Float64Array(4096);
-let zzScratch = new Float64Array(4096);
+let zzScratch = new Float64Array(BLOCK);
+let zz32Scratch = new Int32Array(BLOCK);
 const firstScratch = new Float64Array(1);
 const firstBytes = new Uint8Array(firstScratch.buffer);
 
@@ -128,6 +129,12 @@ export function packSamples(run: PackedRun, x: Float64Array, factor: number): Ch
     }
     mant[i] = m;
   }
+  return packDec(run, x, mant, e, factor);
+}
+
+/** Append mantissas mant[0, x.length) on exponent e as 'dec' (or x as 'f64le' if no smaller). */
+function packDec(run: PackedRun, x: Float64Array, mant: Float64Array, e: number, factor: number): ChannelPart {
+  const n = x.length;
   // The first mantissa as a little-endian double (exact: an integer below 2^51), then the
   // zig-zag mapped successive differences, packed block by block.
   const nd = n - 1;
@@ -136,79 +143,90 @@ export function packSamples(run: PackedRun, x: Float64Array, factor: number): Ch
   const start = run.length;
   firstScratch[0] = mant[0];
   out.set(firstBytes, start);
-  if (zzScratch.length < n) zzScratch = new Float64Array(Math.max(n, 2 * zzScratch.length));
-  const zz = zzScratch;
-  let small = true;
-  for (let i = 1; i < n; i++) {
-    const d = mant[i] - mant[i - 1];
-    if (!(d < 0x3fffffff && d > -0x3fffffff)) {
-      small = false;
-      break;
-    }
-  }
-  if (small) {
-    // |differences| < 2^30: int32 arithmetic, zig-zag without branches.
-    for (let i = 1; i < n; i++) {
-      const d = (mant[i] - mant[i - 1]) | 0;
-      zz[i - 1] = ((d << 1) ^ (d >> 31)) >>> 0;
-    }
-  } else {
-    for (let i = 1; i < n; i++) {
-      const d = mant[i] - mant[i - 1];
-      zz[i - 1] = d >= 0 ? 2 * d : -2 * d - 1;
-    }
-  }
   let p = start + 8;
-  for (let b0 = 0; b0 < nd; b0 += BLOCK) {
+  if (zz32Scratch.length < BLOCK) zz32Scratch = new Int32Array(BLOCK);
+  const z32 = zz32Scratch;
+  // Usual case, |differences| < 2^30: int32 arithmetic, zig-zag without branches, one block at a
+  // time (differences, width and bytes in one pass over a block held in a small scratch).
+  let b0 = 0;
+  for (; b0 < nd; b0 += BLOCK) {
     const b1 = Math.min(nd, b0 + BLOCK);
-    let max = 0;
-    if (small) {
-      let acc = 0;
-      for (let i = b0; i < b1; i++) acc |= zz[i];
-      max = acc >>> 0;
-    } else for (let i = b0; i < b1; i++) if (zz[i] > max) max = zz[i];
-    const w = max === 0 ? 0 : max < 0x100 ? 1 : max < 0x10000 ? 2 : max < 0x1000000 ? 3 : max < TWO32 ? 4 : 7;
+    let acc = 0;
+    let big = false;
+    for (let i = b0; i < b1; i++) {
+      const d = mant[i + 1] - mant[i];
+      if (!(d < 0x3fffffff && d > -0x3fffffff)) {
+        big = true;
+        break;
+      }
+      const di = d | 0;
+      const z = (di << 1) ^ (di >> 31);
+      z32[i - b0] = z;
+      acc |= z;
+    }
+    if (big) break;
+    const max = acc >>> 0;
+    const len = b1 - b0;
+    const w = max === 0 ? 0 : max < 0x100 ? 1 : max < 0x10000 ? 2 : max < 0x1000000 ? 3 : 4;
     out[p++] = w;
-    if (w === 1) for (let i = b0; i < b1; i++) out[p++] = zz[i];
+    if (w === 1) for (let k = 0; k < len; k++) out[p++] = z32[k];
     else if (w === 2) {
-      for (let i = b0; i < b1; i++) {
-        const v = zz[i] | 0;
+      for (let k = 0; k < len; k++) {
+        const v = z32[k];
         out[p] = v;
         out[p + 1] = v >>> 8;
         p += 2;
       }
     } else if (w === 3) {
-      for (let i = b0; i < b1; i++) {
-        const v = zz[i] | 0;
+      for (let k = 0; k < len; k++) {
+        const v = z32[k];
         out[p] = v;
         out[p + 1] = v >>> 8;
         out[p + 2] = v >>> 16;
         p += 3;
       }
     } else if (w === 4) {
-      for (let i = b0; i < b1; i++) {
-        const v = zz[i] >>> 0;
+      for (let k = 0; k < len; k++) {
+        const v = z32[k];
         out[p] = v;
         out[p + 1] = v >>> 8;
         out[p + 2] = v >>> 16;
         out[p + 3] = v >>> 24;
         p += 4;
       }
-    } else if (w === 7) {
-      for (let i = b0; i < b1; i++) {
-        // v < 2^53: low 32 bits by ToUint32 (exact modulo 2^32), high 21 bits exactly divided.
-        const v = zz[i];
-        const lo = v >>> 0;
+    }
+  }
+  // Blocks from the first difference beyond 2^30 on: exact double arithmetic (< 2^53).
+  if (b0 < nd && zzScratch.length < BLOCK) zzScratch = new Float64Array(BLOCK);
+  const zz = zzScratch;
+  for (; b0 < nd; b0 += BLOCK) {
+    const b1 = Math.min(nd, b0 + BLOCK);
+    let max = 0;
+    for (let i = b0; i < b1; i++) {
+      const d = mant[i + 1] - mant[i];
+      const z = d >= 0 ? 2 * d : -2 * d - 1;
+      zz[i - b0] = z;
+      if (z > max) max = z;
+    }
+    const len = b1 - b0;
+    const w = max === 0 ? 0 : max < 0x100 ? 1 : max < 0x10000 ? 2 : max < 0x1000000 ? 3 : max < TWO32 ? 4 : 7;
+    out[p++] = w;
+    for (let k = 0; k < len; k++) {
+      if (w === 0) break;
+      // v < 2^53: low 32 bits by ToUint32 (exact modulo 2^32), high 21 bits exactly divided.
+      const v = zz[k];
+      const lo = v >>> 0;
+      out[p] = lo;
+      if (w >= 2) out[p + 1] = lo >>> 8;
+      if (w >= 3) out[p + 2] = lo >>> 16;
+      if (w >= 4) out[p + 3] = lo >>> 24;
+      if (w === 7) {
         const hi = (v - lo) / TWO32;
-        out[p] = lo;
-        out[p + 1] = lo >>> 8;
-        out[p + 2] = lo >>> 16;
-        out[p + 3] = lo >>> 24;
         out[p + 4] = hi;
         out[p + 5] = hi >>> 8;
         out[p + 6] = hi >>> 16;
-        p += 7;
       }
+      p += w;
     }
   }
   if (p - start >= n * 8) return packF64(run, x);

@@ -47,6 +47,52 @@ describe('first import', () => {
     store.close();
   });
 
+  it('packed samples decode to the very doubles the reader read, awkward cells included', async () => {
+    // Common practice, no source: the import packs each channel as decimal mantissas where it can
+    // (main/sampleCodec.ts) and as plain doubles where it cannot; every stored sample must still be
+    // the parser's double (the reference: readSessionFolder, which packs nothing), bit for bit.
+    const dir = tempDir();
+    const f = miniFolder(join(dir, 's'), { runs: { dataRuns: 2, samples: 40 }, write: { digits: 6 } });
+    const file = f.index[2].file!;
+    const cell = (i: number, k: number): string | null => {
+      // Per column k (after t_s): a kind of awkward value for some rows; null keeps the written cell.
+      switch (k) {
+        case 0: return [`${(i * 137) % 1000}`, `-${i}.5`, '0.000125', '-12345.6789'][i % 4]; // digits after the point vary
+        case 1: return i === 17 ? '-0.0' : null; // −0: no mantissa carries it
+        case 2: return i === 5 ? '1.5e2' : null; // exponent notation
+        case 3: return i === 9 ? '3.14159265358979323' : null; // more than 15 digits
+        case 4: return i % 2 ? '123456789012.345' : '-0.001'; // a large range of magnitudes
+        default: return null;
+      }
+    };
+    editFile(join(f.dir, file), (t) => t.split('\n').map((line, j) => {
+      if (j === 0 || line === '') return line;
+      const cells = line.split(',');
+      for (let k = 0; k + 1 < cells.length; k++) {
+        const c = cell(j - 1, k);
+        if (c !== null) cells[k + 1] = c;
+      }
+      return cells.join(',');
+    }).join('\n'));
+    const parsed = await readSessionFolder(f.dir);
+    const store = freshStore(dir);
+    await importSessionFolder(store, f.dir, { workers: 0 });
+    const run = f.index[2].run;
+    const raw = parsed.runs.find((r) => r.info.run === run)!;
+    const header = readFileSync(join(f.dir, file), 'utf8').split('\n')[0].split(',').slice(1);
+    const dtypes: string[] = [];
+    for (const name of header.slice(0, 6)) {
+      const got = store.getSamples(1, run, name);
+      const want = raw.channels[name];
+      expect(got.length).toBe(want.length);
+      for (let i = 0; i < want.length; i++) if (!Object.is(got[i], want[i])) expect.fail(`${name} sample ${i + 1}: ${got[i]} ≠ ${want[i]}`);
+      dtypes.push((store.db.prepare('SELECT dtype FROM samples WHERE run = ? AND channel = ?').get(run, name) as { dtype: string }).dtype);
+    }
+    // Columns 1–3 hold a value no decimal mantissa holds the same way: plain doubles; 0 and 4 pack.
+    expect(dtypes.slice(0, 5)).toEqual(['dec', 'f64le', 'dec', 'f64le', 'dec']);
+    store.close();
+  });
+
   it('BOM and CRLF files import to the same samples as plain LF files', async () => {
     const dir = tempDir();
     const lf = miniFolder(join(dir, 'lf'), { runs: { dataRuns: 2, samples: 10 } });

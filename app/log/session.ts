@@ -4,7 +4,7 @@
 // Pure module (runs in a browser worker).
 import type { RawRun, RunInfo, Setup } from '../types';
 import { LogError } from './errors';
-import { createRunParser, type RunChannels, type RunParser, type SampleArena } from './runParser';
+import { createRunParser, type RunChannels, type RunParser, type RunParserOptions } from './runParser';
 import { parseRunIndexDetailed } from './runIndex';
 import { parseSetup } from './setup';
 
@@ -41,8 +41,10 @@ export function planRunFiles(index: RunInfo[], lines?: number[]): RunFilePlan[] 
   return [...byFile.values()];
 }
 
-export function runParserFor(plan: RunFilePlan, setup: Setup, expectedBytes?: number, arena?: SampleArena): RunParser {
-  return createRunParser(plan.file, setup, { runColumn: plan.long, expectedBytes, arena });
+export function runParserFor(
+  plan: RunFilePlan, setup: Setup, opts: Pick<RunParserOptions, 'expectedBytes' | 'arena'> = {},
+): RunParser {
+  return createRunParser(plan.file, setup, { ...opts, runColumn: plan.long });
 }
 
 /** Match one parsed file to the index runs it should hold. */
