@@ -20,6 +20,7 @@ import type { ImportProgress, ImportReport, ParsedSession, SourceInfo, Store } f
 import { RunFileReader, type PreparedFile } from './runFile';
 import { ImportPool, workersFor } from './importPool';
 import { SampleArena } from '../app/log/runParser';
+import { SpareBuffers } from './sampleCodec';
 
 /** Where the files of a session come from (a folder on disk, or anything else that streams). */
 export interface SessionSource {
@@ -240,14 +241,22 @@ async function readHere(
 ): Promise<void> {
   const byRun = new Map(head.index.map((r) => [r.run, r]));
   const arena = new SampleArena();
+  const spares = new SpareBuffers();
   for (const plan of head.plans) {
-    const reader = new RunFileReader(plan, head.setup, byRun, spikeK, { expectedBytes: head.sizes.get(plan.file), arena });
+    const reader = new RunFileReader(plan, head.setup, byRun, spikeK, { expectedBytes: head.sizes.get(plan.file), arena, spares });
     for await (const chunk of src.open(plan.file)) {
       reader.push(chunk);
       onBytes(plan.file, chunk.byteLength);
     }
-    onFile(reader.end());
+    const f = reader.end();
+    onFile(f);
+    for (const b of packedBuffers(f)) spares.give(b); // stored: free to pack the next runs into
   }
+}
+
+/** The buffers a prepared file's runs are packed in. */
+function packedBuffers(f: PreparedFile): ArrayBuffer[] {
+  return [...new Set(f.runs.map((r) => r.bytes.buffer as ArrayBuffer))];
 }
 
 /** Run logs read on worker threads; handed over in index order, a few in flight at a time.
@@ -285,8 +294,9 @@ async function readOnWorkers(
     for (; k < head.plans.length; k++) {
       const f = await started[k];
       delete started[k];
-      if (k + window < head.plans.length) start(k + window);
       onFile(f);
+      pool.recycle(packedBuffers(f)); // stored: back to a thread, to pack its next runs into
+      if (k + window < head.plans.length) start(k + window);
     }
   } catch (e) {
     await pool.close();

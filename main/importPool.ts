@@ -77,12 +77,21 @@ export class ImportPool {
     });
   }
 
+  private readonly spare: ArrayBuffer[] = [];
+
+  /** Buffers of stored runs, to go back to the threads with their next files (moved, not copied:
+   *  the caller must not touch them again). */
+  recycle(buffers: ArrayBuffer[]): void {
+    for (const b of buffers) if (this.spare.length < 4 * this.workers.length && b.byteLength > 0) this.spare.push(b);
+  }
+
   private pump(): void {
     while (this.idle.length && this.queue.length) {
       const w = this.idle.pop()!;
       const { id, p } = this.queue.shift()!;
       this.running.set(id, p);
-      w.postMessage({ ...p.job, id } satisfies WorkerJob);
+      const spare = this.spare.splice(0, Math.max(1, p.job.plan.runs.length));
+      w.postMessage({ ...p.job, id, spare } satisfies WorkerJob, spare);
     }
   }
 

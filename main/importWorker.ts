@@ -9,6 +9,7 @@ import type { RunInfo, Setup } from '../app/types';
 import type { RunFilePlan } from '../app/log/session';
 import { RunFileReader } from './runFile';
 import { SampleArena } from '../app/log/runParser';
+import { SpareBuffers } from './sampleCodec';
 
 export interface WorkerJob {
   id: number;
@@ -18,6 +19,8 @@ export interface WorkerJob {
   setup: Setup;
   spikeK: number;
   chunkSize: number;
+  /** Buffers of runs already stored, handed back to pack the next runs into. */
+  spare?: ArrayBuffer[];
 }
 
 /** Copy the WAL of a database into its file (PRAGMA wal_checkpoint(PASSIVE)). */
@@ -42,19 +45,21 @@ export type WorkerReply =
   | { id: number; kind: 'done'; file: import('./runFile').PreparedFile }
   | { id: number; kind: 'error'; error: { name: string; message: string; detail?: Record<string, unknown> } };
 
-/** Sample buffers reused from one run log to the next. */
+/** Sample buffers reused from one run log to the next, and buffers to pack runs into. */
 const arena = new SampleArena();
+const spares = new SpareBuffers();
 
 /** Progress is reported every this many bytes. */
 const PROGRESS_STEP = 4 << 20;
 
 function run(job: WorkerJob): void {
   const port = parentPort!;
+  for (const b of job.spare ?? []) spares.give(b);
   const fd = openSync(job.path, 'r');
   let reader: RunFileReader;
   let sinceReport = 0;
   try {
-    reader = new RunFileReader(job.plan, job.setup, new Map(job.infos.map((i) => [i.run, i])), job.spikeK, { expectedBytes: fstatSync(fd).size, arena });
+    reader = new RunFileReader(job.plan, job.setup, new Map(job.infos.map((i) => [i.run, i])), job.spikeK, { expectedBytes: fstatSync(fd).size, arena, spares });
     const buf = new Uint8Array(job.chunkSize);
     for (;;) {
       const n = readSync(fd, buf, 0, buf.length, null);

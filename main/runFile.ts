@@ -9,7 +9,7 @@ import { averageRun } from '../app/samples';
 import { channelToSI } from '../app/units';
 import { collectRuns, runParserFor, type RunFilePlan } from '../app/log/session';
 import type { RunParser, SampleArena } from '../app/log/runParser';
-import { PackedRun, packSamples, type ChannelPart } from './sampleCodec';
+import { PackedRun, packSamples, type ChannelPart, type SpareBuffers } from './sampleCodec';
 
 /** A run ready to be stored: packed samples (channels in setup order) and their statistics. */
 export interface PreparedRun {
@@ -34,13 +34,15 @@ export interface PreparedFile {
   warnings: string[];
 }
 
-/** Pack the channels of one parsed (or in-memory) run and average them. */
+/** Pack the channels of one parsed (or in-memory) run and average them (into a spare buffer if
+ *  one is large enough). */
 export function prepareRun(
-  setup: Setup, info: RunInfo, channels: Record<string, Float64Array>, spikeK: number,
+  setup: Setup, info: RunInfo, channels: Record<string, Float64Array>, spikeK: number, spares?: SpareBuffers,
 ): PreparedRun {
   const { stats } = averageRun({ info, channels }, spikeK);
   const n = channels[setup.channels[0]?.name]?.length ?? 0;
-  const packed = new PackedRun(Math.max(1024, setup.channels.length * n * 3 + 64));
+  const capacity = Math.max(1024, setup.channels.length * n * 3 + 64);
+  const packed = new PackedRun(capacity, spares?.take(capacity));
   const names: string[] = [];
   for (const c of setup.channels) {
     const a = channels[c.name];
@@ -67,13 +69,17 @@ export class RunFileReader {
       expectedBytes?: number;
       /** Sample buffers to reuse (end() gives them back; endRaw() hands them to the caller). */
       arena?: SampleArena;
+      /** Buffers to pack runs into (the caller gives them back once the runs are stored). */
+      spares?: SpareBuffers;
     } = {},
   ) {
     this.arena = opts.arena;
+    this.spares = opts.spares;
     this.parser = runParserFor(plan, setup, { expectedBytes: opts.expectedBytes, arena: opts.arena });
   }
 
   private readonly arena?: SampleArena;
+  private readonly spares?: SpareBuffers;
 
   get bytesRead(): number {
     return this.size;
@@ -96,7 +102,7 @@ export class RunFileReader {
   /** The file's runs ready for the store (averaged and packed). */
   end(): PreparedFile {
     const { raws, ...rest } = this.endRaw();
-    const runs = raws.map((r) => prepareRun(this.setup, r.info, r.channels, this.spikeK));
+    const runs = raws.map((r) => prepareRun(this.setup, r.info, r.channels, this.spikeK, this.spares));
     if (this.arena) for (const r of raws) for (const x of Object.values(r.channels)) this.arena.give(x);
     return { ...rest, runs };
   }
