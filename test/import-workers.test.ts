@@ -7,7 +7,7 @@ import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { Store } from '../main/store';
 import { importSessionFolder, readSessionFolder } from '../main/import';
-import { setImportWorkerScript } from '../main/importPool';
+import { ImportPool, setImportWorkerScript } from '../main/importPool';
 import { cleanupTempDirs, dbContents, dbSnapshot, editFile, miniFolder, tempDir } from './helpers/store-fixtures';
 
 afterAll(() => cleanupTempDirs());
@@ -66,6 +66,14 @@ describe('import on worker threads', () => {
       expect(statSync(file).size - before).toBeGreaterThanOrEqual(blobs);
       store.close();
     }
+  });
+
+  it('a checkpoint that cannot run is reported, not thrown (SQLite then checkpoints at a later write)', async () => {
+    const dir = tempDir();
+    const pool = new ImportPool(2);
+    const r = await pool.checkpointAndClose(join(dir, 'no-such.sqlite'));
+    expect(r.ok).toBe(false);
+    expect(r.error).toMatch(/no-such\.sqlite|unable to open|does not exist/i);
   });
 
   it('a bad cell found on a worker fails the import with file, line and channel; nothing is stored', async () => {
