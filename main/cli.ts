@@ -9,7 +9,7 @@ import { SingleBar, Presets } from 'cli-progress';
 import { watch } from 'chokidar';
 import { Store, type RunRow, type ImportProgress } from './store';
 import { importSessionFolder } from './import';
-import { reduceStoredSession, sessionSummary } from './reduceService';
+import { reduceStoredSession, reduceStoredSessionAsync, sessionSummary } from './reduceService';
 import { daySheetHtml } from './daysheet';
 import { exportResultsCsv, exportResultsJson } from './export';
 import { runsAffectedBy } from './handlers';
@@ -208,12 +208,12 @@ function dataRunsOf(store: Store, sessionId: number): number[] {
   return store.listRuns(sessionId).filter((r) => r.kind === 'data').map((r) => r.run);
 }
 
-function reduceAndTell(store: Store, sessionId: number, g: GlobalOpts, opts: { runs?: number[]; settings?: Partial<Settings> }): RunResult[] {
+async function reduceAndTell(store: Store, sessionId: number, g: GlobalOpts, opts: { runs?: number[]; settings?: Partial<Settings> }): Promise<RunResult[]> {
   const bar = progress();
   const t0 = performance.now();
   let res: { results: RunResult[] };
   try {
-    res = reduceStoredSession(store, sessionId, { ...opts, actor: actorOf(g), onProgress: bar.onProgress });
+    res = await reduceStoredSessionAsync(store, sessionId, { ...opts, actor: actorOf(g), onProgress: bar.onProgress });
   } finally {
     bar.stop();
   }
@@ -365,7 +365,7 @@ Examples:
           bar.stop();
         }
         out(`session ${rep.sessionId} (${rep.created ? 'new' : 'existing'}): ${rep.importedRuns.length} run(s) imported, ${rep.changedFiles.length} changed file(s), ${rep.unchangedFiles.length} unchanged, ${rep.skippedRuns.length} skipped in ${((performance.now() - t0) / 1000).toFixed(2)} s`);
-        if (o.reduce && rep.importedRuns.length) reduceAndTell(store, rep.sessionId, g(), {});
+        if (o.reduce && rep.importedRuns.length) await reduceAndTell(store, rep.sessionId, g(), {});
         if (rep.changedFiles.length) {
           throw new InputError(`${rep.changedFiles.length} file(s) differ from what session ${rep.sessionId} holds and were not merged: ${rep.changedFiles.join(', ')} (the stored data are kept; import a changed session from a new folder)`);
         }
@@ -379,7 +379,7 @@ Examples:
     .option('--set <key=value>', 'reduction setting for this reduction, repeatable (e.g. liftTolAbs=0.03, mcDraws=200, badTaps=C3,C4)', parseSetting)
     .option('--save', 'keep the --set values as the session settings (audited)')
     .action(async (o: { runs?: number[]; set?: Partial<Settings>; save?: boolean }) => {
-      await withStore(g(), false, (store) => {
+      await withStore(g(), false, async (store) => {
         const sid = pickSession(store, g());
         let settings = o.set;
         if (o.save && settings) {
@@ -391,7 +391,7 @@ Examples:
           const missing = o.runs.filter((r) => !known.has(r));
           if (missing.length) throw new InputError(`session ${sid} has no run(s) ${missing.join(', ')}`);
         }
-        reduceAndTell(store, sid, g(), { runs: o.runs, settings });
+        await reduceAndTell(store, sid, g(), { runs: o.runs, settings });
       });
     });
 
@@ -415,7 +415,7 @@ Examples:
         opts.session = first;
         tapId = second;
       }
-      await withStore(opts, false, (store) => {
+      await withStore(opts, false, async (store) => {
         const sid = pickSession(store, opts);
         const setup = store.getSetup(sid);
         if (!setup.taps.some((t) => t.id === tapId)) {
@@ -423,7 +423,7 @@ Examples:
         }
         const s = store.setTapBad(sid, tapId, !!o.bad, actorOf(opts), o.note);
         out(`session ${sid}: tap ${tapId} marked ${o.bad ? 'bad' : 'good'}; taps marked bad: ${s.badTaps.length ? s.badTaps.join(', ') : 'none'}`);
-        if (o.reduce) reduceAndTell(store, sid, opts, { runs: dataRunsOf(store, sid) });
+        if (o.reduce) await reduceAndTell(store, sid, opts, { runs: dataRunsOf(store, sid) });
       });
     });
 

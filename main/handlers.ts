@@ -20,7 +20,7 @@ import { INDEX_FILE, LONG_LOG_DEFAULT, SETUP_FILE } from '../app/log/session';
 import { parseRunIndexDetailed } from '../app/log/runIndex';
 import type { Store, RunRow, ImportProgress, ImportReport } from './store';
 import { folderSource, importSession, importSessionFolder, type SessionSource } from './import';
-import { reduceStoredSession, sessionSummary } from './reduceService';
+import { reduceStoredSessionAsync, sessionSummary } from './reduceService';
 import { zeroRunsFor } from '../app/samples';
 import { daySheetHtml, FLAG_WORDS } from './daysheet';
 import { exportResultsCsv, exportResultsJson } from './export';
@@ -307,7 +307,7 @@ async function reduceAfterImport(
   if (report.importedRuns.length === 0) return 0;
   const runs = runsAffectedBy(store.listRuns(report.sessionId), report.importedRuns);
   if (runs.length === 0) return 0;
-  return reduceStoredSession(store, report.sessionId, { runs, actor, onProgress }).results.length;
+  return (await reduceStoredSessionAsync(store, report.sessionId, { runs, actor, onProgress })).results.length;
 }
 
 /** Import the bundled demo session unless the db already holds it (same folder); reduce it.
@@ -435,7 +435,7 @@ export function createHandlers(ctx: HandlerContext): Handlers {
       if (report.importedRuns.length === 0) return;
       const fresh = new Set(report.importedRuns);
       const affected = runsAffectedBy(store.listRuns(report.sessionId), report.importedRuns);
-      if (affected.length) reduceStoredSession(store, report.sessionId, { runs: affected, actor, onProgress });
+      if (affected.length) await reduceStoredSessionAsync(store, report.sessionId, { runs: affected, actor, onProgress });
       const rereduced = affected.filter((r) => !fresh.has(r)).length;
       for (const run of [...report.importedRuns].sort((a, b) => a - b)) {
         const row = store.getRun(report.sessionId, run);
@@ -536,7 +536,7 @@ export function createHandlers(ctx: HandlerContext): Handlers {
           fail('validation', `Invalid payload for "runs.reduce": runs: run ${bad} is ${kinds.has(bad) ? 'a wind-off zero' : `not a run of session ${sessionId}`}`);
         }
       }
-      const { results, summary } = reduceStoredSession(store, sessionId, {
+      const { results, summary } = await reduceStoredSessionAsync(store, sessionId, {
         runs: runs?.length ? runs : undefined, actor, onProgress: progressEmitter(emit, taskId ?? newTaskId('reduce'), interval),
       });
       changed('sessions');

@@ -7,7 +7,8 @@ import path from 'node:path';
 import { Worker } from 'node:worker_threads';
 import { LogError, type LogErrorDetail } from '../app/log/errors';
 import type { PreparedFile } from './runFile';
-import type { CheckpointJob, CheckpointReport, WorkerJob, WorkerReply } from './importWorker';
+import type { CheckpointJob, CheckpointReport, ReduceJob, WorkerJob, WorkerReply } from './importWorker';
+import type { RunResult, Settings, Setup, ZeroedRun } from '../app/types';
 
 let workerScript: string | URL | null = null;
 
@@ -33,9 +34,9 @@ export function workersFor(bytes: number): number {
 }
 
 type Pending = {
-  job: Omit<WorkerJob, 'id'>;
+  job: Omit<WorkerJob, 'id'> | Omit<ReduceJob, 'id'>;
   onBytes: (n: number) => void;
-  resolve: (f: PreparedFile) => void;
+  resolve: (r: PreparedFile | RunResult[]) => void;
   reject: (e: Error) => void;
 };
 
@@ -68,8 +69,22 @@ export class ImportPool {
     }
   }
 
+  /** True once a thread failed to start or stopped (as opposed to a job that threw). */
+  get broken(): boolean {
+    return this.failed !== null;
+  }
+
   /** Read one run log on a worker. */
   run(job: Omit<WorkerJob, 'id'>, onBytes: (n: number) => void): Promise<PreparedFile> {
+    return this.enqueue(job, onBytes) as Promise<PreparedFile>;
+  }
+
+  /** Reduce some runs on a worker (app/reduce.ts reduceRun; results in the order of `runs`). */
+  reduce(setup: Setup, runs: ZeroedRun[], settings: Settings): Promise<RunResult[]> {
+    return this.enqueue({ kind: 'reduce', setup, runs, settings }, () => undefined) as Promise<RunResult[]>;
+  }
+
+  private enqueue(job: Pending['job'], onBytes: (n: number) => void): Promise<PreparedFile | RunResult[]> {
     return new Promise((resolve, reject) => {
       if (this.failed) return reject(this.failed);
       this.queue.push({ id: this.nextId++, p: { job, onBytes, resolve, reject } });
@@ -90,6 +105,10 @@ export class ImportPool {
       const w = this.idle.pop()!;
       const { id, p } = this.queue.shift()!;
       this.running.set(id, p);
+      if ('kind' in p.job) {
+        w.postMessage({ ...p.job, id } satisfies ReduceJob);
+        continue;
+      }
       const spare = this.spare.splice(0, Math.max(1, p.job.plan.runs.length));
       w.postMessage({ ...p.job, id, spare } satisfies WorkerJob, spare);
     }
@@ -135,6 +154,7 @@ export class ImportPool {
     this.running.delete(m.id);
     this.idle.push(w);
     if (m.kind === 'done') p.resolve(m.file);
+    else if (m.kind === 'reduced') p.resolve(m.results);
     else p.reject(errorOf(m.error));
     this.pump();
   }

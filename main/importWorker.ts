@@ -2,10 +2,12 @@
 // hands back their runs packed and averaged (main/runFile.ts) so that the calling thread only has
 // to store them. Started by main/importPool.ts; one file at a time per worker. After a large
 // import one of these threads also copies the committed WAL into the database file (a checkpoint),
-// so the calling thread does not wait for it.
+// so the calling thread does not wait for it. A large reduction sends them runs to reduce
+// (app/reduce.ts reduceRun, the same pure core; main/reduceService.ts).
 import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
 import { parentPort } from 'node:worker_threads';
-import type { RunInfo, Setup } from '../app/types';
+import type { RunInfo, RunResult, Settings, Setup, ZeroedRun } from '../app/types';
+import { reduceRun } from '../app/reduce';
 import type { RunFilePlan } from '../app/log/session';
 import { RunFileReader } from './runFile';
 import { SampleArena } from '../app/log/runParser';
@@ -30,6 +32,15 @@ export interface CheckpointJob {
   file: string;
 }
 
+/** Reduce some runs (their zeros applied) with the pure core. */
+export interface ReduceJob {
+  id: number;
+  kind: 'reduce';
+  setup: Setup;
+  runs: ZeroedRun[];
+  settings: Settings;
+}
+
 /** What a checkpoint did: WAL frames in all and copied (-1 each if it could not run: busy). */
 export interface CheckpointReport {
   ok: boolean;
@@ -40,6 +51,7 @@ export interface CheckpointReport {
 }
 
 export type WorkerReply =
+  | { id: number; kind: 'reduced'; results: RunResult[] }
   | { id: number; kind: 'checkpointed'; report: CheckpointReport }
   | { id: number; kind: 'progress'; bytes: number }
   | { id: number; kind: 'done'; file: import('./runFile').PreparedFile }
@@ -99,13 +111,16 @@ async function checkpoint(job: CheckpointJob): Promise<void> {
   parentPort!.postMessage({ id: job.id, kind: 'checkpointed', report } satisfies WorkerReply);
 }
 
-parentPort?.on('message', (job: WorkerJob | CheckpointJob) => {
-  if ('kind' in job) {
+parentPort?.on('message', (job: WorkerJob | CheckpointJob | ReduceJob) => {
+  if ('kind' in job && job.kind === 'checkpoint') {
     void checkpoint(job);
     return;
   }
   try {
-    run(job);
+    if ('kind' in job) {
+      const results = job.runs.map((z) => reduceRun(job.setup, z, job.settings));
+      parentPort!.postMessage({ id: job.id, kind: 'reduced', results } satisfies WorkerReply);
+    } else run(job);
   } catch (e) {
     const err = e instanceof Error ? e : new Error(String(e));
     const detail = typeof (err as { toJSON?: () => unknown }).toJSON === 'function'

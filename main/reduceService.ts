@@ -1,15 +1,16 @@
 // Reducing what the store holds with the pure core (app/reduce.ts) and storing the results as a
 // new reduction (history kept). The session summary comes from the latest stored digests.
-import type { RunResult, SessionSummary, Settings } from '../app/types';
+import { availableParallelism } from 'node:os';
+import type { RunResult, SessionSummary, Settings, Setup, ZeroedRun } from '../app/types';
 import { averageRuns, prepareRuns, reduceRun, summariseSession } from '../app/reduce';
 import { zeroRunsFor } from '../app/samples';
 import type { ImportProgress, Store } from './store';
+import { ImportPool } from './importPool';
 
-export function reduceStoredSession(
-  store: Store,
-  sessionId: number,
-  opts: { runs?: number[]; settings?: Partial<Settings>; actor?: string; onProgress?: (p: ImportProgress) => void } = {},
-): { results: RunResult[]; summary: SessionSummary } {
+type ReduceOpts = { runs?: number[]; settings?: Partial<Settings>; actor?: string; onProgress?: (p: ImportProgress) => void };
+
+/** What a reduction needs from the store: the setup, the settings and the runs with zeros applied. */
+function reductionInputs(store: Store, sessionId: number, opts: ReduceOpts): { setup: Setup; settings: Settings; zeroed: ZeroedRun[] } {
   const setup = store.getSetup(sessionId);
   const stored = store.getSettings(sessionId);
   const settings: Settings = { ...stored, ...(opts.settings ?? {}) };
@@ -29,14 +30,89 @@ export function reduceStoredSession(
     ? store.getAveraged(sessionId, needed ?? undefined)
     : averageRuns(index.filter((i) => !needed || needed.has(i.run)).map((i) => store.getRawRun(sessionId, i.run)), settings);
   const zeroed = prepareRuns(setup, averaged).filter((z) => !wanted || wanted.has(z.info.run));
+  return { setup, settings, zeroed };
+}
+
+function storeResults(store: Store, sessionId: number, results: RunResult[], opts: ReduceOpts): { results: RunResult[]; summary: SessionSummary } {
+  if (results.length) store.saveResults(sessionId, results, opts.actor ?? 'reduce');
+  return { results, summary: sessionSummary(store, sessionId) };
+}
+
+/** Reduce (all data runs, or opts.runs) on this thread and store the results as a new reduction. */
+export function reduceStoredSession(
+  store: Store,
+  sessionId: number,
+  opts: ReduceOpts = {},
+): { results: RunResult[]; summary: SessionSummary } {
+  const { setup, settings, zeroed } = reductionInputs(store, sessionId, opts);
   const results: RunResult[] = [];
   const total = zeroed.length;
   zeroed.forEach((z, k) => {
     results.push(reduceRun(setup, z, settings));
     opts.onProgress?.({ phase: 'reduce', bytesDone: 0, bytesTotal: 0, runsDone: k + 1, runsTotal: total });
   });
-  if (results.length) store.saveResults(sessionId, results, opts.actor ?? 'reduce');
-  return { results, summary: sessionSummary(store, sessionId) };
+  return storeResults(store, sessionId, results, opts);
+}
+
+/** Threads for reducing `runs` runs of `draws` Monte Carlo draws each: none for less than about
+ *  a third of a second of work (starting threads costs ~0.2 s), else one per core. */
+export function reduceWorkersFor(runs: number, draws: number): number {
+  if (runs < 8 || runs * Math.max(draws, 25) < 8000) return 0;
+  const cores = availableParallelism();
+  return cores < 2 ? 0 : Math.min(4, cores);
+}
+
+/**
+ * As reduceStoredSession, but a large reduction runs on worker threads (main/importWorker.ts, the
+ * same pure core, so the very same results) and the calling thread stays free meanwhile; only
+ * reading the store and saving the results happen here. `workers`: a number (0 = this thread) or
+ * 'auto' (default, reduceWorkersFor). Falls back to this thread if the threads cannot start.
+ */
+export async function reduceStoredSessionAsync(
+  store: Store,
+  sessionId: number,
+  opts: ReduceOpts & { workers?: number | 'auto' } = {},
+): Promise<{ results: RunResult[]; summary: SessionSummary }> {
+  const { setup, settings, zeroed } = reductionInputs(store, sessionId, opts);
+  const total = zeroed.length;
+  const workers = opts.workers === undefined || opts.workers === 'auto' ? reduceWorkersFor(total, settings.mcDraws) : opts.workers;
+  let results: RunResult[] | null = null;
+  if (workers > 0 && total > 1) {
+    let pool: ImportPool | null = null;
+    try {
+      pool = new ImportPool(Math.min(workers, total));
+      // Chunks of a few runs: enough to keep every thread busy to the end, few enough messages.
+      const size = Math.max(1, Math.min(16, Math.ceil(total / (4 * workers))));
+      let done = 0;
+      const chunks: Promise<RunResult[]>[] = [];
+      for (let k = 0; k < total; k += size) {
+        const part = zeroed.slice(k, k + size);
+        chunks.push(pool.reduce(setup, part, settings).then((r) => {
+          done += r.length;
+          opts.onProgress?.({ phase: 'reduce', bytesDone: 0, bytesTotal: 0, runsDone: done, runsTotal: total });
+          return r;
+        }));
+      }
+      for (const c of chunks) c.catch(() => undefined); // awaited in order below
+      results = [];
+      for (const c of chunks) results.push(...(await c));
+    } catch (e) {
+      // A run the core refused is the reduction's answer; threads that did not run are not.
+      if (pool && !pool.broken) throw e;
+      process.emitWarning(`rakeline: reduction threads unavailable (${e instanceof Error ? e.message : String(e)}); reducing on the main thread`);
+      results = null;
+    } finally {
+      if (pool) await pool.close();
+    }
+  }
+  if (results === null) {
+    results = [];
+    for (let k = 0; k < total; k++) {
+      results.push(reduceRun(setup, zeroed[k], settings));
+      opts.onProgress?.({ phase: 'reduce', bytesDone: 0, bytesTotal: 0, runsDone: k + 1, runsTotal: total });
+    }
+  }
+  return storeResults(store, sessionId, results, opts);
 }
 
 /** Session summary from the latest stored result of every data run. Runs a reviewer rejected are

@@ -4,7 +4,8 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Store } from '../main/store';
 import { importSessionFolder, readSessionFolder } from '../main/import';
-import { reduceStoredSession, sessionSummary } from '../main/reduceService';
+import { reduceStoredSession, reduceStoredSessionAsync, reduceWorkersFor, sessionSummary } from '../main/reduceService';
+import { setImportWorkerScript } from '../main/importPool';
 import { averageRun, zeroRunsFor } from '../app/samples';
 import { writeSessionFolder } from '../main/logwriter';
 import { reduceRawSession } from '../app/reduce';
@@ -113,6 +114,39 @@ describe('reduceStoredSession', () => {
     const r = store.latestResult(1, dataRuns[0])!;
     expect(() => store.saveResults(1, [{ ...r, run: zero }], 'x')).toThrow(/is a wind-off zero/);
     expect(() => store.saveResults(1, [{ ...r, run: 999 }], 'x')).toThrow(/unknown run 999/);
+  });
+});
+
+describe('reducing on worker threads', () => {
+  // Common practice, no source: the threads run the same pure core on the same inputs, so the
+  // results must be the very same numbers (Monte Carlo included: each run's stream is seeded
+  // from the run, not from the thread), in run order, with progress counted to the end.
+  it('gives the same results as this thread, stored the same way', async () => {
+    const serial = reduceStoredSession(store, 1, { actor: 'x' }).results;
+    const seen: number[] = [];
+    const { results, summary } = await reduceStoredSessionAsync(store, 1, { actor: 'x', workers: 2, onProgress: (p) => seen.push(p.runsDone) });
+    expect(results.map((r) => r.run)).toEqual(dataRuns);
+    expect(results).toEqual(serial);
+    expect(summary).toEqual(sessionSummary(store, 1));
+    expect(seen.at(-1)).toBe(dataRuns.length);
+    for (const r of results) expect(store.latestResult(1, r.run)).toEqual(r);
+  });
+
+  it('threads that cannot start: the reduction runs on this thread, same results', async () => {
+    const serial = reduceStoredSession(store, 1, { actor: 'x' }).results;
+    setImportWorkerScript(join(dir, 'no-such-worker.mjs'));
+    try {
+      const { results } = await reduceStoredSessionAsync(store, 1, { actor: 'x', workers: 2 });
+      expect(results).toEqual(serial);
+    } finally {
+      setImportWorkerScript(null);
+    }
+  });
+
+  it('small reductions stay on this thread', () => {
+    expect(reduceWorkersFor(1, 400)).toBe(0);
+    expect(reduceWorkersFor(6, 4000)).toBe(0);
+    expect(reduceWorkersFor(10, 0)).toBe(0);
   });
 });
 
