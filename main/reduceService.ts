@@ -54,10 +54,12 @@ export function reduceStoredSession(
   return storeResults(store, sessionId, results, opts);
 }
 
-/** Threads for reducing `runs` runs of `draws` Monte Carlo draws each: none for less than about
- *  a third of a second of work (starting threads costs ~0.2 s), else one per core. */
+/** Threads for reducing `runs` runs of `draws` Monte Carlo draws each: none below about a second
+ *  of work (measured here: new threads start in ~0.2 s bundled, ~0.5 s from the sources, and must
+ *  compile the core afresh, ~0.9 s of warm-up; so on two cores a day of 250 runs takes about as
+ *  long on threads as on a warm calling thread, which the threads leave free), else one per core. */
 export function reduceWorkersFor(runs: number, draws: number): number {
-  if (runs < 8 || runs * Math.max(draws, 25) < 8000) return 0;
+  if (runs < 8 || runs * Math.max(draws, 25) < 40000) return 0;
   const cores = availableParallelism();
   return cores < 2 ? 0 : Math.min(4, cores);
 }

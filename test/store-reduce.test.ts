@@ -1,6 +1,7 @@
 // Reducing stored sessions (main/reduceService.ts) and keeping the history of reductions.
 // Data: the tiny invented Harrowgate demo day (resources/demo), written through the log writer.
 import { join } from 'node:path';
+import { availableParallelism } from 'node:os';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Store } from '../main/store';
 import { importSessionFolder, readSessionFolder } from '../main/import';
@@ -146,6 +147,9 @@ describe('reducing on worker threads', () => {
   it('small reductions stay on this thread', () => {
     expect(reduceWorkersFor(1, 400)).toBe(0);
     expect(reduceWorkersFor(6, 4000)).toBe(0);
+    expect(reduceWorkersFor(42, 400)).toBe(0); // a demo day
+    const cores = availableParallelism();
+    expect(reduceWorkersFor(249, 400)).toBe(cores < 2 ? 0 : Math.min(4, cores)); // the bench's day
     expect(reduceWorkersFor(10, 0)).toBe(0);
   });
 });
