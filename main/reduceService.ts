@@ -55,13 +55,14 @@ export function reduceStoredSession(
 }
 
 /** Threads for reducing `runs` runs of `draws` Monte Carlo draws each: none below about a second
- *  of work (measured here: new threads start in ~0.2 s bundled, ~0.5 s from the sources, and must
- *  compile the core afresh, ~0.9 s of warm-up; so on two cores a day of 250 runs takes about as
- *  long on threads as on a warm calling thread, which the threads leave free), else one per core. */
+ *  of work, nor with fewer than four cores; else one per core, up to four. Measured here (2
+ *  cores): new threads start in ~0.2 s bundled (~0.5 s from the sources) and must compile the core
+ *  afresh (~0.9 s), so a day of 250 runs took 3.8 s on two threads against 3.0 s on the calling
+ *  thread; the threads only pay off with more cores. */
 export function reduceWorkersFor(runs: number, draws: number): number {
   if (runs < 8 || runs * Math.max(draws, 25) < 40000) return 0;
   const cores = availableParallelism();
-  return cores < 2 ? 0 : Math.min(4, cores);
+  return cores < 4 ? 0 : Math.min(4, cores);
 }
 
 /**
