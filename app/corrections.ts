@@ -9,7 +9,12 @@
 //   cm_c/4 = cm_c/4,u(1 − 2ε) + σ cl/4;  cd = cd_u(1 − 3ε_sb − 2ε_wb).
 // 'allen-vincenti': Allen & Vincenti write ε_sb = Λσ with a body-shape factor Λ found from the
 // section's pressure distribution; that formula is not implemented here (not recalled with enough
-// confidence), so this method currently uses the same ε_sb as 'barlow-rae-pope'.
+// confidence), so this method currently uses the same ε_sb as 'barlow-rae-pope'. Its wake blockage
+// is Thom's ε_wb = (c/4h)·cd_u as Allen & Vincenti give it (memory), which also follows from
+// representing the wake by a source of the wake's volume deficit Q = D/(ρV) = ½V·c·cd_u: in a
+// channel of height h it raises the far-downstream speed by Q/h and the speed at the model by half
+// that, Q/(2h) (derived here by the image argument, common practice). 'barlow-rae-pope' keeps the
+// book's (c/2h)·cd_u, as REDUCTION.md §8 prescribes.
 // Section area for V_model: shoelace area of the section contour (NACA 4-digit formulas of Abbott &
 // von Doenhoff, or user coordinates) from app/panel.ts.
 
@@ -62,9 +67,9 @@ export function wallCorrections(args: {
   const vModel = sectionAreaC2 * chord * chord * width;
   const C = height * width;
   const epsSb = (K1_SPANNING * vModel) / C ** 1.5; // same for 'allen-vincenti' (see header)
-  // ε_wb = (c/4h)·cd_u: Allen & Vincenti (1944) and Barlow, Rae & Pope (1999) ch. 9 as two of us
-  // recall them (memory). REDUCTION.md §8 writes c/2h; we use c/4h pending a check of the book.
-  const epsWb = (ch / 4) * cdU;
+  // ε_wb: (c/2h)·cd_u per Barlow, Rae & Pope ch. 9 (REDUCTION.md §8); (c/4h)·cd_u per Allen &
+  // Vincenti (Thom's result; see the header).
+  const epsWb = (method === 'allen-vincenti' ? ch / 4 : ch / 2) * cdU;
   return { method, sigma, epsSb, epsWb, eps: epsSb + epsWb };
 }
 

@@ -3,7 +3,9 @@
 // where a field name says `Deg`, else radians. Pressure channels in logs may use other units;
 // they are converted to Pa on import (app/units.ts) before anything else sees them.
 
-export const CORE_VERSION = '0.1.0';
+/** Stored with every result; raised whenever the reduced numbers change (0.2.0: the
+ *  Barlow, Rae & Pope wake blockage is (c/2h)·cd_u as REDUCTION.md §8 gives it, not (c/4h)·cd_u). */
+export const CORE_VERSION = '0.2.0';
 
 export type PressureUnit =
   | 'Pa' | 'kPa' | 'hPa' | 'mbar' | 'psi' | 'inH2O' | 'mmH2O' | 'mmHg' | 'torr';
