@@ -4,7 +4,8 @@
 // they are converted to Pa on import (app/units.ts) before anything else sees them.
 
 /** Stored with every result; raised whenever the reduced numbers change (0.2.0: the
- *  Barlow, Rae & Pope wake blockage is (c/2h)·cd_u as REDUCTION.md §8 gives it, not (c/4h)·cd_u). */
+ *  Barlow, Rae & Pope wake blockage is (c/2h)·cd_u as REDUCTION.md §8 gives it, not (c/4h)·cd_u;
+ *  the Monte Carlo normal deviates come from the polar Box–Muller method, so other draws). */
 export const CORE_VERSION = '0.2.0';
 
 export type PressureUnit =

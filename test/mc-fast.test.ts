@@ -241,11 +241,12 @@ describe('reduceRun: the same coverage intervals by the plan and by runCore', ()
   });
 });
 
-describe('Monte Carlo draws come from createRng by the Box–Muller transform', () => {
+describe('Monte Carlo draws come from createRng by the polar Box–Muller method', () => {
   it('monteCarlo normal and uniform deviates equal the documented construction on createRng', () => {
-    // Reference built here from the documentation of Draw/StreamDraw: pairs (r cos θ, r sin θ) with
-    // r = √(−2 ln(1 − u₁)), θ = 2π u₂ (Box & Muller, Ann. Math. Statist. 29 (1958) 610), the sine
-    // value kept for the next normal; uniform(lo, hi) = lo + (hi − lo) u.
+    // Reference built here from the documentation of Draw/StreamDraw: (u, v) = (2u₁ − 1, 2u₂ − 1)
+    // until 0 < s = u² + v² < 1, then the pair (u f, v f) with f = √(−2 ln s / s) (Marsaglia & Bray,
+    // SIAM Review 6 (1964) 260), the second value kept for the next normal; uniform(lo, hi) =
+    // lo + (hi − lo) u.
     const seed = 987654321;
     const got: number[] = [];
     monteCarlo(50, seed, (d) => {
@@ -260,10 +261,17 @@ describe('Monte Carlo draws come from createRng by the Box–Muller transform', 
         z = spare;
         spare = null;
       } else {
-        const r = Math.sqrt(-2 * Math.log(1 - u()));
-        const th = 2 * Math.PI * u();
-        z = r * Math.cos(th);
-        spare = r * Math.sin(th);
+        let a: number;
+        let b: number;
+        let s: number;
+        do {
+          a = 2 * u() - 1;
+          b = 2 * u() - 1;
+          s = a * a + b * b;
+        } while (s >= 1 || s === 0);
+        const f = Math.sqrt((-2 * Math.log(s)) / s);
+        z = a * f;
+        spare = b * f;
       }
       return mean + std * z;
     };

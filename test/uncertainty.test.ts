@@ -131,6 +131,21 @@ describe('monteCarlo (JCGM 101:2008)', () => {
   const yTrue = c[0] * x[0] + c[1] * x[1] + c[2] * x[2]; // 2 − 1.2 + 5 = 5.8
   const uc = gumLinear(c, u); // 0.663325
 
+  it('the draws\' normal deviates (polar Box–Muller, Marsaglia & Bray 1964): N(0, 1), and the two of a pair independent', () => {
+    // M = 100 000 (4 sd tolerances): mean sd 1/√M = 3.2e-3; std relative sd 1/√(2(M − 1)) = 2.2e-3;
+    // the 2.5 % quantile's sd √(p(1 − p)/M)/φ(1.96) = 4.94e-4/0.05845 = 8.5e-3. Product of the two
+    // deviates of one pair: mean 0 and variance E[a²b²] = 1 when independent (sd of its mean 1/√M).
+    const M = 100000;
+    const r = monteCarlo(M, 4242, (d) => ({ z: d.normal(0, 1), p: d.normal(0, 1) * d.normal(0, 1) }));
+    expect(Math.abs(r.z.value)).toBeLessThan(4 * 3.2e-3);
+    expect(Math.abs(r.z.u - 1)).toBeLessThan(4 * 2.2e-3);
+    expect(Math.abs(r.z.lo + 1.959964)).toBeLessThan(4 * 8.5e-3);
+    expect(Math.abs(r.z.hi - 1.959964)).toBeLessThan(4 * 8.5e-3);
+    expect(Math.abs(r.p.value)).toBeLessThan(4 * 3.2e-3);
+    // var(ab) = 1 for independent a, b; its sampling sd is √((E[a⁴b⁴] − 1)/M) = √(8/M) ≈ 8.9e-3 in u².
+    expect(Math.abs(r.p.u * r.p.u - 1)).toBeLessThan(4 * 8.9e-3);
+  });
+
   it('linear model: MC mean, std and 95 % interval match the GUM (JCGM 100) propagation', () => {
     // Tolerances from the sampling distribution of M = 20 000 draws (4 sd each):
     //   mean: sd u_c/√M = 0.0047 → 0.019;   std: relative sd 1/√(2(M − 1)) = 0.5 % → 2 %;
