@@ -33,8 +33,8 @@ export const NUM_FIELDS: NumField[] = [
 ];
 
 export const CORRECTIONS: { value: CorrectionMethod; label: string }[] = [
-  { value: 'barlow-rae-pope', label: 'Solid + wake blockage and streamline curvature (Barlow, Rae & Pope)' },
-  { value: 'allen-vincenti', label: 'Allen & Vincenti (NACA Report 782)' },
+  { value: 'barlow-rae-pope', label: 'Solid + wake blockage (c/2h)·cd and streamline curvature (Barlow, Rae & Pope)' },
+  { value: 'allen-vincenti', label: 'As Barlow, Rae & Pope but Thom’s wake blockage (c/4h)·cd (Allen & Vincenti, NACA Report 782)' },
   { value: 'none', label: 'None (uncorrected)' },
 ];
 
