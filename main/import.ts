@@ -19,8 +19,7 @@ import {
 import type { ImportProgress, ImportReport, ParsedSession, SourceInfo, Store } from './store';
 import { RunFileReader, type PreparedFile } from './runFile';
 import { ImportPool, workersFor } from './importPool';
-import { SampleArena } from '../app/log/runParser';
-import { SpareBuffers } from './sampleCodec';
+import { BufferPool } from '../app/bufferPool';
 
 /** Where the files of a session come from (a folder on disk, or anything else that streams). */
 export interface SessionSource {
@@ -240,8 +239,8 @@ async function readHere(
   onBytes: (file: string, n: number) => void, onFile: (f: PreparedFile) => void,
 ): Promise<void> {
   const byRun = new Map(head.index.map((r) => [r.run, r]));
-  const arena = new SampleArena();
-  const spares = new SpareBuffers();
+  const arena = new BufferPool();
+  const spares = new BufferPool(16);
   for (const plan of head.plans) {
     const reader = new RunFileReader(plan, head.setup, byRun, spikeK, { expectedBytes: head.sizes.get(plan.file), arena, spares });
     for await (const chunk of src.open(plan.file)) {

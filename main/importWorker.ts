@@ -10,8 +10,7 @@ import type { RunInfo, RunResult, Settings, Setup, ZeroedRun } from '../app/type
 import { reduceRun } from '../app/reduce';
 import type { RunFilePlan } from '../app/log/session';
 import { RunFileReader } from './runFile';
-import { SampleArena } from '../app/log/runParser';
-import { SpareBuffers } from './sampleCodec';
+import { BufferPool } from '../app/bufferPool';
 
 export interface WorkerJob {
   id: number;
@@ -58,8 +57,8 @@ export type WorkerReply =
   | { id: number; kind: 'error'; error: { name: string; message: string; detail?: Record<string, unknown> } };
 
 /** Sample buffers reused from one run log to the next, and buffers to pack runs into. */
-const arena = new SampleArena();
-const spares = new SpareBuffers();
+const arena = new BufferPool();
+const spares = new BufferPool(16);
 
 /** Progress is reported every this many bytes. */
 const PROGRESS_STEP = 4 << 20;

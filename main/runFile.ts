@@ -8,8 +8,9 @@ import type { ChannelStats, RawRun, RunInfo, Setup } from '../app/types';
 import { averageRun } from '../app/samples';
 import { channelToSI } from '../app/units';
 import { collectRuns, runParserFor, type RunFilePlan } from '../app/log/session';
-import type { RunParser, SampleArena } from '../app/log/runParser';
-import { PackedRun, packSamples, type ChannelPart, type SpareBuffers } from './sampleCodec';
+import type { RunParser } from '../app/log/runParser';
+import type { BufferPool } from '../app/bufferPool';
+import { PackedRun, packSamples, type ChannelPart } from './sampleCodec';
 
 /** A run ready to be stored: packed samples (channels in setup order) and their statistics. */
 export interface PreparedRun {
@@ -37,7 +38,7 @@ export interface PreparedFile {
 /** Pack the channels of one parsed (or in-memory) run and average them (into a spare buffer if
  *  one is large enough). */
 export function prepareRun(
-  setup: Setup, info: RunInfo, channels: Record<string, Float64Array>, spikeK: number, spares?: SpareBuffers,
+  setup: Setup, info: RunInfo, channels: Record<string, Float64Array>, spikeK: number, spares?: BufferPool,
 ): PreparedRun {
   const { stats } = averageRun({ info, channels }, spikeK);
   const n = channels[setup.channels[0]?.name]?.length ?? 0;
@@ -65,21 +66,16 @@ export class RunFileReader {
     private readonly infos: Map<number, RunInfo>,
     /** Spike threshold for end()'s statistics (endRaw() does not average). */
     private readonly spikeK: number,
-    opts: {
+    private readonly opts: {
       expectedBytes?: number;
       /** Sample buffers to reuse (end() gives them back; endRaw() hands them to the caller). */
-      arena?: SampleArena;
+      arena?: BufferPool;
       /** Buffers to pack runs into (the caller gives them back once the runs are stored). */
-      spares?: SpareBuffers;
+      spares?: BufferPool;
     } = {},
   ) {
-    this.arena = opts.arena;
-    this.spares = opts.spares;
     this.parser = runParserFor(plan, setup, { expectedBytes: opts.expectedBytes, arena: opts.arena });
   }
-
-  private readonly arena?: SampleArena;
-  private readonly spares?: SpareBuffers;
 
   get bytesRead(): number {
     return this.size;
@@ -102,8 +98,9 @@ export class RunFileReader {
   /** The file's runs ready for the store (averaged and packed). */
   end(): PreparedFile {
     const { raws, ...rest } = this.endRaw();
-    const runs = raws.map((r) => prepareRun(this.setup, r.info, r.channels, this.spikeK, this.spares));
-    if (this.arena) for (const r of raws) for (const x of Object.values(r.channels)) this.arena.give(x);
+    const { arena, spares } = this.opts;
+    const runs = raws.map((r) => prepareRun(this.setup, r.info, r.channels, this.spikeK, spares));
+    if (arena) for (const r of raws) for (const x of Object.values(r.channels)) arena.give(x.buffer);
     return { ...rest, runs };
   }
 }

@@ -64,7 +64,7 @@ export class PackedRun {
   bytes: Uint8Array;
   length = 0;
   readonly parts: ChannelPart[] = [];
-  /** `spare`: a used buffer to pack into if it is large enough (see SpareBuffers). */
+  /** `spare`: a used buffer to pack into if it is large enough (app/bufferPool.ts). */
   constructor(capacity = 1 << 16, spare?: ArrayBuffer | null) {
     this.bytes = spare && spare.byteLength >= capacity ? new Uint8Array(spare) : new Uint8Array(capacity);
   }
@@ -81,29 +81,6 @@ export class PackedRun {
   view(k: number): Uint8Array {
     const p = this.parts[k];
     return this.bytes.subarray(p.offset, p.offset + p.length);
-  }
-}
-
-/** Buffers of packed runs handed back once stored, to pack the next runs into (common practice,
- *  no source): an import otherwise allocates, and the garbage collector and the kernel clear again,
- *  a megabyte or two per run. */
-export class SpareBuffers {
-  private readonly free: ArrayBuffer[] = [];
-  constructor(private readonly max = 16) {}
-  give(b: ArrayBuffer): void {
-    if (this.free.length < this.max && b.byteLength > 0) this.free.push(b);
-  }
-  /** A spare buffer of at least `bytes` bytes, or null. */
-  take(bytes: number): ArrayBuffer | null {
-    const k = this.free.findIndex((b) => b.byteLength >= bytes);
-    return k < 0 ? null : this.free.splice(k, 1)[0];
-  }
-  /** Hand all of them over (to another thread). */
-  drain(): ArrayBuffer[] {
-    return this.free.splice(0);
-  }
-  get size(): number {
-    return this.free.length;
   }
 }
 

@@ -2,7 +2,8 @@
 // with its message (file, line, channel, expected).
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { SampleArena, createRunParser } from '../app/log/runParser';
+import { createRunParser } from '../app/log/runParser';
+import { BufferPool } from '../app/bufferPool';
 import { LogError } from '../app/log/errors';
 import { miniSetup } from './helpers/mini-session';
 import type { Setup } from '../app/types';
@@ -128,10 +129,10 @@ describe('run log values', () => {
     expect(parse(spaced.trimEnd()).result).toEqual(base);
   });
 
-  it('reusing sample buffers from one file to the next (SampleArena) changes nothing read', () => {
+  it('reusing sample buffers from one file to the next (BufferPool) changes nothing read', () => {
     // Common practice, no source: a free list must hand back buffers whose stale contents never
     // show. Files of different lengths, one-run and long logs, buffers grown past their first size.
-    const arena = new SampleArena();
+    const arena = new BufferPool();
     const long = (rows: number) => {
       const lines = [`run,t_s,${names.join(',')}`];
       for (let i = 0; i < rows; i++) lines.push(rowOf([3 + (i % 2), i, ...names.map((_, k) => -k - i / 4)]));
@@ -157,7 +158,7 @@ describe('run log values', () => {
       for (const ch of sets(got)) {
         for (const n of names) {
           given.add(ch[n].buffer);
-          arena.give(ch[n]);
+          arena.give(ch[n].buffer);
         }
       }
     }

@@ -15,6 +15,7 @@ import type { Setup } from '../types';
 import { channelToSI } from '../units';
 import { LogError, shown } from './errors';
 import { parseHeaderLine } from './csv';
+import type { BufferPool } from '../bufferPool';
 
 export const TIME_COLUMN = 't_s';
 export const RUN_COLUMN = 'run';
@@ -29,34 +30,9 @@ export interface RunParserOptions {
    *  sized from it and the first line's length once, instead of growing by doubling. */
   expectedBytes?: number;
   /** Reusable sample buffers: the columns are taken from it (and returned to it when they grow),
-   *  so a reader of many files does not allocate fresh ones for each; the caller gives them back
-   *  with SampleArena.give() once it no longer needs the channels. */
-  arena?: SampleArena;
-}
-
-/** A free list of sample buffers, reused from one run log to the next (common practice, no
- *  source): each file otherwise allocates megabytes of columns that the garbage collector and the
- *  kernel must clear again. */
-export class SampleArena {
-  private readonly free: Float64Array[] = [];
-  /** Keep at most this many buffers. */
-  constructor(private readonly max = 4096) {}
-  /** A buffer of at least `cap` samples (its contents are stale). */
-  take(cap: number): Float64Array {
-    for (let k = this.free.length - 1; k >= 0; k--) {
-      const f = this.free[k];
-      if (f.length >= cap) {
-        this.free[k] = this.free[this.free.length - 1];
-        this.free.pop();
-        return f;
-      }
-    }
-    return new Float64Array(cap);
-  }
-  /** Hand back the buffer behind a column (or a view of it). */
-  give(x: Float64Array): void {
-    if (this.free.length < this.max) this.free.push(x.byteOffset === 0 && x.byteLength === x.buffer.byteLength ? x : new Float64Array(x.buffer));
-  }
+   *  so a reader of many files does not allocate fresh ones for each; the caller gives their
+   *  buffers back (BufferPool.give(column.buffer)) once it no longer needs the channels. */
+  arena?: BufferPool;
 }
 
 export type RunChannels = Record<string, Float64Array>;
@@ -99,24 +75,28 @@ class RunBuffers {
   n = 0;
   cap: number;
   cols: Float64Array[];
-  constructor(ncols: number, cap: number, private readonly arena?: SampleArena) {
+  constructor(ncols: number, cap: number, private readonly arena?: BufferPool) {
     this.cap = cap;
-    this.cols = Array.from({ length: ncols }, () => (arena ? arena.take(cap).subarray(0, cap) : new Float64Array(cap)));
+    this.cols = Array.from({ length: ncols }, () => this.alloc(cap));
+  }
+  /** A column of cap samples, on a buffer from the arena if it has one large enough. */
+  private alloc(cap: number): Float64Array {
+    const b = this.arena?.take(cap * 8);
+    return b ? new Float64Array(b, 0, cap) : new Float64Array(cap);
   }
   grow(): void {
     const cap = this.cap * 2;
-    const a = this.arena;
     this.cols = this.cols.map((c) => {
-      const g = a ? a.take(cap).subarray(0, cap) : new Float64Array(cap);
+      const g = this.alloc(cap);
       g.set(c.subarray(0, this.n));
-      a?.give(c);
+      this.arena?.give(c.buffer);
       return g;
     });
     this.cap = cap;
   }
   /** Give the columns back to the arena (a buffer that is dropped unread). */
   release(): void {
-    if (this.arena) for (const c of this.cols) this.arena.give(c);
+    if (this.arena) for (const c of this.cols) this.arena.give(c.buffer);
   }
   /** The columns cut to the samples read: views when little is left over (always, with an arena:
    *  the caller gives them back), else copies. */
