@@ -45,13 +45,21 @@ export function reduceStoredSession(
   opts: ReduceOpts = {},
 ): { results: RunResult[]; summary: SessionSummary } {
   const { setup, settings, zeroed } = reductionInputs(store, sessionId, opts);
-  const results: RunResult[] = [];
-  const total = zeroed.length;
-  zeroed.forEach((z, k) => {
-    results.push(reduceRun(setup, z, settings));
-    opts.onProgress?.({ phase: 'reduce', bytesDone: 0, bytesTotal: 0, runsDone: k + 1, runsTotal: total });
+  return storeResults(store, sessionId, reduceHere(setup, zeroed, settings, progressOf(opts, zeroed.length)), opts);
+}
+
+/** Progress of a reduction of `total` runs, `done` of them reduced. */
+function progressOf(opts: ReduceOpts, total: number): (done: number) => void {
+  return (done) => opts.onProgress?.({ phase: 'reduce', bytesDone: 0, bytesTotal: 0, runsDone: done, runsTotal: total });
+}
+
+/** The runs reduced one after the other on this thread. */
+function reduceHere(setup: Setup, zeroed: ZeroedRun[], settings: Settings, tell: (done: number) => void): RunResult[] {
+  return zeroed.map((z, k) => {
+    const r = reduceRun(setup, z, settings);
+    tell(k + 1);
+    return r;
   });
-  return storeResults(store, sessionId, results, opts);
 }
 
 /** Threads for reducing `runs` runs of `draws` Monte Carlo draws each: none below about a second
@@ -78,44 +86,45 @@ export async function reduceStoredSessionAsync(
 ): Promise<{ results: RunResult[]; summary: SessionSummary }> {
   const { setup, settings, zeroed } = reductionInputs(store, sessionId, opts);
   const total = zeroed.length;
+  const tell = progressOf(opts, total);
   const workers = opts.workers === undefined || opts.workers === 'auto' ? reduceWorkersFor(total, settings.mcDraws) : opts.workers;
-  let results: RunResult[] | null = null;
-  if (workers > 0 && total > 1) {
-    let pool: ImportPool | null = null;
-    try {
-      pool = new ImportPool(Math.min(workers, total));
-      // Chunks of a few runs: enough to keep every thread busy to the end, few enough messages.
-      const size = Math.max(1, Math.min(16, Math.ceil(total / (4 * workers))));
-      let done = 0;
-      const chunks: Promise<RunResult[]>[] = [];
-      for (let k = 0; k < total; k += size) {
-        const part = zeroed.slice(k, k + size);
-        chunks.push(pool.reduce(setup, part, settings).then((r) => {
-          done += r.length;
-          opts.onProgress?.({ phase: 'reduce', bytesDone: 0, bytesTotal: 0, runsDone: done, runsTotal: total });
-          return r;
-        }));
-      }
-      for (const c of chunks) c.catch(() => undefined); // awaited in order below
-      results = [];
-      for (const c of chunks) results.push(...(await c));
-    } catch (e) {
-      // A run the core refused is the reduction's answer; threads that did not run are not.
-      if (pool && !pool.broken) throw e;
-      process.emitWarning(`rakeline: reduction threads unavailable (${e instanceof Error ? e.message : String(e)}); reducing on the main thread`);
-      results = null;
-    } finally {
-      if (pool) await pool.close();
-    }
-  }
-  if (results === null) {
-    results = [];
-    for (let k = 0; k < total; k++) {
-      results.push(reduceRun(setup, zeroed[k], settings));
-      opts.onProgress?.({ phase: 'reduce', bytesDone: 0, bytesTotal: 0, runsDone: k + 1, runsTotal: total });
-    }
-  }
+  const results = (workers > 0 && total > 1 ? await reduceOnThreads(setup, zeroed, settings, workers, tell) : null)
+    ?? reduceHere(setup, zeroed, settings, tell);
   return storeResults(store, sessionId, results, opts);
+}
+
+/** The runs reduced on worker threads, in chunks, results in run order; null if the threads did
+ *  not run (the caller then reduces on its own thread). */
+async function reduceOnThreads(
+  setup: Setup, zeroed: ZeroedRun[], settings: Settings, workers: number, tell: (done: number) => void,
+): Promise<RunResult[] | null> {
+  const total = zeroed.length;
+  let pool: ImportPool | null = null;
+  try {
+    pool = new ImportPool(Math.min(workers, total));
+    // Chunks of a few runs: enough to keep every thread busy to the end, few enough messages.
+    const size = Math.max(1, Math.min(16, Math.ceil(total / (4 * workers))));
+    let done = 0;
+    const chunks: Promise<RunResult[]>[] = [];
+    for (let k = 0; k < total; k += size) {
+      chunks.push(pool.reduce(setup, zeroed.slice(k, k + size), settings).then((r) => {
+        done += r.length;
+        tell(done);
+        return r;
+      }));
+    }
+    for (const c of chunks) c.catch(() => undefined); // awaited in order below
+    const results: RunResult[] = [];
+    for (const c of chunks) results.push(...(await c));
+    return results;
+  } catch (e) {
+    // A run the core refused is the reduction's answer; threads that did not run are not.
+    if (pool && !pool.broken) throw e;
+    process.emitWarning(`rakeline: reduction threads unavailable (${e instanceof Error ? e.message : String(e)}); reducing on the main thread`);
+    return null;
+  } finally {
+    if (pool) await pool.close();
+  }
 }
 
 /** Session summary from the latest stored result of every data run. Runs a reviewer rejected are
