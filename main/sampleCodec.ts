@@ -53,8 +53,9 @@ function mantissaAt(x: number, e: number, p10: number, f: number, inv: number): 
 }
 
 let mantScratch = new Float64Array(4096);
-let zzScratch = new Float64Array(BLOCK);
-let zz32Scratch = new Int32Array(BLOCK);
+/** One block's zig-zag mapped differences (int32 in the usual case, else exact doubles). */
+const zz32Scratch = new Int32Array(BLOCK);
+const zzScratch = new Float64Array(BLOCK);
 const firstScratch = new Float64Array(1);
 const firstBytes = new Uint8Array(firstScratch.buffer);
 
@@ -145,7 +146,6 @@ function packDec(run: PackedRun, x: Float64Array, mant: Float64Array, e: number,
   firstScratch[0] = mant[0];
   out.set(firstBytes, start);
   let p = start + 8;
-  if (zz32Scratch.length < BLOCK) zz32Scratch = new Int32Array(BLOCK);
   const z32 = zz32Scratch;
   // Usual case, |differences| < 2^30: int32 arithmetic, zig-zag without branches, one block at a
   // time (differences, width and bytes in one pass over a block held in a small scratch).
@@ -198,7 +198,6 @@ function packDec(run: PackedRun, x: Float64Array, mant: Float64Array, e: number,
     }
   }
   // Blocks from the first difference beyond 2^30 on: exact double arithmetic (< 2^53).
-  if (b0 < nd && zzScratch.length < BLOCK) zzScratch = new Float64Array(BLOCK);
   const zz = zzScratch;
   for (; b0 < nd; b0 += BLOCK) {
     const b1 = Math.min(nd, b0 + BLOCK);
