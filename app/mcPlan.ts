@@ -26,7 +26,7 @@ import { freeStream } from './air';
 import { applyCorrections, wallCorrections } from './corrections';
 import { gammaFromCl } from './crosscheck';
 import { applyStencil, linearStencil, trapezoid } from './quadrature';
-import { compareUpper, contourIntegrals } from './surface';
+import { compareUpper, contourIntegrals, type ContourRule } from './surface';
 import type { Coefficients, CorrectionMethod, RunInfo, Setup, Surface } from './types';
 import { jonesIntegral, jonesTerm } from './wake';
 import { angleFluxIntegral, angleFluxTerm, momentumCl, wallGrid } from './walls';
@@ -51,6 +51,8 @@ export interface PlanNominal {
   mainRow: string;
   /** Capture fractions of the nominal wall result (depend on the geometry only), or null. */
   walls: { F: number; FMom?: number } | null;
+  /** Contour rule of the surface integration (Settings.contourRule; default 'linear'). */
+  rule?: ContourRule;
 }
 
 /** The outputs of one draw. */
@@ -76,6 +78,7 @@ export interface McPlan {
   width: number;
   areaC2: number;
   method: CorrectionMethod;
+  rule: ContourRule;
   baro: number;
   T: number;
   rh: number;
@@ -239,6 +242,7 @@ export function buildMcPlan(
     width: setup.facility.sectionWidth,
     areaC2: L.areaC2,
     method: correction,
+    rule: nominal.rule ?? 'linear',
     baro: info.baro,
     T: info.temperatureC + 273.15,
     rh: info.humidity,
@@ -348,7 +352,7 @@ export function evalMcPlan(
     oy[k] = slotY[s];
     ocp[k] = cp[s];
   }
-  const main = contourIntegrals(ox, oy, ocp, n, nU, alphaDeg);
+  const main = contourIntegrals(ox, oy, ocp, n, nU, alphaDeg, P.rule);
 
   // Wake.
   let cdU = NaN;

@@ -13,7 +13,8 @@ import {
 } from './types';
 import { freeStream } from './air';
 import { averageRun, applyZeros, unsteadiness } from './samples';
-import { detectBadTaps, reduceSurface, type BadTapReason } from './surface';
+import { detectBadTaps, reduceSurface, type BadTap } from './surface';
+import { referenceCheck, type ReferenceFinding } from './tapCheck';
 import { inviscidCp } from './panel';
 import { spanLoading, completeRow } from './spanwise';
 import { jonesDrag, interpolateStatic } from './wake';
@@ -189,7 +190,7 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     const rt = row === L.mainRow ? own : completeRow(own, mainTaps);
     // A row needs both surfaces to be integrated; short rows that cover one side only are skipped.
     if (!rt.some((t) => t.surface === 'upper') || !rt.some((t) => t.surface === 'lower')) continue;
-    const loads = reduceSurface(rt, inp.alphaDeg, inp.bad);
+    const loads = reduceSurface(rt, inp.alphaDeg, inp.bad, settings.contourRule);
     const z = setup.taps.find((t) => t.row === row)?.z ?? 0;
     rows.push({ ...loads, row, z });
   }
@@ -284,7 +285,7 @@ function fmt(x: number, d = 3): string {
  *  pass (when there are any) drops and bridges them. */
 function nominalPass(
   setup: Setup, L: Layout, run: ZeroedRun, settings: Settings,
-): { bad: { id: string; reason: BadTapReason }[]; nominal: CoreOutput } {
+): { bad: BadTap[]; nominal: CoreOutput; reference: ReferenceFinding[] } {
   const info = run.info;
   const values = (name: string): number => {
     const x = run.values[name];
@@ -297,11 +298,44 @@ function nominalPass(
   const zeroByTap: Record<string, number> | undefined = run.zeroRaw
     ? Object.fromEntries(L.taps.map(({ tap, ch }) => [tap.id, run.zeroRaw![ch.name]]).filter(([, z]) => Number.isFinite(z as number)))
     : undefined;
-  const bad = detectBadTaps(first.taps, settings, zeroByTap, settings.leakPa);
+  // Standard uncertainty of each tap's own Cp (instrument and standard error of its channel), and
+  // of a Cp from the references (p∞ channel, q through k_q and Δp_ref): JCGM 100:2008 eq. (10).
+  const q = first.fs.qu;
+  const chStd = (ch: Channel): number => {
+    const x = run.values[ch.name] ?? 0;
+    const ui = instrumentStd(ch.uncertainty, x, L.scale.get(ch.name) ?? 1);
+    const se = run.stats[ch.name]?.stdErr ?? 0;
+    return Math.hypot(ui, se);
+  };
+  const uCp: Record<string, number> = {};
+  for (const { tap, ch } of L.taps) uCp[tap.id] = chStd(ch) / q;
+  const uPinfCp = chStd(L.pStatic) / q;
+  const dp = run.values[L.dpRef.name];
+  const uqRel = Math.hypot(
+    Number.isFinite(dp) && dp !== 0 ? chStd(L.dpRef) / Math.abs(dp) : 0,
+    (setup.facility.qCalibrationUncertainty ?? 0) / setup.facility.qCalibration,
+  );
+  const bad = detectBadTaps(first.taps, settings, zeroByTap, settings.leakPa, {
+    uCp,
+    positionU: setup.model.tapPositionUncertainty,
+  });
   const nominal = bad.length
     ? runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad })
     : first;
-  return { bad, nominal };
+  // The references, row by row, from the taps kept (app/tapCheck.ts referenceCheck).
+  const badIds = new Set(bad.map((b) => b.id));
+  const reference: ReferenceFinding[] = [];
+  const rowsSeen = [...new Set(nominal.taps.map((t) => t.row))];
+  for (const row of rowsSeen) {
+    const kept = nominal.taps.filter((t) => t.row === row && !badIds.has(t.id));
+    const f = referenceCheck(
+      row, kept,
+      (id, cp) => Math.sqrt(Math.max(settings.tapCheckMinU, uCp[id] ?? 0) ** 2 + uPinfCp ** 2 + (cp * uqRel) ** 2),
+      first.fs.M, q, settings.stagnationK,
+    );
+    if (f) reference.push(f);
+  }
+  return { bad, nominal, reference };
 }
 
 /** How reduceRun evaluates the Monte Carlo draws: 'plan' (default) by the per-run plan of
@@ -315,7 +349,7 @@ export interface ReduceOptions {
 export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, options: ReduceOptions = {}): RunResult {
   const L = layoutOf(setup);
   const info = run.info;
-  const { bad, nominal } = nominalPass(setup, L, run, settings);
+  const { bad, nominal, reference } = nominalPass(setup, L, run, settings);
 
   // Flags.
   const flags: Flag[] = [];
@@ -362,9 +396,10 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
     flags.push({
       code: 'bad-tap',
       severity: 'warn',
-      reason: `Bad tap${others.length > 1 ? 's' : ''} dropped and bridged: ${others.map((b) => `${b.id} (${badWords(b.reason)})`).join(', ')}.`,
+      reason: `Bad tap${others.length > 1 ? 's' : ''} dropped and bridged (a suggestion to confirm or keep): ${others.map((b) => `${b.id} (${badWords(b)})`).join(', ')}.`,
     });
   }
+  if (reference.length) flags.push(referenceFlag(reference));
   if (!run.zeroRuns.length) {
     flags.push({ code: 'no-zero', severity: 'warn', reason: 'No wind-off zero was found for this run; channels are not zero-corrected.' });
   } else {
@@ -406,6 +441,12 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
     air: nominal.fs.air,
     M,
     taps: nominal.taps,
+    dropped: bad.map((b) => ({
+      id: b.id,
+      reason: b.reason,
+      by: b.reason === 'marked' ? ('hand' as const) : ('auto' as const),
+      ...(b.verdict ?? {}),
+    })),
     rows: nominal.rows,
     surface: nominal.main,
     wake: nominal.wake,
@@ -429,14 +470,29 @@ function peakY(w: WakeResult): number {
   return best ? best.y : NaN;
 }
 
-function badWords(reason: string): string {
-  switch (reason) {
+function badWords(b: BadTap): string {
+  switch (b.reason) {
     case 'marked': return 'marked bad by the user';
-    case 'stagnation': return 'Cp above stagnation';
-    case 'outlier': return 'outlier against its neighbours';
+    case 'outlier':
+      return b.verdict
+        ? `Cp ${fmt(b.verdict.residual + b.verdict.predicted, 3)} against ${fmt(b.verdict.predicted, 3)} predicted from its neighbours: off by ${fmt(b.verdict.residual, 3)}, ${fmt(b.verdict.score, 1)} × the combined uncertainty ${fmt(b.verdict.u, 3)}`
+        : 'outlier against its neighbours';
     case 'leak': return 'leak at wind-off';
-    default: return reason;
+    default: return b.reason;
   }
+}
+
+/** The reference flag (app/tapCheck.ts referenceCheck): the same numbers as the tap table shows,
+ *  Cp on the uncorrected basis (q_u) of every tap Cp. */
+function referenceFlag(found: readonly ReferenceFinding[]): Flag {
+  const parts = found.map((f) =>
+    `Cp ${fmt(f.cp, 3)} at ${f.id} (row ${f.row}) is above the stagnation value ${fmt(f.cpStag, 4)} at M ${fmt(f.M, 3)} by ${fmt(f.cp - f.cpStag, 3)}, more than ${fmt((f.cp - f.cpStag) / f.u, 1)}× its uncertainty ${fmt(f.u, 3)}`);
+  const w = found.reduce((a, b) => (b.cp > a.cp ? b : a));
+  return {
+    code: 'reference',
+    severity: 'warn',
+    reason: `${parts.join('; ')}: q about ${fmt(w.qLow * 100, 1)} % low, or the static reference about ${fmt(w.staticLowPa, 0)} Pa low. No tap can read above stagnation, so this points at the references, not the tap${found.length > 1 ? 's' : ''}; kept.`,
+  };
 }
 
 type UKey = 'cl' | 'cd' | 'cdp' | 'cmc4' | 'clMom' | 'gammaPressure' | 'gammaMomentum';
@@ -503,6 +559,7 @@ function mcModel(
     ? buildMcPlan(setup, planLayout(L), run.info, settings.correction, bad, {
         mainRow: nominal.main.row,
         walls: nominal.walls,
+        rule: settings.contourRule,
       }, index)
     : null;
   const o: McValues = { cl: NaN, cd: NaN, cdp: NaN, cmc4: NaN, clMom: NaN, gammaPressure: NaN, gammaMomentum: NaN };

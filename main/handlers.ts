@@ -184,7 +184,7 @@ export function runsAffectedBy(rows: RunRow[], changed: Iterable<number>): numbe
 const num = z.union([z.number(), z.nan()]);
 const flagCodes = [
   'lift-mismatch', 'wake-not-captured', 'unsteady', 'bad-tap', 'leaking-tap', 'zero-drift',
-  'no-zero', 'compressible', 'span-spread',
+  'no-zero', 'compressible', 'span-spread', 'reference',
 ] as const satisfies readonly FlagCode[];
 const coefficientsSchema = z.looseObject({ cl: num, cd: num, cdp: num, cmc4: num, alphaDeg: num, q: num, V: num, Re: num });
 const surfaceSchema = z.looseObject({ cn: num, ca: num, cl: num, cdp: num, cmLE: num, cmc4: num });
