@@ -429,7 +429,8 @@ function peakY(w: WakeResult): number {
   return best ? best.y : NaN;
 }
 
-function badWords(reason: string): string {
+/** Words of a bad-tap reason (TapCp.badReason), as flags and the day sheet print them. */
+export function badWords(reason: string): string {
   switch (reason) {
     case 'marked': return 'marked bad by the user';
     case 'stagnation': return 'Cp above stagnation';

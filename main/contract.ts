@@ -49,9 +49,10 @@ export const channels = {
   'settings.update': z.object({ sessionId, patch: settingsPatchSchema, note: z.string().max(4000).optional() }).strict(),
   'session.summary': z.object({ sessionId }).strict(),
   'audit.list': z.object({ sessionId }).strict(),
-  'daysheet.html': z.object({ sessionId, paper }).strict(),
+  /** The day sheet; cpRuns: runs whose Cp plots the engineer picked (flagged runs always get one). */
+  'daysheet.html': z.object({ sessionId, paper, cpRuns: z.array(runNo).max(1000).optional() }).strict(),
   /** Electron: printToPDF and save (dialog when no path). Browser mode: unsupported (use print). */
-  'daysheet.pdf': z.object({ sessionId, paper, path: z.string().max(4096).optional() }).strict(),
+  'daysheet.pdf': z.object({ sessionId, paper, cpRuns: z.array(runNo).max(1000).optional(), path: z.string().max(4096).optional() }).strict(),
   'export.results': z.object({ sessionId, format: z.enum(['csv', 'json']) }).strict(),
   'watch.start': z.object({ folder: z.string().min(1).max(4096) }).strict(),
   'watch.stop': z.object({}).strict(),

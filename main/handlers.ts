@@ -22,7 +22,8 @@ import type { Store, RunRow, ImportProgress, ImportReport } from './store';
 import { folderSource, importSession, importSessionFolder, type SessionSource } from './import';
 import { reduceStoredSessionAsync, sessionSummary } from './reduceService';
 import { zeroRunsFor } from '../app/samples';
-import { daySheetHtml, FLAG_WORDS } from './daysheet';
+import { FLAG_WORDS } from './daysheet';
+import { storedDaySheet } from './daysheetData';
 import { exportResultsCsv, exportResultsJson } from './export';
 
 export type Handlers = { [C in Channel]: (payload: Payload<C>) => Promise<Results[C]> };
@@ -575,13 +576,13 @@ export function createHandlers(ctx: HandlerContext): Handlers {
       store.getSession(sessionId);
       return store.auditTrail(sessionId);
     },
-    'daysheet.html': async ({ sessionId, paper }) => ({ html: sheetHtml(store, sessionId, paper) }),
-    'daysheet.pdf': async ({ sessionId, paper, path: target }) => {
+    'daysheet.html': async ({ sessionId, paper, cpRuns }) => ({ html: sheetHtml(store, sessionId, paper, cpRuns) }),
+    'daysheet.pdf': async ({ sessionId, paper, cpRuns, path: target }) => {
       if (!ctx.printPdf) return { path: null, supported: false };
       if (target !== undefined && (!path.isAbsolute(target) || !/\.pdf$/i.test(target))) {
         fail('validation', `Invalid payload for "daysheet.pdf": path: must be an absolute path ending in .pdf`);
       }
-      const html = sheetHtml(store, sessionId, paper);
+      const html = sheetHtml(store, sessionId, paper, cpRuns);
       const out = await ctx.printPdf(html, paper, target, `${sessionTitleSlug(sessionId)}-day-sheet.pdf`);
       return { path: out, supported: true };
     },
@@ -629,17 +630,6 @@ export function createHandlers(ctx: HandlerContext): Handlers {
   return handlers;
 }
 
-function sheetHtml(store: Store, sessionId: number, paper: Paper): string {
-  const runs = store.listRuns(sessionId);
-  return daySheetHtml({
-    session: store.getSession(sessionId),
-    setup: store.getSetup(sessionId),
-    runs,
-    summary: sessionSummary(store, sessionId),
-    paper,
-    generatedAt: new Date().toISOString(),
-    results: store.latestResults(sessionId),
-    settings: store.getSettings(sessionId),
-    appVersion: pkg.version,
-  });
+function sheetHtml(store: Store, sessionId: number, paper: Paper, cpRuns?: number[]): string {
+  return storedDaySheet(store, sessionId, { paper, appVersion: pkg.version, ...(cpRuns ? { cpRuns } : {}) });
 }

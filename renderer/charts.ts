@@ -203,20 +203,8 @@ export function wallChartConfig(result: RunResult): PlotConfig | null {
 // ---------------------------------------------------------------------------------------------
 // Polars
 
-export type Sweep = 'up' | 'down';
-
-/** Sweep direction of each point (time order): the sign of the α step from the previous point;
- *  a repeat at the same α keeps the previous direction; the first point takes the next step's. */
-export function sweepDirections(pts: readonly PolarPoint[]): Sweep[] {
-  const dirs: (Sweep | null)[] = pts.map((p, i) => {
-    if (i === 0) return null;
-    const d = p.alphaDeg - pts[i - 1].alphaDeg;
-    return Math.abs(d) < 1e-9 ? null : d > 0 ? 'up' : 'down';
-  });
-  const firstKnown = dirs.find((d) => d !== null) ?? 'up';
-  let prev: Sweep = firstKnown;
-  return dirs.map((d) => (prev = d ?? prev));
-}
+export { sweepDirections, type Sweep } from '../app/sweeps';
+import { sweepDirections, type Sweep } from '../app/sweeps';
 
 /** Series of one sweep direction in time order, broken (a NaN gap) where the other sweep runs. */
 function sweepSeries(pts: readonly PolarPoint[], dirs: Sweep[], want: Sweep, xy: (p: PolarPoint) => XY | null): Pts {
