@@ -7,9 +7,9 @@
 // Times are printed in the local time of the machine that makes the sheet (zone named), to the
 // second; no local file paths are printed.
 import type { SessionRow, RunRow } from './store';
-import type { Flag, FlagCode, Interval, PolarPoint, RunResult, SessionSummary, Settings, Setup } from '../app/types';
+import type { Flag, Interval, PolarPoint, RunResult, SessionSummary, Settings, Setup } from '../app/types';
 import { CORE_VERSION, DEFAULT_SETTINGS } from '../app/types';
-import { badWords } from '../app/reduce';
+import { badTapWords, flagLabel, flagShort, severityWord, SEVERITY } from '../app/flags';
 import { sweepDirections } from '../app/sweeps';
 import { escapeHtml, OKABE_ITO, offScalePoints, svgPlot, type PlotPoint, type PlotSeries, type PlotSpec } from './svgplot';
 
@@ -56,37 +56,6 @@ export interface DaySheetArgs {
   tapNotes?: TapNote[];
   /** Session-level findings (issue 9); none yet = the section says so. */
   findings?: SessionFinding[];
-}
-
-/** Words for each flag code, as printed on the sheet and in tables. */
-export const FLAG_WORDS: Record<FlagCode, string> = {
-  'lift-mismatch': 'lift methods disagree',
-  'wake-not-captured': 'wake not captured by the rake',
-  unsteady: 'unsteady dynamic pressure',
-  'bad-tap': 'bad surface tap(s) bridged',
-  'leaking-tap': 'leaking tap seen at wind-off',
-  'zero-drift': 'wind-off zero drifted',
-  'no-zero': 'no wind-off zero available',
-  compressible: 'Mach number above the incompressible limit',
-  'span-spread': 'spanwise rows disagree (not two-dimensional)',
-};
-
-/** Short words for the run table's status column (the flag list below it has the full words). */
-export const FLAG_SHORT: Record<FlagCode, string> = {
-  'lift-mismatch': 'lift methods disagree',
-  'wake-not-captured': 'wake not captured',
-  unsteady: 'unsteady q',
-  'bad-tap': 'bad tap',
-  'leaking-tap': 'leaking tap',
-  'zero-drift': 'zero drift',
-  'no-zero': 'no zero',
-  compressible: 'Mach limit',
-  'span-spread': 'span spread',
-};
-
-/** Severity in words: 'reject' runs must not be used without review; 'warn' runs need a look. */
-export function severityWord(s: Flag['severity']): string {
-  return s === 'reject' ? 'REJECT' : 'CHECK';
 }
 
 const MINUS = '\u2212';
@@ -257,9 +226,9 @@ table.runs th { font-size: 6.6pt; line-height: 1.15; overflow-wrap: normal; }
 table.runs td.n { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 table.runs span.u { display: block; font-size: 6pt; color: #333; }
 table.runs tr.zero td { color: #444; font-style: italic; }
-table.runs tr.sev-reject td:first-child { border-left: 3pt solid ${OKABE_ITO.vermillion}; }
-table.runs tr.sev-warn td:first-child { border-left: 3pt dashed ${OKABE_ITO.orange}; }
-table.runs tr.sev-reject { background: #fbe7db; } table.runs tr.sev-warn { background: #fdf3dc; }
+table.runs tr.sev-reject td:first-child { border-left: 3pt solid ${SEVERITY.reject.colour}; }
+table.runs tr.sev-warn td:first-child { border-left: 3pt dashed ${SEVERITY.warn.colour}; }
+table.runs tr.sev-reject { background: ${SEVERITY.reject.tint}; } table.runs tr.sev-warn { background: ${SEVERITY.warn.tint}; }
 .status { font-size: 6.6pt; }
 table.stats, table.settings { width: auto; min-width: 60%; }
 table.stats th, table.settings th { text-align: left; background: none; font-size: 8pt; }
@@ -292,7 +261,7 @@ function statusCell(row: RunRow, stale: boolean): string {
   if (row.kind === 'zero') parts.push('wind-off zero');
   else if (!row.result) parts.push('not reduced');
   else if (!row.result.flags.length) parts.push('no flags');
-  for (const f of row.result?.flags ?? []) parts.push(`<b>${severityWord(f.severity)}</b> ${escapeHtml(FLAG_SHORT[f.code] ?? f.code)}`);
+  for (const f of row.result?.flags ?? []) parts.push(`<b>${severityWord(f.severity)}:</b> ${escapeHtml(flagShort(f.code))}`);
   if (row.review) parts.push(`<b>${escapeHtml(row.review.verdict)}</b> by ${escapeHtml(personName(row.review.actor))}`);
   if (stale) parts.push('other settings');
   return parts.join('; ');
@@ -317,7 +286,7 @@ function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Set
     const sev = rowSeverity(row);
     const cls = [row.kind === 'zero' ? 'zero' : '', sev ? `sev-${sev}` : ''].filter(Boolean).join(' ');
     const u = byRun.get(row.run)?.uncertainty;
-    const mark = sev === 'reject' ? '✕ ' : sev === 'warn' ? '△ ' : '';
+    const mark = sev ? `${SEVERITY[sev].glyph} ` : '';
     const cells = r
       ? [
           fmt(row.alphaDeg, 2), fmt(r.alphaCorrDeg, 2), fmt(r.q, 1), fmt(r.V, 2), fmt(r.Re / 1e6, 3),
@@ -331,7 +300,7 @@ function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Set
       .join('')}<td class="status">${statusCell(row, stale.has(row.run))}</td></tr>`;
   });
   return `<table class="runs">${head}<tbody>${body.join('\n')}</tbody></table>
-<p class="sub">✕ and a solid left bar: at least one REJECT flag; △ and a dashed bar: CHECK flags only. Times are local (${escapeHtml(zoneOffset(new Date(args.generatedAt), tz))}).
+<p class="sub">${SEVERITY.reject.glyph} and a solid left bar: at least one ${SEVERITY.reject.word} flag (${SEVERITY.reject.meaning.toLowerCase()}); ${SEVERITY.warn.glyph} and a dashed bar: ${SEVERITY.warn.word} flags only (${SEVERITY.warn.meaning.toLowerCase()}). Times are local (${escapeHtml(zoneOffset(new Date(args.generatedAt), tz))}).
 α corr, q, V, Re, cl, cd and cm are wall-corrected (${escapeHtml(CORRECTION_WORDS[settings.correction] ?? settings.correction)});
 cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl.${args.results?.length ? ' Small figures under a value: half the width of its 95 % Monte Carlo coverage interval (JCGM 101:2008), same basis as the value.' : ''}</p>`;
 }
@@ -377,7 +346,7 @@ export function dragAxis(pts: readonly PolarPoint[], linear: [number, number] | 
 
 function polars(args: DaySheetArgs): string {
   const p = args.summary.polar;
-  // A ring marks runs with CHECK flags of their own; a flag raised alike on many runs (one leaking
+  // A ring marks runs with check flags of their own; a flag raised alike on many runs (one leaking
   // tap all day) would ring every point and hide the ones that matter.
   const common = new Set(commonFlags(args.runs).map((g) => flagKey(g.flag)));
   const sevOf = new Map(args.runs.map((r) => [r.run, rowSeverity(r) === 'reject' ? 'reject' as const
@@ -390,7 +359,7 @@ function polars(args: DaySheetArgs): string {
   };
   const pt = (q: PolarPoint, x: number, y: number, more: Partial<PlotPoint> = {}): PlotPoint =>
     ({ x, y, flag: flagOf(sevOf.get(q.run)), label: `r${q.run}`, ...more });
-  const flagLabels = { reject: 'REJECT flag (×, labelled r + run number)', check: 'CHECK flag of its own (ring)' };
+  const flagLabels = { reject: `${severityWord('reject')} flag (×, labelled r + run number)`, check: `${severityWord('warn')} flag of its own (ring)` };
   const base = { width: PLOT_W, height: PLOT_H, unit: 'pt' as const, flagLabels };
   // Momentum first (larger squares), pressure circles on top: both stay visible where they agree.
   const lift: PlotSpec = {
@@ -436,7 +405,7 @@ ${fig(cm)}
 ${fig(cdA, offNote(cdA, (q) => `cd ${span(q.map((o) => o.y), 4)}`))}
 </div>
 <p class="sub">Corrected values. Filled markers and solid lines: up-sweep (α rising); open markers and dashed lines: down-sweep (α falling).
-Bars: 95 % coverage intervals. Lines join the runs of each sweep in time order and break at runs with a REJECT flag.${notPlotted.length ? ` Not plotted (rejected by the reviewer): ${runsWord(notPlotted)}.` : ''}</p>`;
+Bars: 95 % coverage intervals. Lines join the runs of each sweep in time order and break at runs with a ${severityWord('reject')} flag.${notPlotted.length ? ` Not plotted (rejected by the reviewer): ${runsWord(notPlotted)}.` : ''}</p>`;
 }
 
 /** Cp(x/c) of one run's main tap row, for the Cp pages. */
@@ -462,7 +431,7 @@ export function cpPlotSpec(r: RunResult, title: string, opts: Partial<PlotSpec> 
   };
 }
 
-/** Runs that get a Cp plot: every run with a REJECT flag, a flag of its own (not one raised
+/** Runs that get a Cp plot: every run with a hold flag, a flag of its own (not one raised
  *  identically on several runs) or a reviewer's rejection, and the runs the engineer picked. */
 export function cpPlotRuns(args: DaySheetArgs, common: Set<string>): { runs: number[]; left: number[] } {
   const picked = new Set(args.cpRuns ?? []);
@@ -485,7 +454,7 @@ function cpPages(args: DaySheetArgs, common: Set<string>): string {
   const figs = runs.map((run) => {
     const r = byRun.get(run)!;
     const row = rows.get(run)!;
-    const words = [...(row.result?.flags ?? []).map((f) => `${severityWord(f.severity)} ${FLAG_SHORT[f.code] ?? f.code}`),
+    const words = [...(row.result?.flags ?? []).map((f) => `${severityWord(f.severity)}: ${flagShort(f.code)}`),
       ...(row.review ? [`${row.review.verdict} by the reviewer`] : [])];
     const title = `Run ${run}: α ${fmt(r.corrected.alphaDeg, 2)}° corr., cl ${fmt(r.corrected.cl, 3)}`;
     const spec = cpPlotSpec(r, title, { width: PLOT_W, height: CP_H, unit: 'pt' });
@@ -500,7 +469,7 @@ function cpPages(args: DaySheetArgs, common: Set<string>): string {
 
 function statistics(args: DaySheetArgs): string {
   const s = args.summary.stats;
-  if (!s) return '<p>Too few usable runs (fewer than three without a REJECT flag) for session statistics.</p>';
+  if (!s) return `<p>Too few usable runs (fewer than three without a ${severityWord('reject')} flag) for session statistics.</p>`;
   const rows: [string, string][] = [
     ['Lift-curve slope dcl/dα', `${fmt(s.liftSlopePerDeg, 4)} per degree (${fmt(s.liftSlopePerDeg * 180 / Math.PI, 3)} per radian), fitted over α ${range(s.linearRange[0], s.linearRange[1], 2, '°')}`],
     ['Zero-lift angle α_L0', `${fmt(s.alphaL0Deg, 2)}°`],
@@ -511,7 +480,7 @@ function statistics(args: DaySheetArgs): string {
     ['Repeat-run spread', s.repeatSpread !== null ? `largest cl range at a repeated α: ${fmt(s.repeatSpread, 4)}` : 'no repeated runs'],
   ];
   return `<table class="stats"><tbody>${rows.map(([k, v]) => `<tr><th scope="row">${escapeHtml(k)}</th><td>${escapeHtml(v)}</td></tr>`).join('')}</tbody></table>
-<p class="sub">Statistics use the corrected pressure-integration cl and the wake cd (pressure cd where there is no wake) of runs without a REJECT flag and not rejected by the reviewer.</p>`;
+<p class="sub">Statistics use the corrected pressure-integration cl and the wake cd (pressure cd where there is no wake) of runs without a ${severityWord('reject')} flag and not rejected by the reviewer.</p>`;
 }
 
 function findingsSection(args: DaySheetArgs): string {
@@ -522,7 +491,7 @@ function findingsSection(args: DaySheetArgs): string {
 
 /** "words: reason", without repeating the words when the reason already starts with them. */
 function reasonWords(f: Flag): string {
-  const words = FLAG_WORDS[f.code] ?? f.code;
+  const words = flagLabel(f.code);
   return f.reason.toLowerCase().startsWith(words.toLowerCase())
     ? escapeHtml(f.reason)
     : `${escapeHtml(words)}: ${escapeHtml(f.reason)}`;
@@ -615,7 +584,7 @@ function badTaps(args: DaySheetArgs, settings: Settings, tz: string): string {
     }
   }
   for (const [k, g] of [...auto].sort((a, b) => a[0].localeCompare(b[0]))) {
-    items.push(`<li><b>${escapeHtml(k.split('\u0000')[0])}</b>, dropped by the reduction: ${escapeHtml(badWords(g.reason))} (${escapeHtml(runsWord(g.runs))})</li>`);
+    items.push(`<li><b>${escapeHtml(k.split('\u0000')[0])}</b>, dropped by the reduction: ${escapeHtml(badTapWords(g.reason))} (${escapeHtml(runsWord(g.runs))})</li>`);
   }
   if (!items.length) return '<p>No tap was marked or found bad.</p>';
   return `<ul class="taps">${items.join('\n')}</ul><p class="sub">Bad taps are bridged in the surface integration (left out and the contour joined across them).</p>`;

@@ -74,8 +74,8 @@ export interface PlotSpec {
   font?: { title?: number; tick?: number; axis?: number; legend?: number };
 }
 
-const REJECT_WORDS = 'run with a REJECT flag (labelled with its run number)';
-const CHECK_WORDS = 'run with CHECK flags only';
+const REJECT_WORDS = 'run with a hold flag (labelled with its run number)';
+const CHECK_WORDS = 'run with check flags only';
 
 /** Escape text for HTML/SVG element content and attribute values. */
 export function escapeHtml(s: unknown): string {

@@ -50,7 +50,7 @@ describe('day sheet of a stored session', () => {
     expect(text).toContain('Reviewer T. Lindqvist rejected this run: tufts show a stall cell');
     expect(text).not.toContain('no flags');
     const row = doc.querySelector(`table.runs tr[data-run="${run}"]`)!.textContent!;
-    expect(row).toContain('REJECT lift methods disagree');
+    expect(row).toContain('hold: lift mismatch');
     expect(row).toContain('rejected by T. Lindqvist');
     // reduced with other settings than those in force: said once, as "run N"
     const stale = doc.querySelector('ul.stale')!.textContent!;
@@ -110,7 +110,7 @@ describe('day sheet of a stored session', () => {
     const without = titles(sheet().doc as unknown as Document);
     const shown = (list: string[], run: number) => list.some((t) => t.startsWith(`Run ${run}:`));
     // the demo's leaking tap flags every run alike (a common flag): those runs get no Cp plot of
-    // their own; the lift-mismatch run (a REJECT flag) and the rejected run do
+    // their own; the lift-mismatch run (a hold flag) and the rejected run do
     const held = store.listRuns(1).filter((r) => r.result?.flags.some((f) => f.severity === 'reject')).map((r) => r.run);
     expect(held.length).toBeGreaterThan(0);
     for (const r of held) expect(shown(without, r)).toBe(true);
