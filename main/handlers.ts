@@ -39,8 +39,11 @@ export interface HandlerContext {
   pickFolder?: (purpose?: 'import' | 'watch') => Promise<string | null>;
   /** Print HTML to a PDF file (Electron only); asks for a path when none is given; null = cancelled. */
   printPdf?: (html: string, paper: Paper, path?: string, suggestedName?: string) => Promise<string | null>;
-  /** Audit actor; default: the OS user name in Electron, 'browser' in browser mode. */
+  /** Audit actor; default: the OS user name in Electron, 'browser' in browser mode until the
+   *  page tells the reviewer's name ('reviewer.set'). */
   actor?: string;
+  /** Save bytes through a save dialog (Electron only); null = cancelled. */
+  saveFile?: (suggestedName: string, kind: 'svg' | 'png', bytes: Buffer) => Promise<string | null>;
   /** Called after anything that changes the session list or the watch state (menu refresh). */
   onChange?: (what: 'sessions' | 'watch') => void;
   /** Least time between two progress events of one task and phase, ms (default 100). */
@@ -399,7 +402,8 @@ export async function disposeHandlers(handlers: Handlers): Promise<void> {
 
 export function createHandlers(ctx: HandlerContext): Handlers {
   const { store, emit } = ctx;
-  const actor = ctx.actor ?? (ctx.mode === 'electron' ? osActor() : 'browser');
+  let actor = ctx.actor ?? (ctx.mode === 'electron' ? osActor() : 'browser');
+  let named = ctx.actor !== undefined || ctx.mode === 'electron';
   const interval = ctx.progressIntervalMs ?? 100;
   const changed = (what: 'sessions' | 'watch') => ctx.onChange?.(what);
   let live: LiveState | null = null;
@@ -488,7 +492,17 @@ export function createHandlers(ctx: HandlerContext): Handlers {
   const handlers: Handlers = {
     'app.info': async () => ({
       version: pkg.version, coreVersion: CORE_VERSION, mode: ctx.mode, demoSessionId: ctx.demoSessionId, dbFile: store.file,
+      reviewer: named ? actor : null,
     }),
+    'reviewer.set': async ({ name }) => {
+      actor = name.trim();
+      named = true;
+      return { reviewer: actor };
+    },
+    'file.save': async ({ suggestedName, kind, base64 }) => {
+      if (!ctx.saveFile) return { path: null, supported: false };
+      return { path: await ctx.saveFile(suggestedName, kind, Buffer.from(base64, 'base64')), supported: true };
+    },
     'sessions.list': async () => store.listSessions(),
     'sessions.get': async ({ sessionId }) => ({
       session: store.getSession(sessionId), setup: store.getSetup(sessionId), settings: store.getSettings(sessionId),

@@ -14,7 +14,7 @@ export interface PlotConfig { data: ChartData<'scatter', Pts>; options: ChartOpt
 
 const FONT = { family: 'system-ui, "Segoe UI", Roboto, sans-serif', size: 12 };
 
-function base(xTitle: string, yTitle: string, opts: { reverseY?: boolean; xMin?: number; xMax?: number } = {}): ChartOptions<'scatter'> {
+export function base(xTitle: string, yTitle: string, opts: { reverseY?: boolean; xMin?: number; xMax?: number } = {}): ChartOptions<'scatter'> {
   return {
     animation: false,
     responsive: true,
@@ -44,7 +44,7 @@ function base(xTitle: string, yTitle: string, opts: { reverseY?: boolean; xMin?:
   };
 }
 
-function points(
+export function points(
   label: string, data: Pts, color: string, style: PointStyle, extra: Record<string, unknown> = {},
 ): ChartData<'scatter', Pts>['datasets'][number] {
   return {
