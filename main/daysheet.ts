@@ -421,7 +421,7 @@ export function cpPlotSpec(r: RunResult, title: string, opts: Partial<PlotSpec> 
     title, xLabel: 'x/c', yLabel: 'Cp (negative up)', yReverse: true, xRange: [0, 1],
     yRange: [Math.min(lo, -0.5) - 0.05 * (hi - lo), Math.max(hi, 1) + 0.05 * (hi - lo)],
     series: [
-      { name: 'inviscid panel solution, upper', colour: OKABE_ITO.green, marker: 'none', filled: false, line: 'solid', fit: false, points: inv('upper') },
+      { name: 'inviscid, upper', colour: OKABE_ITO.green, marker: 'none', filled: false, line: 'solid', fit: false, points: inv('upper') },
       { name: 'inviscid, lower', colour: OKABE_ITO.green, marker: 'none', filled: false, line: 'dashed', fit: false, points: inv('lower') },
       { name: 'upper surface', colour: OKABE_ITO.blue, marker: 'circle', filled: true, line: 'none', points: of('upper') },
       { name: 'lower surface', colour: OKABE_ITO.vermillion, marker: 'triangle', filled: false, line: 'none', points: of('lower') },
@@ -654,6 +654,12 @@ ${polars(args)}
 <section class="keep"><h2>Session statistics</h2>
 ${statistics(args)}
 </section>
+<section class="keep"><h2>Review and sign-off</h2>
+<p>By signing, the reviewer confirms that the runs on this sheet, their flags and the reviewer decisions were checked.</p>
+<div class="signoff">
+${['Test engineer', 'Reviewer'].map((role) => `<div><b>${role}</b><span class="line">Name</span><span class="line">Signature</span><span class="line">Date</span></div>`).join('\n')}
+</div>
+</section>
 <section><h2>Session-level findings</h2>
 ${findingsSection(args)}
 </section>
@@ -666,17 +672,11 @@ ${badTaps(args, settings, tz)}
 <section><h2>Settings in force</h2>
 ${settingsSection(args, settings)}
 </section>
-<section><h2>Runs</h2>
-${runTable(args, settings, tz, stale)}
-</section>
 <section><h2>Cp distributions</h2>
 ${cpPages(args, common)}
 </section>
-<section class="keep"><h2>Review and sign-off</h2>
-<p>By signing, the reviewer confirms that the runs above, their flags and the reviewer decisions were checked.</p>
-<div class="signoff">
-${['Test engineer', 'Reviewer'].map((role) => `<div><b>${role}</b><span class="line">Name</span><span class="line">Signature</span><span class="line">Date</span></div>`).join('\n')}
-</div>
+<section><h2>Runs</h2>
+${runTable(args, settings, tz, stale)}
 </section>
 <footer>Rakeline${args.appVersion ? ` ${escapeHtml(args.appVersion)}` : ''}, reduction core ${escapeHtml(CORE_VERSION)}. ${escapeHtml(setup.facility.name)} · ${escapeHtml(setup.model.name)} · ${escapeHtml(setup.session.date)}</footer>
 </body>

@@ -213,10 +213,10 @@ export function svgPlot(spec: PlotSpec): string {
   ];
   const entries = legendTexts.length;
   // two legend columns only where every entry fits its column (text width estimated at 0.56 em a character)
-  const fitsTwo = legendTexts.every((t) => 22 + t.length * fs.legend * 0.56 <= (W - 10 - fs.axis - fs.tick * 3.4) / 2);
+  const fitsTwo = legendTexts.every((t) => 22 + t.length * fs.legend * 0.56 <= (W - 16) / 2);
   const cols = entries > 3 && fitsTwo ? 2 : 1;
   const rowH = fs.legend + 4;
-  const legendH = Math.ceil(entries / cols) * rowH + 6;
+  const legendH = Math.ceil(entries / cols) * rowH + 10;
   const plotW = W - m.l - m.r;
   const plotH = H - m.t - m.b - legendH;
   const ranges = plotRanges(spec);
@@ -322,12 +322,13 @@ export function svgPlot(spec: PlotSpec): string {
     out.push('</g>');
   }
   // legend, one or two columns under the plot
-  const colW = (W - m.l) / cols;
+  const legendX = cols === 2 ? 8 : m.l;
+  const colW = (W - legendX - 8) / cols;
   let k = 0;
   const place = () => {
     const col = k % cols, row = Math.floor(k / cols);
     k++;
-    return { x: m.l + col * colW, y: H - legendH + 6 + row * rowH + rowH / 2 };
+    return { x: legendX + col * colW, y: H - legendH + 6 + row * rowH + rowH / 2 };
   };
   out.push('<g class="legend">');
   for (const s of spec.series.filter((x) => !x.noLegend)) {
