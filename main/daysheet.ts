@@ -35,6 +35,7 @@ export const FLAG_WORDS: Record<FlagCode, string> = {
   'no-zero': 'no wind-off zero available',
   compressible: 'Mach number above the incompressible limit',
   'span-spread': 'spanwise rows disagree (not two-dimensional)',
+  'correction-disagree': 'chosen wall correction differs from the classical one',
 };
 
 /** Short words for the run table's status column (the flag list below it has the full words). */
@@ -48,6 +49,7 @@ export const FLAG_SHORT: Record<FlagCode, string> = {
   'no-zero': 'no zero',
   compressible: 'Mach limit',
   'span-spread': 'span spread',
+  'correction-disagree': 'corrections differ',
 };
 
 /** Severity in words: 'reject' runs must not be used without review; 'warn' runs need a look. */

@@ -184,7 +184,7 @@ export function runsAffectedBy(rows: RunRow[], changed: Iterable<number>): numbe
 const num = z.union([z.number(), z.nan()]);
 const flagCodes = [
   'lift-mismatch', 'wake-not-captured', 'unsteady', 'bad-tap', 'leaking-tap', 'zero-drift',
-  'no-zero', 'compressible', 'span-spread',
+  'no-zero', 'compressible', 'span-spread', 'correction-disagree',
 ] as const satisfies readonly FlagCode[];
 const coefficientsSchema = z.looseObject({ cl: num, cd: num, cdp: num, cmc4: num, alphaDeg: num, q: num, V: num, Re: num });
 const surfaceSchema = z.looseObject({ cn: num, ca: num, cl: num, cdp: num, cmLE: num, cmc4: num });
@@ -200,7 +200,7 @@ const resultSchema = z.looseObject({
   wake: z.looseObject({ cd: num, captured: z.boolean() }).nullable(),
   walls: z.looseObject({ clMom: num, gammaWall: num, clWall: num }).nullable(),
   circulation: z.looseObject({ pressure: num, momentum: num, wall: num }),
-  correction: z.looseObject({ method: z.enum(['barlow-rae-pope', 'allen-vincenti', 'none']), sigma: num, eps: num }),
+  correction: z.looseObject({ method: z.enum(['barlow-rae-pope', 'allen-vincenti', 'maskell', 'wall-signature', 'none']), sigma: num, eps: num }),
   uncorrected: coefficientsSchema,
   corrected: coefficientsSchema,
   clMomentum: num,

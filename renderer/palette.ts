@@ -38,6 +38,7 @@ export const FLAG_LABEL: Record<FlagCode, string> = {
   'no-zero': 'no wind-off zero',
   compressible: 'compressible',
   'span-spread': 'span spread',
+  'correction-disagree': 'corrections differ',
 };
 
 /** Badge glyph + word per severity (shape and text, not just colour). */
