@@ -174,9 +174,9 @@ export interface Settings {
   maskellTheta: number;
   /** Largest rms fit residual (in Cp) of the wall-signature fit that 'auto' still uses. */
   wallFitResidualCp: number;
-  /** Upper-surface separated extent (fraction of the chord, from the trailing edge) at and above
-   *  which a run counts as past stall for 'auto' (Maskell instead of classical without walls). */
-  separatedExtent: number;
+  /** A run counts as past stall for 'auto' (Maskell instead of classical where the walls cannot
+   *  say) when its rearmost upper-surface tap (aft of 0.85c) reads Cp at or below this. */
+  stallTeCp: number;
   /** Flag when the chosen and the classical corrections differ in ε by more than this… */
   correctionTolEps: number;
   /** …or in Δα by more than this many degrees. */
@@ -202,7 +202,7 @@ export const DEFAULT_SETTINGS: Settings = {
   correction: 'auto',
   maskellTheta: 0.96,
   wallFitResidualCp: 0.005,
-  separatedExtent: 0.5,
+  stallTeCp: -0.15,
   correctionTolEps: 0.005,
   correctionTolAlphaDeg: 0.25,
   badTaps: [],
@@ -397,8 +397,8 @@ export interface CorrectionSet {
     uEps: number; condition: number; taps: number;
     epsSb: number; epsWb: number; eps: number; dAlphaDeg: number; dCl: number; dCm: number;
   } | null;
-  /** Upper-surface separated extent (fraction of chord) and the drag Maskell used. */
-  separatedExtent: number;
+  /** Cp of the rearmost upper-surface tap aft of 0.85c (NaN: none), and the drag Maskell used. */
+  teCp: number;
   maskellDrag: { cd: number; source: 'wake' | 'pressure' };
 }
 

@@ -35,16 +35,24 @@
 //   Δα = a + κc/4 = v_i(c/4)/V  (the mid-chord upwash),  Δcl = −πκc/2,  Δcm_c/4 = +πκc/8,
 // κ from the upwash at the leading and trailing edges. For one vortex this is exactly the classical
 // Δα = (σ/2π)·cl and Δcl = −σ·cl with σ = (π²/48)(c/h)², Δcm = σ·cl/4 (test).
-// All singularities sit at the quarter chord, the second (optional) vortex at the three-quarter
-// chord: a singularity off its true station shows at the walls as the next higher one (a source
-// displaced by δ is a source plus a doublet −Qδ), and the interference at the model follows the
-// same far-field moments, so the total ε does not depend on the choice to first order in δ/h.
+// All singularities sit at the quarter chord. A singularity off that station by δ shows at the walls
+// as itself plus its x-derivative times δ (a source displaced by δ is a source plus a doublet −Qδ, and
+// the images' interference at the model follows the same far-field moments to first order in δ/h).
+// So the fit carries, besides vortex, source and doublet, the two "shift" terms that matter:
+//   vortex shift Γδ:   walls ±(πΓδ/2h²) sech w tanh w;  images' upwash −(πΓδ/2h²)[1/w² − csch w coth w]
+//                      → −πΓδ/(12h²) at the model: the load-distribution (cm) part of Δα, which for
+//                      Γδ = −cm_c/4·(½Vc²) is the classical (σ/2π)·4cm_c/4 term (test);
+//   doublet shift μδ:  walls (π²μδ/h³) sech²w tanh w;  no interference at the model (the doublet's
+//                      image speed is even about it) — it only keeps the doublet's displacement from
+//                      being read as a wake source.
+// (options.terms = 'basic' drops the two shift terms.)
 
-export type SignatureTerm = 'vortex' | 'source' | 'doublet' | 'vortex2';
+export type SignatureTerm = 'vortex' | 'source' | 'doublet' | 'vortexShift' | 'doubletShift';
 
 export interface SignatureOptions {
-  /** Add a second vortex at the three-quarter chord (load distribution). Default false. */
-  secondVortex?: boolean;
+  /** 'full' (default): vortex, source, doublet, vortex shift, doublet shift, offset, gradient;
+   *  'basic': without the two shift terms. */
+  terms?: 'full' | 'basic';
 }
 
 /** Requirements of the fit (common practice, no source; chosen so that the source's step, which
@@ -63,7 +71,7 @@ export interface SignaturePlan {
   height: number;
   chord: number;
   terms: readonly (SignatureTerm | 'offset' | 'gradient')[];
-  /** Station of each term, m from the quarter chord (NaN for offset/gradient). */
+  /** Station of each term, m from the quarter chord (NaN for offset/gradient; all at 0 here). */
   x0: Float64Array;
   /** Floor then ceiling tap x, sorted by x within each wall. */
   xs: Float64Array;
@@ -85,9 +93,11 @@ export interface SignaturePlan {
 /** Fitted strengths and what follows at the model. Strengths dimensional (m²/s, m³/s). */
 export interface SignatureFit {
   gamma: number;
-  gamma2: number;
+  /** Γδ (m³/s) and μδ (m⁴/s) of the shift terms (0 when not fitted). */
+  gammaShift: number;
   Q: number;
   mu: number;
+  muShift: number;
   /** Uniform offset and gradient of u/V (gradient per m). */
   offset: number;
   gradient: number;
@@ -153,8 +163,13 @@ export function wallBasis(term: SignatureTerm | 'offset' | 'gradient', x: number
   const w = (PI * (x - x0)) / h;
   switch (term) {
     case 'vortex':
-    case 'vortex2':
       return (side * 0.5) * sech(w);
+    case 'vortexShift':
+      return side * 0.5 * PI * sech(w) * Math.tanh(w);
+    case 'doubletShift': {
+      const s = sech(w);
+      return PI * PI * s * s * Math.tanh(w);
+    }
     case 'source':
       return 0.5 * Math.tanh(w);
     case 'doublet': {
@@ -168,14 +183,27 @@ export function wallBasis(term: SignatureTerm | 'offset' | 'gradient', x: number
   }
 }
 
-/** Images' velocity at the centreline point x (m) from a unit dimensionless strength at x0:
- *  [u_i/V, v_i/V]. */
+/** 1/w² − csch w coth w (the x0-derivative of the vortex images' upwash); series −1/6 + 7w²/120
+ *  − 31w⁴/3024 near 0 (from the series above, from memory; checked against the difference). */
+export function vortexShiftKernel(w: number): number {
+  if (Math.abs(w) < SMALL) {
+    const w2 = w * w;
+    return -1 / 6 + (7 * w2) / 120 - (31 * w2 * w2) / 3024;
+  }
+  return 1 / (w * w) - 1 / (Math.sinh(w) * Math.tanh(w));
+}
+
+/** Images' velocity at the centreline point x (m) from a unit dimensionless strength at x0
+ *  (Γ = hV, Q = hV, μ = h²V, Γδ = h²V, μδ = h³V): [u_i/V, v_i/V]. */
 export function imageVelocity(term: SignatureTerm, x: number, x0: number, h: number): [number, number] {
   const w = (PI * (x - x0)) / h;
   switch (term) {
     case 'vortex':
-    case 'vortex2':
       return [0, -0.5 * cschMinusInv(w)];
+    case 'vortexShift':
+      return [0, 0.5 * PI * vortexShiftKernel(w)];
+    case 'doubletShift':
+      return [0, 0];
     case 'source':
       return [0.5 * cothMinusInv(w), 0];
     case 'doublet':
@@ -275,10 +303,11 @@ export function signaturePlan(args: {
   }
   const floorX = [...args.floorX].sort((a, b) => a - b);
   const ceilingX = [...args.ceilingX].sort((a, b) => a - b);
-  const terms: (SignatureTerm | 'offset' | 'gradient')[] = ['vortex', 'source', 'doublet', 'offset', 'gradient'];
-  if (args.options?.secondVortex) terms.push('vortex2');
+  const terms: (SignatureTerm | 'offset' | 'gradient')[] = args.options?.terms === 'basic'
+    ? ['vortex', 'source', 'doublet', 'offset', 'gradient']
+    : ['vortex', 'source', 'doublet', 'vortexShift', 'doubletShift', 'offset', 'gradient'];
   const k = terms.length;
-  const x0 = Float64Array.from(terms, (t) => (t === 'vortex2' ? chord / 2 : t === 'offset' || t === 'gradient' ? NaN : 0));
+  const x0 = Float64Array.from(terms, (t) => (t === 'offset' || t === 'gradient' ? NaN : 0));
   const xs = Float64Array.from([...floorX, ...ceilingX]);
   const n = xs.length;
   const nFloor = floorX.length;
@@ -343,7 +372,7 @@ export function signaturePlan(args: {
       }
     }
   }
-  const base = { height: h, chord, terms, x0 } as SignaturePlan;
+  const base = { height: h, chord, terms, x0 };
   const rows = { epsSb: new Float64Array(n), epsWb: new Float64Array(n), dAlpha: new Float64Array(n), kappaC: new Float64Array(n) };
   for (let j = 0; j < k; j++) {
     const e = new Float64Array(k);
@@ -389,7 +418,7 @@ export function interferenceOf(plan: Pick<SignaturePlan, 'height' | 'chord' | 't
     const s = strengths[j];
     if (t === 'doublet') epsSb += s * imageVelocity(t, 0, x0[j], h)[0];
     else if (t === 'source') epsWb += s * (0.5 + imageVelocity(t, 0, x0[j], h)[0]);
-    else {
+    else if (t === 'vortex' || t === 'vortexShift') {
       vMid += s * imageVelocity(t, c / 4, x0[j], h)[1];
       vLE += s * imageVelocity(t, -c / 4, x0[j], h)[1];
       vTE += s * imageVelocity(t, (3 * c) / 4, x0[j], h)[1];
@@ -464,9 +493,10 @@ export function fitSignature(
   const kappaC = inter.kappaC;
   return {
     gamma: at('vortex') * h * V,
-    gamma2: at('vortex2') * h * V,
+    gammaShift: at('vortexShift') * h * h * V,
     Q: at('source') * h * V,
     mu: at('doublet') * h * h * V,
+    muShift: at('doubletShift') * h * h * h * V,
     offset: at('offset'),
     gradient: at('gradient') / h,
     epsSb: inter.epsSb,

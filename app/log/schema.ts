@@ -39,7 +39,7 @@ export const settingsSchema = z
     correction: z.enum(['auto', 'wall-signature', 'maskell', 'barlow-rae-pope', 'allen-vincenti', 'none']),
     maskellTheta: z.number().min(0.5).max(2),
     wallFitResidualCp: z.number().min(0).max(1),
-    separatedExtent: z.number().min(0).max(1),
+    stallTeCp: z.number().min(-5).max(1),
     correctionTolEps: z.number().min(0).max(1),
     correctionTolAlphaDeg: z.number().min(0).max(10),
     badTaps: z.array(id()).max(10000),
