@@ -173,7 +173,7 @@ export function correctionSet(
   const methods: MethodCorrection[] = [];
   const byMethod = new Map<AppliedMethod, { c: CorrectionResult; k: Coefficients }>();
   for (const m of ['wall-signature', 'maskell', 'barlow-rae-pope', 'allen-vincenti'] as const) {
-    const c = m === 'wall-signature' && !signature ? null : correctionFor(planOf(m), x);
+    const c = m === 'wall-signature' && (why !== null || !signature) ? null : correctionFor(planOf(m), x);
     if (!c) {
       methods.push({ method: m, available: false, why: why ?? 'not available' });
       continue;

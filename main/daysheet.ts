@@ -76,6 +76,9 @@ function clock(iso: string): string {
 }
 
 const CORRECTION_WORDS: Record<string, string> = {
+  auto: 'chosen per run (wall signature where the walls can say, Maskell past stall, classical otherwise; see the method column)',
+  'wall-signature': 'wall-pressure signature: vortex, source and doublet between the walls fitted to the floor and ceiling Cp',
+  maskell: 'Maskell separated-flow blockage (ARC R&M 3400) with classical solid blockage and curvature',
   'barlow-rae-pope': 'closed-section 2-D corrections, Barlow, Rae & Pope (1999) ch. 9',
   'allen-vincenti': 'closed-section 2-D corrections, Allen & Vincenti, NACA Rep. 782 (1944)',
   none: 'none (uncorrected)',
@@ -150,6 +153,18 @@ function statusCell(row: RunRow): string {
   return parts.join('; ');
 }
 
+/** Short words for the wall-correction method a run was corrected with (the run table). */
+const METHOD_SHORT: Record<string, string> = {
+  'wall-signature': 'wall signature', maskell: 'Maskell', 'barlow-rae-pope': 'classical (BRP)',
+  'allen-vincenti': 'classical (A&V)', none: 'uncorrected',
+};
+/** "; corrected: …" for a run whose full result is at hand (issue 11: the method per run). */
+function methodNote(full: RunResult | undefined): string {
+  if (!full) return '';
+  const m = full.corrections?.applied ?? full.correction.method;
+  return `; corrected: ${escapeHtml(METHOD_SHORT[m] ?? m)}`;
+}
+
 function rowSeverity(row: RunRow): 'reject' | 'warn' | null {
   const fl = row.result?.flags ?? [];
   if (fl.some((f) => f.severity === 'reject')) return 'reject';
@@ -181,11 +196,11 @@ function runTable(args: DaySheetArgs, settings: Settings): string {
       : [fmt(row.alphaDeg, 2), '–', '–', '–', '–', '–', '–', '–', '–', '–', '–', '–'];
     return `<tr${cls ? ` class="${cls}"` : ''}><td class="n">${mark}${row.run}</td><td class="n">${escapeHtml(clock(row.time))}</td>${cells
       .map((c) => `<td class="n">${c}</td>`)
-      .join('')}<td class="status">${statusCell(row)}</td></tr>`;
+      .join('')}<td class="status">${statusCell(row)}${methodNote(full)}</td></tr>`;
   });
   return `<table class="runs">${head}<tbody>${body.join('\n')}</tbody></table>
 <p class="sub">✕ and a solid left bar: at least one REJECT flag; △ and a dashed bar: CHECK flags only.
-α corr, q, V, Re, cl, cd and cm are wall-corrected (${escapeHtml(CORRECTION_WORDS[settings.correction] ?? settings.correction)});
+α corr, q, V, Re, cl, cd and cm are wall-corrected (${escapeHtml(CORRECTION_WORDS[settings.correction] ?? settings.correction)}); the status column names each run's method.
 cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl.${args.results?.length ? ' Brackets: 95 % Monte Carlo coverage interval (JCGM 101:2008).' : ''}</p>`;
 }
 

@@ -122,3 +122,34 @@ describe('sectionArea', () => {
     expect(sectionArea({ kind: 'coordinates', x, y })).toBeCloseTo(Math.PI * 0.5 * 0.06, 4);
   });
 });
+
+describe("Maskell's separated-flow blockage (E. C. Maskell, ARC R&M 3400, 1965 — from memory, as the issue quotes it)", () => {
+  // Δq/q = θ·c_D·S/C; in 2-D S/C = (c·b)/(h·b) = c/h. Worked by hand for the geometry above with a
+  // stalled section: cd_u = 0.1200, θ = 0.96 (the default, app/corrections.ts):
+  //   Δq/q = 0.96 × 0.1200 × 0.2777778 = 0.03200000;  ε_wb = Δq/2q = 0.01600000
+  //   ε_sb = 0.005713397 (classical, as above);  ε = 0.02171340;  2ε = 0.04342679
+  //   cl_u = 1.10: cl = 1.10 × (1 − 0.01586549 − 0.04342679) = 1.10 × 0.9407077 = 1.034778
+  //   q = 600 × 1.043427 = 626.0561 Pa
+  //   drag factor 1 − 3 × 0.005713397 − 2 × 0.016 = 1 − 0.01714019 − 0.032 = 0.9508598
+  //   cd = 0.1200 × 0.9508598 = 0.1141032
+  // With θ = 1.03 (the value the TU Delft comparison found to fit better): ε_wb = ½ × 1.03 × 0.12 ×
+  // 0.2777778 = 0.01716667.
+  const stalled = { ...geometry, cdU: 0.12 };
+  it('θ = 0.96: ε_wb, ε and the corrected coefficients by hand', () => {
+    const m = wallCorrections({ ...stalled, method: 'maskell' });
+    expect(m.method).toBe('maskell');
+    expect(m.epsWb).toBeCloseTo(0.016, 9);
+    expect(m.eps).toBeCloseTo(0.0217134, 7);
+    const k = applyCorrections({ ...uncorrected, cl: 1.1, cd: 0.12 }, m, uncorrected.cmc4);
+    expect(k.cl).toBeCloseTo(1.034778, 6);
+    expect(k.q).toBeCloseTo(626.0561, 3);
+    expect(k.cd).toBeCloseTo(0.1141032, 7);
+  });
+  it('θ = 1.03 by setting; twice the classical wake blockage for the same drag when θ = 1', () => {
+    expect(wallCorrections({ ...stalled, method: 'maskell', maskellTheta: 1.03 }).epsWb).toBeCloseTo(0.01716667, 8);
+    const one = wallCorrections({ ...stalled, method: 'maskell', maskellTheta: 1 }).epsWb;
+    const classical = wallCorrections({ ...stalled, method: 'barlow-rae-pope' }).epsWb;
+    expect(one / classical).toBeCloseTo(2, 12);
+    expect(() => wallCorrections({ ...stalled, method: 'maskell', maskellTheta: 0 })).toThrow(/θ/);
+  });
+});
