@@ -9,6 +9,7 @@ import type { Store, RunRow, ImportProgress } from './store';
 import type * as CliDeps from './cliDeps';
 import pkg from '../package.json';
 import { isLogError } from '../app/log/errors';
+import { flagsLine } from '../app/flags';
 import { DEFAULT_SETTINGS, type Flag, type RunResult, type Settings } from '../app/types';
 
 export const DEFAULT_DB = 'rakeline.sqlite';
@@ -172,11 +173,6 @@ function progress(): { onProgress?: (p: ImportProgress) => void; stop(): void } 
   };
 }
 
-const SEV = (f: Flag) => (f.severity === 'reject' ? 'REJECT' : 'CHECK');
-/** Flags as words, e.g. "REJECT lift-mismatch; CHECK unsteady". */
-export function flagsText(flags: Flag[]): string {
-  return flags.length ? flags.map((f) => `${SEV(f)} ${f.code}`).join('; ') : 'ok';
-}
 
 const n = (v: number | undefined | null, d: number, w: number) =>
   (v === undefined || v === null || !Number.isFinite(v) ? '-' : v.toFixed(d)).padStart(w);
@@ -187,7 +183,7 @@ export function runsTable(rows: RunRow[]): string {
   const lines = rows.map((r) => {
     const x = r.result;
     const t = (/T(\d{2}:\d{2}:\d{2})/.exec(r.time)?.[1] ?? r.time).padEnd(8);
-    const status = r.kind === 'zero' ? 'wind-off zero' : x ? flagsText(x.flags) : 'not reduced';
+    const status = r.kind === 'zero' ? 'wind-off zero' : x ? flagsLine(x.flags, 'short') : 'not reduced';
     const review = r.review ? ` [${r.review.verdict} by ${r.review.actor}]` : '';
     return `${String(r.run).padStart(4)} ${r.kind.padEnd(4)} ${t} ${n(r.alphaDeg, 2, 6)} ${n(x?.alphaCorrDeg, 2, 6)} ${n(x?.q, 1, 7)} ${n(x ? x.Re / 1e6 : undefined, 3, 6)} ${n(x?.cl, 4, 7)} ${n(x?.clMom, 4, 7)} ${n(x?.cd, 5, 8)} ${n(x?.cmc4, 4, 7)}  ${status}${review}`;
   });
@@ -198,7 +194,7 @@ export function runsTable(rows: RunRow[]): string {
 export function resultLine(r: RunResult, prefix = 'run'): string {
   const c = r.corrected;
   const f = (v: number, d: number) => (Number.isFinite(v) ? v.toFixed(d) : '-');
-  return `${prefix} ${r.run}: alpha ${f(c.alphaDeg, 2)} deg, q ${f(c.q, 1)} Pa, cl ${f(c.cl, 4)} (momentum ${f(D().correctedMomentumCl(r), 4)}), cd ${f(c.cd, 5)}, cm ${f(c.cmc4, 4)}, ${flagsText(r.flags)}`;
+  return `${prefix} ${r.run}: alpha ${f(c.alphaDeg, 2)} deg, q ${f(c.q, 1)} Pa, cl ${f(c.cl, 4)} (momentum ${f(D().correctedMomentumCl(r), 4)}), cd ${f(c.cd, 5)}, cm ${f(c.cmc4, 4)}, ${flagsLine(r.flags, 'short')}`;
 }
 
 function writeOut(text: string, file: string | undefined, what: string): void {
