@@ -20,6 +20,7 @@
 // settings.correctionTolAlphaDeg: a sign of stall, wall boundary-layer growth or wall-tap trouble.
 
 import { applyCorrections, wallCorrections } from './corrections';
+import { makeFlag } from './flags';
 import { fitSignature, signatureInterference, type SignaturePlan } from './wallSignature';
 import type {
   AppliedMethod, Coefficients, CorrectionMethod, CorrectionResult, CorrectionSet, Flag,
@@ -224,15 +225,11 @@ export function correctionSet(
     const aA = dAlphaOf(applied.c, u, x.cmc4U);
     const aC = dAlphaOf(classical.c, u, x.cmc4U);
     if (Math.abs(dEps) > settings.correctionTolEps || Math.abs(aA - aC) > settings.correctionTolAlphaDeg) {
-      flag = {
-        code: 'correction-disagree',
-        severity: 'warn',
-        reason:
-          `Wall corrections differ: ${METHOD_WORDS[choice.m]} (applied) ε = ${f4(applied.c.eps)}, Δα = ${f2(aA)}° against ` +
-          `${METHOD_WORDS[reference]} ε = ${f4(classical.c.eps)}, Δα = ${f2(aC)}° (limits ${f4(settings.correctionTolEps)} in ε, ` +
-          `${f2(settings.correctionTolAlphaDeg)}° in Δα); corrected cl ${f4(applied.k.cl)} against ${f4(classical.k.cl)}. ` +
-          'A sign of stall, wall boundary-layer growth or wall-tap trouble.',
-      };
+      flag = makeFlag('correction-disagree', {
+        applied: METHOD_WORDS[choice.m], epsApplied: applied.c.eps, dAlphaApplied: aA, clApplied: applied.k.cl,
+        reference: METHOD_WORDS[reference], epsReference: classical.c.eps, dAlphaReference: aC, clReference: classical.k.cl,
+        tolEps: settings.correctionTolEps, tolAlphaDeg: settings.correctionTolAlphaDeg,
+      });
     }
   }
   const set: CorrectionSet = {

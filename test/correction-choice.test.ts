@@ -111,7 +111,7 @@ describe('auto', () => {
     const r = correctionSet('auto', big, DEFAULT_SETTINGS, attached, 0);
     expect(r.set.applied).toBe('wall-signature');
     expect(r.flag?.code).toBe('correction-disagree');
-    expect(r.flag!.reason).toMatch(/^Wall corrections differ: wall signature \(applied\)/);
+    expect(r.flag!.reason).toMatch(/^Wall corrections disagree: wall signature \(applied\)/);
   });
 });
 
