@@ -203,7 +203,7 @@ export const DEFAULT_SETTINGS: Settings = {
   maskellTheta: 0.96,
   wallFitResidualCp: 0.005,
   stallTeCp: -0.15,
-  correctionTolEps: 0.005,
+  correctionTolEps: 0.006,
   correctionTolAlphaDeg: 0.25,
   badTaps: [],
 };
