@@ -72,6 +72,9 @@ function range(lo: number, hi: number, decimals: number, unit: string): string {
   return `${fmt(lo, decimals)} to ${fmt(hi, decimals)}${u}`;
 }
 const CORRECTION_WORDS: Record<string, string> = {
+  auto: 'chosen per run (wall signature where the walls can say, Maskell past stall, classical otherwise; see the method in the status column)',
+  'wall-signature': 'wall-pressure signature: vortex, source and doublet between the walls fitted to the floor and ceiling Cp',
+  maskell: 'Maskell separated-flow blockage (ARC R&M 3400) with classical solid blockage and curvature',
   'barlow-rae-pope': 'closed-section 2-D corrections, Barlow, Rae & Pope (1999) ch. 9',
   'allen-vincenti': 'closed-section 2-D corrections, Allen & Vincenti, NACA Rep. 782 (1944)',
   none: 'none (uncorrected)',
@@ -153,15 +156,24 @@ export function settingsDifferences(used: Partial<Settings> | undefined, current
   const u = { ...DEFAULT_SETTINGS, ...(used ?? {}) } as Settings;
   const same = (k: keyof Settings) => (k === 'badTaps'
     ? [...u.badTaps].sort().join() === [...current.badTaps].sort().join()
-    : u[k] === current[k]);
-  return SETTING_WORDS
+    : JSON.stringify(u[k]) === JSON.stringify(current[k]));
+  return settingWords(current)
     .filter((w) => !(w.key === 'mcSeed' && u.mcDraws === 0 && current.mcDraws === 0))
     .filter((w) => !same(w.key))
     .map((w) => `${w.words}: ${w.show(u)} (now ${w.show(current)})`);
 }
 
+/** The words of every setting: those above, then any other key of the settings by its name (a
+ *  setting added later is still printed and compared). */
+function settingWords(current: Settings): typeof SETTING_WORDS {
+  const known = new Set<string>(SETTING_WORDS.map((w) => w.key));
+  const more = (Object.keys(current) as (keyof Settings)[]).filter((k) => !known.has(k))
+    .map((key) => ({ key, words: String(key), show: (s: Settings) => JSON.stringify(s[key]) ?? '–' }));
+  return [...SETTING_WORDS, ...more];
+}
+
 function settingsSection(args: DaySheetArgs, settings: Settings): string {
-  const rows = SETTING_WORDS.filter((w) => w.key !== 'mcSeed')
+  const rows = settingWords(settings).filter((w) => w.key !== 'mcSeed')
     .map((w) => `<tr><th scope="row">${escapeHtml(w.words)}</th><td>${escapeHtml(w.show(settings))}</td></tr>`).join('');
   const groups = new Map<string, number[]>();
   for (const r of args.results ?? []) {
@@ -248,6 +260,18 @@ footer { margin-top: 4mm; font-size: 7pt; color: #333; }
 // ---------------------------------------------------------------------------------------------
 // Run table
 
+/** Short words for the wall-correction method a run was corrected with (the run table). */
+const METHOD_SHORT: Record<string, string> = {
+  'wall-signature': 'wall signature', maskell: 'Maskell', 'barlow-rae-pope': 'classical (BRP)',
+  'allen-vincenti': 'classical (A&V)', none: 'uncorrected',
+};
+/** "; corrected: …" for a run whose full result is at hand (issue 11: the method per run). */
+function methodNote(full: RunResult | undefined): string {
+  if (!full) return '';
+  const m = full.corrections?.applied ?? full.correction.method;
+  return `; corrected: ${escapeHtml(METHOD_SHORT[m] ?? m)}`;
+}
+
 function rowSeverity(row: RunRow): 'reject' | 'warn' | null {
   const fl = row.result?.flags ?? [];
   if (fl.some((f) => f.severity === 'reject')) return 'reject';
@@ -297,11 +321,11 @@ function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Set
       : [fmt(row.alphaDeg, 2), '–', '–', '–', '–', '–', '–', '–', '–', '–', '–', '–'];
     return `<tr${cls ? ` class="${cls}"` : ''} data-run="${row.run}"><td class="n">${mark}${row.run}</td><td class="n">${escapeHtml(localTime(row.time, tz, true))}</td>${cells
       .map((c) => `<td class="n">${c}</td>`)
-      .join('')}<td class="status">${statusCell(row, stale.has(row.run))}</td></tr>`;
+      .join('')}<td class="status">${statusCell(row, stale.has(row.run))}${methodNote(byRun.get(row.run))}</td></tr>`;
   });
   return `<table class="runs">${head}<tbody>${body.join('\n')}</tbody></table>
 <p class="sub">${SEVERITY.reject.glyph} and a solid left bar: at least one ${SEVERITY.reject.word} flag (${SEVERITY.reject.meaning.toLowerCase()}); ${SEVERITY.warn.glyph} and a dashed bar: ${SEVERITY.warn.word} flags only (${SEVERITY.warn.meaning.toLowerCase()}). Times are local (${escapeHtml(zoneOffset(new Date(args.generatedAt), tz))}).
-α corr, q, V, Re, cl, cd and cm are wall-corrected (${escapeHtml(CORRECTION_WORDS[settings.correction] ?? settings.correction)});
+α corr, q, V, Re, cl, cd and cm are wall-corrected (${escapeHtml(CORRECTION_WORDS[settings.correction] ?? settings.correction)}); the status column names each run's method.
 cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl.${args.results?.length ? ' Small figures under a value: half the width of its 95 % Monte Carlo coverage interval (JCGM 101:2008), same basis as the value.' : ''}</p>`;
 }
 

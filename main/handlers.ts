@@ -200,7 +200,7 @@ const resultSchema = z.looseObject({
   wake: z.looseObject({ cd: num, captured: z.boolean() }).nullable(),
   walls: z.looseObject({ clMom: num, gammaWall: num, clWall: num }).nullable(),
   circulation: z.looseObject({ pressure: num, momentum: num, wall: num }),
-  correction: z.looseObject({ method: z.enum(['barlow-rae-pope', 'allen-vincenti', 'none']), sigma: num, eps: num }),
+  correction: z.looseObject({ method: z.enum(['barlow-rae-pope', 'allen-vincenti', 'maskell', 'wall-signature', 'none']), sigma: num, eps: num }),
   uncorrected: coefficientsSchema,
   corrected: coefficientsSchema,
   clMomentum: num,
