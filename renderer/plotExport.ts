@@ -7,6 +7,7 @@ import type { PointStyle } from 'chart.js';
 import type { RakelineApi } from '../main/contract';
 import { svgPlot, type MarkerShape, type PlotSeries, type PlotSpec } from '../main/svgplot';
 import type { PlotConfig, XY } from './charts';
+import { download } from './screens/DayLog';
 
 const MARKERS: Partial<Record<string, MarkerShape>> = {
   circle: 'circle', triangle: 'triangle', rect: 'square', rectRounded: 'square', rectRot: 'diamond',
@@ -94,17 +95,6 @@ export async function pngFromSvg(svg: string, scale = 2): Promise<Blob> {
   }
 }
 
-function downloadBlob(blob: Blob, name: string): void {
-  const url = URL.createObjectURL(blob);
-  const a = document.createElement('a');
-  a.href = url;
-  a.download = name;
-  document.body.appendChild(a);
-  a.click();
-  a.remove();
-  setTimeout(() => URL.revokeObjectURL(url), 1000);
-}
-
 async function base64(blob: Blob): Promise<string> {
   const bytes = new Uint8Array(await blob.arrayBuffer());
   let s = '';
@@ -120,6 +110,6 @@ export async function exportPlot(api: RakelineApi, spec: PlotSpec, kind: 'svg' |
   const blob = kind === 'svg' ? new Blob([svg], { type: 'image/svg+xml' }) : await pngFromSvg(svg);
   const r = await api.call('file.save', { suggestedName: name, kind, base64: await base64(blob) });
   if (r.supported) return r.path;
-  downloadBlob(blob, name);
+  download(blob, name, blob.type);
   return name;
 }

@@ -78,17 +78,20 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
     if (tmp) rmSync(tmp, { recursive: true, force: true });
   });
 
-  it('imports the demo day, reviews the stall run, overrides a tap, shows polars and prints the day sheet', async () => {
+  /** Run a flow with screenshots; on failure a screenshot and the page's problems. */
+  async function guarded(failureShot: string, run: (shot: (name: string) => Promise<unknown>) => Promise<void>): Promise<void> {
     const shot = (name: string) => page.screenshot({ path: path.join(out, `${name}.png`), fullPage: false });
     try {
-      await flow(shot);
+      await run(shot);
     } catch (e) {
-      await shot('failure').catch(() => undefined);
+      await shot(failureShot).catch(() => undefined);
       const problems = (page as unknown as { problems: string[] }).problems;
       if (problems.length) console.error(`[e2e] page problems:\n${problems.join('\n')}`);
       throw e;
     }
-  }, 150_000);
+  }
+
+  it('imports the demo day, reviews the stall run, overrides a tap, shows polars and prints the day sheet', () => guarded('failure', flow), 150_000);
 
   async function flow(shot: (name: string) => Promise<unknown>): Promise<void> {
 
@@ -202,17 +205,8 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
     expect(problems, problems.join('\n')).toEqual([]);
   }
 
-  it('overlays runs of two sessions, saves a plot as SVG and PNG, and prints run 11 rejected with its flag on A4 and Letter', async () => {
-    const shot = (name: string) => page.screenshot({ path: path.join(out, `${name}.png`), fullPage: false });
-    try {
-      await sideBySideAndSheet(shot);
-    } catch (e) {
-      await shot('failure-2').catch(() => undefined);
-      const problems = (page as unknown as { problems: string[] }).problems;
-      if (problems.length) console.error(`[e2e] page problems:\n${problems.join('\n')}`);
-      throw e;
-    }
-  }, 240_000);
+  it('overlays runs of two sessions, saves a plot as SVG and PNG, and prints run 11 rejected with its flag on A4 and Letter',
+    () => guarded('failure-2', sideBySideAndSheet), 240_000);
 
   async function sideBySideAndSheet(shot: (name: string) => Promise<unknown>): Promise<void> {
     // A second day: the demo folder again with another date and title (a new setup, so a new session).
