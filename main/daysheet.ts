@@ -464,7 +464,7 @@ export function cpPlotRuns(args: DaySheetArgs, common: Set<string>): { runs: num
     || row.review?.verdict === 'rejected'
     || row.result.flags.some((f) => f.severity === 'reject' || !common.has(flagKey(f)))
   )).map((r) => r.run);
-  const have = new Set((args.results ?? []).map((r) => r.run));
+  const have = new Set((args.results ?? []).filter((r) => Array.isArray(r.taps) && r.taps.length).map((r) => r.run));
   const runs = want.filter((r) => have.has(r));
   const MAX = 24;
   return { runs: runs.slice(0, MAX), left: runs.slice(MAX) };
@@ -599,7 +599,7 @@ function badTaps(args: DaySheetArgs, settings: Settings, tz: string): string {
   }
   const auto = new Map<string, { reason: string; runs: number[] }>();
   for (const r of args.results ?? []) {
-    for (const t of r.taps) {
+    for (const t of r.taps ?? []) {
       if (!t.bad || !t.badReason || t.badReason === 'marked') continue;
       const k = `${t.id}\u0000${t.badReason}`;
       const g = auto.get(k) ?? { reason: t.badReason, runs: [] };
