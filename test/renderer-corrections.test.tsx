@@ -4,6 +4,7 @@
 // methods that could not be applied with their reason in words.
 import { afterEach, describe, expect, it } from 'vitest';
 import { CorrectionCompare } from '../renderer/components/CorrectionCompare';
+import { wallChartConfig } from '../renderer/charts';
 import { byText, mount, reducedMini } from './renderer-fixtures';
 
 let cleanup: (() => Promise<void>) | null = null;
@@ -39,5 +40,24 @@ describe('wall corrections side by side', () => {
     const m = await mount(<CorrectionCompare result={old} />);
     cleanup = m.unmount;
     expect(m.container.textContent).toMatch(/stored before core 0\.3\.0: re-reduce to compare/);
+  });
+});
+
+describe('wall chart with the wall-signature fit', () => {
+  it('adds the fitted floor and ceiling Cp as two lines without markers when the result has a fit', () => {
+    const { results } = reducedMini();
+    const r = results[0];
+    const plain = wallChartConfig({ ...r, corrections: undefined })!;
+    const floor = [{ x: -1, cp: 0.01 }, { x: 1, cp: -0.02 }];
+    const ceiling = [{ x: -1, cp: -0.01 }, { x: 1, cp: -0.05 }];
+    const withFit = wallChartConfig({
+      ...r,
+      corrections: { ...r.corrections!, signature: { ...(r.corrections!.signature ?? {}), fitted: { floor, ceiling } } as never },
+    })!;
+    expect(withFit.data.datasets.length).toBe(plain.data.datasets.length + 2);
+    const fitSets = withFit.data.datasets.slice(-2) as unknown as { label: string; data: { x: number; y: number }[]; pointRadius: number }[];
+    expect(fitSets.map((d) => d.label)).toEqual(['wall-signature fit, floor', 'wall-signature fit, ceiling']);
+    expect(fitSets[0].data).toEqual([{ x: -1, y: 0.01 }, { x: 1, y: -0.02 }]);
+    expect(fitSets[1].pointRadius).toBe(0);
   });
 });
