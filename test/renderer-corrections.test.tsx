@@ -61,3 +61,22 @@ describe('wall chart with the wall-signature fit', () => {
     expect(fitSets[1].pointRadius).toBe(0);
   });
 });
+
+describe('results CSV: the wall-correction columns', () => {
+  it('carry the method applied, its ε and each method\'s ε, as stored', async () => {
+    const { exportResultsCsv } = await import('../main/export');
+    const { setup, rows, results } = reducedMini();
+    const csv = exportResultsCsv(rows as never, setup, results).split('\r\n');
+    const head = csv[0].split(',');
+    const col = (name: string) => head.indexOf(name);
+    const r = results[0];
+    const line = csv.find((l) => l.startsWith(`${r.run},data,`))!.split(',');
+    expect(line[col('correction_method')]).toBe(r.corrections!.applied);
+    expect(Number(line[col('eps')])).toBeCloseTo(r.correction.eps, 7);
+    const classical = r.corrections!.methods.find((m) => m.method === 'barlow-rae-pope')!;
+    expect(Number(line[col('eps_classical')])).toBeCloseTo(classical.eps!, 7);
+    // The mini session's walls cannot say: no wall-signature ε, no residual.
+    expect(line[col('eps_wall_signature')]).toBe('');
+    expect(line[col('wall_fit_residual_cp')]).toBe('');
+  });
+});
