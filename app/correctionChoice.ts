@@ -160,7 +160,8 @@ export function correctionSet(
         gamma: fit.gamma, Q: fit.Q, mu: fit.mu, offset: fit.offset, gradient: fit.gradient,
         residualCp: fit.residualCp, worstCp: fit.worstCp, worstAt: fit.worstAt, uEps: fit.uEps,
         condition: fit.condition, taps: fit.taps, epsSb: fit.epsSb, epsWb: fit.epsWb, eps: fit.eps,
-        dAlphaDeg: fit.dAlphaDeg, dCl: fit.dCl, dCm: fit.dCm,
+        dAlphaDeg: fit.dAlphaDeg, dCl: fit.dCl, dCm: fit.dCm, gammaShift: fit.gammaShift, muShift: fit.muShift,
+        fitted: fit.fitted,
       };
       if (fit.residualCp > settings.wallFitResidualCp) {
         why =

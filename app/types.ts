@@ -388,6 +388,10 @@ export interface CorrectionSet {
     residualCp: number; worstCp: number; worstAt: { wall: 'floor' | 'ceiling'; x: number };
     uEps: number; condition: number; taps: number;
     epsSb: number; epsWb: number; eps: number; dAlphaDeg: number; dCl: number; dCm: number;
+    /** Shift terms Γδ (m³/s) and μδ (m⁴/s). */
+    gammaShift: number; muShift: number;
+    /** Fitted wall Cp at the taps (for the wall-signature plot). */
+    fitted: { floor: { x: number; cp: number }[]; ceiling: { x: number; cp: number }[] };
   } | null;
   /** Cp of the rearmost upper-surface tap aft of 0.85c (NaN: none), and the drag Maskell used. */
   teCp: number;

@@ -118,6 +118,8 @@ export interface SignatureFit {
   uEps: number;
   condition: number;
   taps: number;
+  /** The fitted wall Cp at each tap (plan order: each wall sorted by x), for plotting. */
+  fitted: { floor: { x: number; cp: number }[]; ceiling: { x: number; cp: number }[] };
 }
 
 const PI = Math.PI;
@@ -459,9 +461,11 @@ export function fitSignature(
   let ss = 0;
   let worst = 0;
   let worstI = 0;
+  const fitted: SignatureFit['fitted'] = { floor: [], ceiling: [] };
   for (let i = 0; i < n; i++) {
     let f = 0;
     for (let a = 0; a < k; a++) f += A[i * k + a] * s[a];
+    (i < nFloor ? fitted.floor : fitted.ceiling).push({ x: xs[i], cp: 1 - (1 + f) * (1 + f) });
     // Residual in Cp: Cp = 1 − (1 + u)², so dCp = −2(1 + u)·du.
     const r = 2 * (1 + b[i]) * (b[i] - f);
     ss += r * r;
@@ -512,6 +516,7 @@ export function fitSignature(
     uEps,
     condition: plan.condition,
     taps: n,
+    fitted,
   };
 }
 

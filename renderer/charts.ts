@@ -184,6 +184,17 @@ export function wakeChartConfig(result: RunResult): PlotConfig | null {
 }
 
 /** Floor and ceiling Cp signatures against x (m from the quarter chord). */
+function signatureFit(result: RunResult): ChartData<'scatter', Pts>['datasets'] {
+  const f = result.corrections?.signature?.fitted;
+  if (!f) return [];
+  const line = { showLine: true, borderWidth: 1.5, pointRadius: 0, pointHoverRadius: 0, borderDash: [2, 2] };
+  const xy = (a: { x: number; cp: number }[]) => a.map((p) => ({ x: p.x, y: p.cp }));
+  return [
+    points('wall-signature fit, floor', xy(f.floor), SERIES.floor.color, SERIES.floor.marker, line),
+    points('wall-signature fit, ceiling', xy(f.ceiling), SERIES.ceiling.color, SERIES.ceiling.marker, line),
+  ];
+}
+
 export function wallChartConfig(result: RunResult): PlotConfig | null {
   const w = result.walls;
   if (!w) return null;
@@ -194,6 +205,9 @@ export function wallChartConfig(result: RunResult): PlotConfig | null {
       datasets: [
         points(SERIES.floor.label, pts(w.floor), SERIES.floor.color, SERIES.floor.marker, { showLine: true, borderWidth: 1 }),
         points(SERIES.ceiling.label, pts(w.ceiling), SERIES.ceiling.color, SERIES.ceiling.marker, { showLine: true, borderWidth: 1, borderDash: [5, 3] }),
+        // The wall-signature fit (vortex, source, doublet between the walls; docs/WALL-CORRECTIONS.md)
+        // as thin lines without markers, so the residual is seen against the taps.
+        ...signatureFit(result),
       ],
     },
     options,

@@ -201,6 +201,9 @@ describe('exact vortex + source + doublet walls (image sums), taps over ±1.5h',
       const vMid = imageSum('vortex', G, 0, c / 4, 0, true)[1] / V;
       expect(Math.abs(fit.dAlphaDeg / ((vMid * 180) / Math.PI) - 1)).toBeLessThan(0.02);
       expect(fit.residualCp).toBeLessThan(1e-5);
+      // The fitted wall Cp (for the plot) are the data's, tap by tap.
+      const fData = wallCp({ vortex: G, source: Q, doublet: mu }, [...fx].sort((a, b) => a - b), -1);
+      fit.fitted.floor.forEach((p, i) => expect(p.cp).toBeCloseTo(fData[i], 5));
       // The Monte Carlo path gives the same interference.
       const s = signatureInterference(plan, wallCp({ vortex: G, source: Q, doublet: mu }, fx, -1), wallCp({ vortex: G, source: Q, doublet: mu }, cx, 1));
       expect(s.epsSb + s.epsWb).toBeCloseTo(fit.eps, 12);

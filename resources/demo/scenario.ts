@@ -15,7 +15,8 @@
 // - Walls (REDUCTION.md §5): the wall speed is u/V = 1 + e(x) + b(x) ± g(x) and Cp = 1 − (u/V)²
 //   (exact Bernoulli). g(x) = (Γ/2hV)·sech(πx/h) is the bound vortex and its images (Milne-Thomson,
 //   Theoretical Hydrodynamics, method of images; complex potential −(iΓ/2π) ln tanh(πz/2h)),
-//   + on the ceiling, − on the floor (clockwise Γ speeds the ceiling). b(x) is symmetric on both
+//   + on the ceiling, − on the floor (clockwise Γ speeds the ceiling), plus the shift of that vortex to
+//   the centre of pressure (δ = −cm_c/4·c/cl). b(x) is symmetric on both
 //   walls: a solid-blockage doublet m = V·A(1 + t/c)/2π (far-field doublet of an ellipse of the same
 //   area and thickness ratio, Milne-Thomson, from memory) whose images give (m/V)(π/h)²sech²(πx/h),
 //   plus a wake-blockage source Q = ½Vc·cd at the trailing edge giving (Q/2hV)(1 + tanh(πx/h))
@@ -867,7 +868,14 @@ function computeAero(C: Contour, L: Layout, alpha: number, stalled: boolean, fau
   }
   const bBar = (num * dxq) / H;
   const gammaOverV = (0.5 * CHORD * clWalls) / (1 + bBar);
-  const g = (x: number) => (gammaOverV / (2 * H)) * sech((Math.PI * x) / H);
+  // The lift acts behind the quarter chord by δ = −cm_c/4·c/cl: the vortex displaced by δ adds, at the
+  // walls, δ·∂/∂x0 of its signature, (πΓδ/2h²V)·sech·tanh (docs/WALL-CORRECTIONS.md §3), with
+  // Γδ = −cm_c/4·½Vc². Odd in x: it leaves the momentum and circulation integrals unchanged.
+  const gdOverV = -cmT * 0.5 * CHORD * CHORD / (1 + bBar);
+  const g = (x: number) => {
+    const w = (Math.PI * x) / H;
+    return (gammaOverV / (2 * H)) * sech(w) + ((Math.PI * gdOverV) / (2 * H * H)) * sech(w) * Math.tanh(w);
+  };
 
   const cp = new Map<string, number>();
   const turb = new Map<string, number>();
