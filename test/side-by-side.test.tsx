@@ -3,6 +3,7 @@
 import { describe, expect, it } from 'vitest';
 import { Window } from 'happy-dom';
 import { filterRuns } from '../renderer/screens/SideBySide';
+import { parseRuns } from '../renderer/screens/DaySheet';
 import { cpOverlayConfig, OVERLAY_STYLE, polarOverlayConfig, wakeOverlayConfig } from '../renderer/compareCharts';
 import { exportName, specFromConfig, svgDocument } from '../renderer/plotExport';
 import { LEAK, LIFT, reducedMini, row } from './renderer-fixtures';
@@ -62,6 +63,15 @@ describe('side by side', () => {
     for (const o of overlay) expect(legend).toContain(o.label);
     expect(exportName('Cp side by side', 'png')).toBe('cp-side-by-side.png');
     expect(exportName('Drag polar c_l(c_d) — 18 Nov', 'svg')).toBe('drag-polar-c-l-c-d-18-nov.svg');
+  });
+
+  it('the day sheet\'s run picker reads "9, 14-16" and refuses anything else', () => {
+    expect(parseRuns('9, 14-16')).toEqual([9, 14, 15, 16]);
+    expect(parseRuns(' 3;3 4–5 ')).toEqual([3, 4, 5]);
+    expect(parseRuns('')).toEqual([]);
+    expect(parseRuns('9-7')).toBeNull();
+    expect(parseRuns('run 9')).toBeNull();
+    expect(parseRuns('1-5000')).toBeNull();
   });
 
   it('wake overlay only for runs with a wake; polar overlay one series per session', () => {
