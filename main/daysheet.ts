@@ -144,6 +144,11 @@ const SETTING_WORDS: { key: keyof Settings; words: string; show: (s: Settings) =
   { key: 'mcDraws', words: 'Uncertainty', show: (s) => (s.mcDraws ? `Monte Carlo, ${s.mcDraws} draws, seed ${s.mcSeed}` : 'not computed') },
   { key: 'mcSeed', words: 'Monte Carlo seed', show: (s) => String(s.mcSeed) },
   { key: 'badTaps', words: 'Taps marked bad', show: (s) => (s.badTaps.length ? [...s.badTaps].sort().join(', ') : 'none') },
+  { key: 'maskellTheta', words: 'Maskell blockage factor θ', show: (s) => String(s.maskellTheta) },
+  { key: 'wallFitResidualCp', words: 'Wall-signature fit used up to', show: (s) => `rms residual ${s.wallFitResidualCp} in Cp` },
+  { key: 'stallTeCp', words: 'Past stall (automatic choice) when', show: (s) => `rearmost upper tap Cp ≤ ${s.stallTeCp}` },
+  { key: 'correctionTolEps', words: 'Correction methods disagree above', show: (s) => `Δε = ${s.correctionTolEps}` },
+  { key: 'correctionTolAlphaDeg', words: 'Correction methods disagree above', show: (s) => `Δα = ${s.correctionTolAlphaDeg}°` },
 ];
 
 /**
@@ -253,6 +258,7 @@ ol.flagged li, ul.common li, ul.stale li, ul.taps li, ul.findings li { margin-bo
 .signoff div { display: grid; grid-template-columns: 30mm 1fr 1fr 30mm; gap: 3mm; align-items: end; }
 .signoff span.line { border-bottom: 0.6pt solid #000; min-height: 8mm; display: block; font-size: 7pt; color: #333; padding-top: 7mm; }
 .keep { break-inside: avoid; page-break-inside: avoid; }
+.keep-next { break-after: avoid; page-break-after: avoid; }
 footer { margin-top: 4mm; font-size: 7pt; color: #333; }
 `;
 }
@@ -484,7 +490,7 @@ function cpPages(args: DaySheetArgs, common: Set<string>): string {
     const spec = cpPlotSpec(r, title, { width: PLOT_W, height: CP_H, unit: 'pt' });
     return `<figure>${svgPlot(spec)}<figcaption>${escapeHtml(words.length ? words.join('; ') : 'picked by the engineer, no flags')}</figcaption></figure>`;
   });
-  return `<p class="sub">Main tap row, measured Cp (not wall-corrected) against the inviscid panel solution at the corrected α. Runs: the flagged and rejected runs${args.cpRuns?.length ? ' and those picked by the engineer' : ''}.${left.length ? ` Left out for room: ${escapeHtml(runsWord(left))}.` : ''}</p>
+  return `<p class="sub keep-next">Main tap row, measured Cp (not wall-corrected) against the inviscid panel solution at the corrected α. Runs: the flagged and rejected runs${args.cpRuns?.length ? ' and those picked by the engineer' : ''}.${left.length ? ` Left out for room: ${escapeHtml(runsWord(left))}.` : ''}</p>
 <div class="plots">${figs.join('\n')}</div>`;
 }
 

@@ -287,6 +287,12 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
     // The day sheet, printed on A4 and Letter.
     await page.getByRole('button', { name: 'Day sheet', exact: true }).click();
     const sessionTitle = (await day1.locator('.session-name').innerText()).trim();
+    // run 9 carries only the day-long leaking-tap flag, so its Cp plot is there only when picked
+    const srcdoc = () => page.locator('iframe.sheet-frame').getAttribute('srcdoc').catch(() => null).then((h) => h ?? '');
+    await expect.poll(srcdoc, { timeout: 30_000 }).toContain('<h2>Cp distributions</h2>');
+    expect(await srcdoc()).not.toContain('<title>Run 9: α');
+    await page.getByLabel('Cp plots also of runs').fill('9');
+    await expect.poll(srcdoc, { timeout: 30_000 }).toContain('<title>Run 9: α');
     for (const paper of ['A4', 'Letter'] as const) {
       await page.getByRole('radio', { name: paper }).check();
       await expect.poll(async () => (await page.locator('iframe.sheet-frame').getAttribute('srcdoc').catch(() => null)) ?? '', { timeout: 30_000 })
@@ -323,6 +329,7 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
       expect(r11.toLowerCase()).toContain('wake not captured');
       expect(r11).toContain('Reviewer M. Okonkwo rejected this run: wake off the rake; traverse the rake and repeat');
       expect(flat).not.toContain('Run 11 (no flags)');
+      expect(flat).toMatch(/Run 9: α 0\.01° corr\./); // the picked run's Cp plot
       execFileSync('pdftoppm', ['-png', '-r', '60', pdfPath, path.join(out, `daysheet-${paper}`)]);
       expect(readdirSync(out).filter((n) => n.startsWith(`daysheet-${paper}-`) && n.endsWith('.png')).length).toBe(pages);
     }
