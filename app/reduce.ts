@@ -22,9 +22,12 @@ import { interpLinear } from './quadrature';
 import { wallLoads, angleFlux } from './walls';
 import { gammaFromCl, liftCrossCheck } from './crosscheck';
 import { sectionArea, wallCorrections, applyCorrections } from './corrections';
+import { correctionFor, correctionSet, type CorrectionInputs, type CorrectionPlan } from './correctionChoice';
+import { signaturePlan, type SignaturePlan } from './wallSignature';
 import { monteCarlo, instrumentStd } from './uncertainty';
 import { buildMcPlan, evalMcPlan, type McPlan, type McValues, type PlanLayout } from './mcPlan';
 import { sessionStats } from './session';
+import { makeFlag } from './flags';
 import { toPascal, isPressureUnit } from './units';
 
 export function resolveSettings(setup: Setup, overrides?: Partial<Settings>): Settings {
@@ -65,6 +68,8 @@ interface Layout {
   ceiling: { x: number; ch: Channel }[];
   mainRow: string;
   areaC2: number;
+  /** Wall-signature fit design for the floor and ceiling taps (null: no taps on both walls). */
+  signature: SignaturePlan | null;
   /** Pa per channel unit (1 for deg). */
   scale: Map<string, number>;
   /** Flow-angle channels (not zeroed, not drift-checked). */
@@ -98,6 +103,8 @@ export function layoutOf(setup: Setup): Layout {
       return ch ? [{ it, ch }] : [];
     });
   const rake = pick('rake', setup.rake.probes);
+  const floorCh = pick('floor', setup.floor).map(({ it, ch }) => ({ x: it.x, ch }));
+  const ceilingCh = pick('ceiling', setup.ceiling).map(({ it, ch }) => ({ x: it.x, ch }));
   const rowCounts = new Map<string, number>();
   for (const t of setup.taps) rowCounts.set(t.row, (rowCounts.get(t.row) ?? 0) + 1);
   const mainRow = rowCounts.has('C')
@@ -112,10 +119,18 @@ export function layoutOf(setup: Setup): Layout {
     rakeTotal: rake.filter((r) => r.it.kind === 'total').map(({ it, ch }) => ({ y: it.y, ch })),
     rakeStatic: rake.filter((r) => r.it.kind === 'static').map(({ it, ch }) => ({ y: it.y, ch })),
     rakeAngle: rake.filter((r) => r.it.kind === 'angle').map(({ it, ch }) => ({ y: it.y, ch })),
-    floor: pick('floor', setup.floor).map(({ it, ch }) => ({ x: it.x, ch })),
-    ceiling: pick('ceiling', setup.ceiling).map(({ it, ch }) => ({ x: it.x, ch })),
+    floor: floorCh,
+    ceiling: ceilingCh,
     mainRow,
     areaC2: sectionArea(setup.model.geometry),
+    signature: floorCh.length >= 2 && ceilingCh.length >= 2
+      ? signaturePlan({
+          floorX: floorCh.map((f) => f.x),
+          ceilingX: ceilingCh.map((c) => c.x),
+          height: setup.facility.sectionHeight,
+          chord: setup.model.chord,
+        })
+      : null,
     scale,
     angle: angleChannels(setup),
   };
@@ -134,6 +149,8 @@ interface CoreInput {
   /** Offsets added to every tap's x/c (Monte Carlo), by tap index in layout.taps. */
   tapDx?: Float64Array;
   bad: { id: string; reason: string }[];
+  /** How to correct (the nominal pass resolves 'auto'; its first pass uses the classical plan). */
+  correct: CorrectionPlan;
 }
 
 interface CoreOutput {
@@ -147,6 +164,8 @@ interface CoreOutput {
   uncorrected: Coefficients;
   corrected: Coefficients;
   correction: ReturnType<typeof wallCorrections>;
+  /** What the correction methods need (for the nominal comparison of every method). */
+  correctionInputs: CorrectionInputs;
   clMomentum: number;
   gamma: { pressure: number; momentum: number; wall: number };
 }
@@ -245,14 +264,20 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     V: fs.V,
     Re: fs.Re,
   };
-  const correction = wallCorrections({
+  const correctionInputs: CorrectionInputs = {
     chord: setup.model.chord,
     height: setup.facility.sectionHeight,
     width: setup.facility.sectionWidth,
     sectionAreaC2: L.areaC2,
-    cdU: Number.isFinite(cdU) ? cdU : main.cdp,
-    method: settings.correction,
-  });
+    uncorrected,
+    cmc4U: main.cmc4,
+    wakeCd: cdU,
+    wakeCaptured: wake?.captured ?? false,
+    walls,
+    signaturePlan: L.signature,
+  };
+  const correction = correctionFor(inp.correct, correctionInputs)
+    ?? correctionFor({ ...inp.correct, method: 'barlow-rae-pope' }, correctionInputs)!;
   const corrected = applyCorrections(uncorrected, correction, main.cmc4);
   const clMomentum = walls ? walls.clMom : NaN;
   return {
@@ -266,6 +291,7 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     uncorrected,
     corrected,
     correction,
+    correctionInputs,
     clMomentum,
     gamma: {
       pressure: gammaFromCl(main.cl, fs.V, setup.model.chord),
@@ -277,16 +303,17 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
 
 // ---------------------------------------------------------------------------------------------
 
-function fmt(x: number, d = 3): string {
-  return Number.isFinite(x) ? x.toFixed(d) : '—';
-}
-
 /** The nominal result of a run: a first pass with no taps dropped finds the bad taps, a second
  *  pass (when there are any) drops and bridges them. */
 function nominalPass(
   setup: Setup, L: Layout, run: ZeroedRun, settings: Settings,
-): { bad: BadTap[]; nominal: CoreOutput; reference: ReferenceFinding[] } {
+): { bad: BadTap[]; nominal: CoreOutput; reference: ReferenceFinding[]; choice: ReturnType<typeof correctionSet> } {
   const info = run.info;
+  const provisional: CorrectionPlan = {
+    method: settings.correction === 'none' ? 'none' : 'barlow-rae-pope',
+    maskellTheta: settings.maskellTheta,
+    maskellSource: 'pressure',
+  };
   const values = (name: string): number => {
     const x = run.values[name];
     if (x === undefined || !Number.isFinite(x)) throw new Error(`Run ${info.run}: channel ${name} has no value.`);
@@ -294,7 +321,7 @@ function nominalPass(
   };
 
   // First pass: Cp with no taps dropped, to detect bad taps.
-  const first = runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad: [] });
+  const first = runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad: [], correct: provisional });
   const zeroByTap: Record<string, number> | undefined = run.zeroRaw
     ? Object.fromEntries(L.taps.map(({ tap, ch }) => [tap.id, run.zeroRaw![ch.name]]).filter(([, z]) => Number.isFinite(z as number)))
     : undefined;
@@ -320,7 +347,7 @@ function nominalPass(
     positionU: setup.model.tapPositionUncertainty,
   });
   const nominal = bad.length
-    ? runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad })
+    ? runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad, correct: provisional })
     : first;
   // The references, row by row, from the taps kept (app/tapCheck.ts referenceCheck).
   const badIds = new Set(bad.map((b) => b.id));
@@ -335,7 +362,30 @@ function nominalPass(
     );
     if (f) reference.push(f);
   }
-  return { bad, nominal, reference };
+  // Every correction method side by side, and the one applied ('auto' resolved here, once: the
+  // Monte Carlo draws use the same method).
+  const choice = correctionSet(
+    settings.correction, nominal.correctionInputs, settings,
+    nominal.taps.filter((t) => t.row === nominal.main.row),
+    wallCpUncertainty(L, run, nominal.uncorrected.q),
+  );
+  nominal.correction = choice.correction;
+  nominal.corrected = choice.corrected;
+  return { bad, nominal, reference, choice };
+}
+
+/** Standard uncertainty of one wall Cp from the wall channels' stated uncertainty (rms over the
+ *  wall channels, with each channel's standard error), for the wall-signature fit. */
+function wallCpUncertainty(L: Layout, run: ZeroedRun, q: number): number {
+  const all = [...L.floor, ...L.ceiling];
+  if (!all.length || !(q > 0)) return 0;
+  let s = 0;
+  for (const { ch } of all) {
+    const ui = instrumentStd(ch.uncertainty, run.values[ch.name] ?? 0, L.scale.get(ch.name) ?? 1);
+    const se = run.stats[ch.name]?.stdErr ?? 0;
+    s += ui * ui + se * se;
+  }
+  return Math.sqrt(s / all.length) / q;
 }
 
 /** How reduceRun evaluates the Monte Carlo draws: 'plan' (default) by the per-run plan of
@@ -349,7 +399,7 @@ export interface ReduceOptions {
 export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, options: ReduceOptions = {}): RunResult {
   const L = layoutOf(setup);
   const info = run.info;
-  const { bad, nominal, reference } = nominalPass(setup, L, run, settings);
+  const { bad, nominal, reference, choice } = nominalPass(setup, L, run, settings);
 
   // Flags.
   const flags: Flag[] = [];
@@ -365,63 +415,42 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
   if (cross) flags.push(cross);
   if (nominal.wake && !nominal.wake.captured) {
     const [lo, hi] = nominal.wake.edgeCpt;
-    flags.push({
-      code: 'wake-not-captured',
-      severity: 'reject',
-      reason: `Wake not captured by the rake: edge total pressure (H − p∞)/q∞ = ${fmt(lo, 4)} (lower) and ${fmt(hi, 4)} (upper), which should be within ${settings.wakeEdgeTol} of 1 with the largest deficit inside the rake; the deficit peaks at y = ${fmt(peakY(nominal.wake) * 1000, 0)} mm. The wake drag (cd = ${fmt(nominal.wake.cd, 4)}) is not reliable.`,
-    });
+    flags.push(makeFlag('wake-not-captured', { edgeLo: lo, edgeHi: hi, tol: settings.wakeEdgeTol, peakMm: peakY(nominal.wake) * 1000, cd: nominal.wake.cd }));
   }
   const qStats = run.stats[L.dpRef.name];
   if (qStats) {
     const u = unsteadiness(qStats);
     if (u > settings.unsteadyThreshold) {
-      flags.push({
-        code: 'unsteady',
-        severity: 'warn',
-        reason: `Unsteady run: the reference pressure fluctuates by ${fmt(u * 100, 1)} % (std/mean), above the ${fmt(settings.unsteadyThreshold * 100, 1)} % limit.`,
-      });
+      flags.push(makeFlag('unsteady', { fraction: u, limit: settings.unsteadyThreshold }));
     }
   }
   const leaks = bad.filter((b) => b.reason === 'leak');
   if (leaks.length) {
-    flags.push({
-      code: 'leaking-tap',
-      severity: 'warn',
-      reason: `Leaking tap${leaks.length > 1 ? 's' : ''} ${leaks.map((b) => b.id).join(', ')}: the wind-off zero sits more than ${settings.leakPa} Pa from the other taps'; dropped and bridged.`,
-    });
+    flags.push(makeFlag('leaking-tap', { taps: leaks.map((b) => b.id), leakPa: settings.leakPa }));
   }
   // Taps the user marked are bridged without a flag: the user already knows about them.
   const others = bad.filter((b) => b.reason !== 'leak' && b.reason !== 'marked');
   if (others.length) {
-    flags.push({
-      code: 'bad-tap',
-      severity: 'warn',
-      reason: `Bad tap${others.length > 1 ? 's' : ''} dropped and bridged (a suggestion to confirm or keep): ${others.map((b) => `${b.id} (${badWords(b)})`).join(', ')}.`,
-    });
+    flags.push(makeFlag('bad-tap', { taps: others.map((b) => ({ id: b.id, reason: b.reason, ...(b.verdict ?? {}) })) }));
   }
   if (reference.length) flags.push(referenceFlag(reference));
   if (!run.zeroRuns.length) {
-    flags.push({ code: 'no-zero', severity: 'warn', reason: 'No wind-off zero was found for this run; channels are not zero-corrected.' });
+    flags.push(makeFlag('no-zero', {}));
   } else {
     const limit = settings.zeroDriftFraction * nominal.uncorrected.q;
     const drifting = Object.entries(run.drift).filter(([n, d]) => L.scale.has(n) && !L.angle.has(n) && Math.abs(d) > limit);
     if (drifting.length) {
       const worst = drifting.reduce((a, b) => (Math.abs(b[1]) > Math.abs(a[1]) ? b : a));
-      flags.push({
-        code: 'zero-drift',
-        severity: 'warn',
-        reason: `Zero drift: ${drifting.length} channel${drifting.length > 1 ? 's' : ''} changed by more than ${fmt(settings.zeroDriftFraction * 100, 1)} % of q between the wind-off zeros (runs ${run.zeroRuns.join(' and ')}); largest ${worst[0]} ${fmt(worst[1], 1)} Pa.`,
-      });
+      flags.push(makeFlag('zero-drift', {
+        channels: drifting.length, fraction: settings.zeroDriftFraction, zeroRuns: run.zeroRuns, worstChannel: worst[0], worstPa: worst[1],
+      }));
     }
   }
   const M = nominal.fs.M;
   if (M > settings.machLimit) {
-    flags.push({
-      code: 'compressible',
-      severity: 'warn',
-      reason: `Mach ${fmt(M, 3)} exceeds ${settings.machLimit}: the incompressible reduction is no longer adequate.`,
-    });
+    flags.push(makeFlag('compressible', { M, limit: settings.machLimit }));
   }
+  if (choice.flag) flags.push(choice.flag);
   let spanwise: RunResult['spanwise'] = null;
   if (nominal.rows.length > 1) {
     const s = spanLoading(nominal.rows, setup.model.chord, setup.model.span, settings.spanSpreadTol);
@@ -431,7 +460,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
 
   // Monte Carlo uncertainty on the corrected coefficients and circulations.
   const uncertainty = settings.mcDraws > 0
-    ? runUncertainty(mcModel(setup, L, run, settings, bad, nominal, options.mcPath !== 'core'), settings, run)
+    ? runUncertainty(mcModel(setup, L, run, settings, bad, nominal, choice.plan, options.mcPath !== 'core'), settings, run)
     : {};
 
   return {
@@ -453,6 +482,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
     walls: nominal.walls,
     circulation: nominal.gamma,
     correction: nominal.correction,
+    corrections: choice.set,
     uncorrected: nominal.uncorrected,
     corrected: nominal.corrected,
     clMomentum: nominal.clMomentum,
@@ -470,29 +500,16 @@ function peakY(w: WakeResult): number {
   return best ? best.y : NaN;
 }
 
-function badWords(b: BadTap): string {
-  switch (b.reason) {
-    case 'marked': return 'marked bad by the user';
-    case 'outlier':
-      return b.verdict
-        ? `Cp ${fmt(b.verdict.residual + b.verdict.predicted, 3)} against ${fmt(b.verdict.predicted, 3)} predicted from its neighbours: off by ${fmt(b.verdict.residual, 3)}, ${fmt(b.verdict.score, 1)} × the combined uncertainty ${fmt(b.verdict.u, 3)}`
-        : 'outlier against its neighbours';
-    case 'leak': return 'leak at wind-off';
-    default: return b.reason;
-  }
-}
 
-/** The reference flag (app/tapCheck.ts referenceCheck): the same numbers as the tap table shows,
- *  Cp on the uncorrected basis (q_u) of every tap Cp. */
+/** The reference flag (app/tapCheck.ts referenceCheck): Cp on the uncorrected basis (q_u) of
+ *  every tap Cp, the same numbers as the tap table. */
 function referenceFlag(found: readonly ReferenceFinding[]): Flag {
-  const parts = found.map((f) =>
-    `Cp ${fmt(f.cp, 3)} at ${f.id} (row ${f.row}) is above the stagnation value ${fmt(f.cpStag, 4)} at M ${fmt(f.M, 3)} by ${fmt(f.cp - f.cpStag, 3)}, more than ${fmt((f.cp - f.cpStag) / f.u, 1)}× its uncertainty ${fmt(f.u, 3)}`);
   const w = found.reduce((a, b) => (b.cp > a.cp ? b : a));
-  return {
-    code: 'reference',
-    severity: 'warn',
-    reason: `${parts.join('; ')}: q about ${fmt(w.qLow * 100, 1)} % low, or the static reference about ${fmt(w.staticLowPa, 0)} Pa low. No tap can read above stagnation, so this points at the references, not the tap${found.length > 1 ? 's' : ''}; kept.`,
-  };
+  return makeFlag('reference', {
+    found: found.map((f) => ({ row: f.row, id: f.id, cp: f.cp, cpStag: f.cpStag, M: f.M, u: f.u })),
+    qLowPct: w.qLow * 100,
+    staticLowPa: w.staticLowPa,
+  });
 }
 
 type UKey = 'cl' | 'cd' | 'cdp' | 'cmc4' | 'clMom' | 'gammaPressure' | 'gammaMomentum';
@@ -522,7 +539,7 @@ export interface McModel {
 
 function mcModel(
   setup: Setup, L: Layout, run: ZeroedRun, settings: Settings, bad: { id: string; reason: string }[],
-  nominal: CoreOutput, usePlan: boolean,
+  nominal: CoreOutput, correct: CorrectionPlan, usePlan: boolean,
 ): McModel {
   const names = setup.channels.map((c) => c.name).filter((n) => run.values[n] !== undefined);
   const sdByName = new Map<string, number>();
@@ -543,7 +560,7 @@ function mcModel(
   const values = (n: string) => perturbed[n];
   const core = (vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number): Record<UKey, number> => {
     for (let k = 0; k < names.length; k++) perturbed[names[k]] = vals[k];
-    const out = runCore(setup, L, run.info, settings, { values, alphaDeg, kq, tapDx, bad });
+    const out = runCore(setup, L, run.info, settings, { values, alphaDeg, kq, tapDx, bad, correct });
     return {
       cl: out.corrected.cl,
       cd: out.corrected.cd,
@@ -556,7 +573,7 @@ function mcModel(
   };
 
   const plan: McPlan | null = usePlan
-    ? buildMcPlan(setup, planLayout(L), run.info, settings.correction, bad, {
+    ? buildMcPlan(setup, planLayout(L), run.info, correct, bad, {
         mainRow: nominal.main.row,
         walls: nominal.walls,
         rule: settings.contourRule,
@@ -613,6 +630,7 @@ function planLayout(L: Layout): PlanLayout {
     ceiling: L.ceiling.map((c) => ({ x: c.x, ch: c.ch.name })),
     mainRow: L.mainRow,
     areaC2: L.areaC2,
+    signature: L.signature,
   };
   planLayouts.set(L, P);
   return P;
@@ -639,8 +657,8 @@ function runUncertainty(m: McModel, settings: Settings, run: ZeroedRun): Partial
  */
 export function uncertaintyModel(setup: Setup, run: ZeroedRun, settings: Settings, usePlan = true): McModel {
   const L = layoutOf(setup);
-  const { bad, nominal } = nominalPass(setup, L, run, settings);
-  return mcModel(setup, L, run, settings, bad, nominal, usePlan);
+  const { bad, nominal, choice } = nominalPass(setup, L, run, settings);
+  return mcModel(setup, L, run, settings, bad, nominal, choice.plan, usePlan);
 }
 
 // ---------------------------------------------------------------------------------------------

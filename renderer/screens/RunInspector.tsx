@@ -8,6 +8,7 @@ import type { RunRowLike, Results } from '../../main/contract';
 import type { Interval, RunResult, TapCp } from '../../app/types';
 import { correctedMomentumCl } from '../../app/reduce';
 import { liftTolerance } from '../../app/crosscheck';
+import { flagLine } from '../../app/flags';
 import type { SessionData } from '../session';
 import { useApi, useStatus, quiet } from '../context';
 import { reduceInWorker } from '../workerClient';
@@ -15,6 +16,7 @@ import { badTapIds, cpChartConfig, rowsOf, wakeChartConfig, wallChartConfig } fr
 import { Plot } from '../components/Plot';
 import { FlagReasons } from '../components/FlagBadge';
 import { ReviewPanel } from '../components/ReviewPanel';
+import { CorrectionCompare } from '../components/CorrectionCompare';
 import { fix, isNum, reMillions, sig, when } from '../format';
 
 export interface TapChange {
@@ -221,10 +223,8 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
               <tr><th scope="row">Re [×10⁶]</th><td className="num">{reMillions(u.Re)}</td><td className="num">{reMillions(k.Re)}</td><td></td></tr>
             </tbody>
           </table>
-          <p className="small muted">
-            Wall correction: {result.correction.method}; σ = {sig(result.correction.sigma, 3)}, ε<sub>sb</sub> = {sig(result.correction.epsSb, 3)}, ε<sub>wb</sub> = {sig(result.correction.epsWb, 3)}.
-            {' '}Intervals: Monte Carlo, {result.settings.mcDraws} draws.
-          </p>
+          <p className="small muted">Intervals: Monte Carlo, {result.settings.mcDraws} draws.</p>
+          <CorrectionCompare result={result} />
 
           <h3>Circulation (Kutta–Joukowski)</h3>
           <table className="coef">
@@ -317,7 +317,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
             <thead><tr><th scope="col">reduced</th><th scope="col">core</th><th scope="col" className="num">c<sub>l</sub></th><th scope="col" className="num">c<sub>d</sub></th><th scope="col">flags</th></tr></thead>
             <tbody>
               {got.history.map((h) => (
-                <tr key={h.resultId}><td>{when(h.reducedAt)}</td><td>{h.coreVersion}</td><td className="num">{fix(h.cl, 4)}</td><td className="num">{fix(h.cd, 5)}</td><td>{h.flags.map((f) => f.code).join(', ') || '–'}</td></tr>
+                <tr key={h.resultId}><td>{when(h.reducedAt)}</td><td>{h.coreVersion}</td><td className="num">{fix(h.cl, 4)}</td><td className="num">{fix(h.cd, 5)}</td><td>{h.flags.map((f) => flagLine(f, 'short')).join('; ') || '–'}</td></tr>
               ))}
             </tbody>
           </table>
