@@ -15,6 +15,7 @@ import { freeStream } from './air';
 import { averageRun, applyZeros, unsteadiness } from './samples';
 import { detectBadTaps, reduceSurface, type BadTap } from './surface';
 import { referenceCheck, type ReferenceFinding } from './tapCheck';
+import { sessionFindings } from './sessionFaults';
 import { inviscidCp } from './panel';
 import { spanLoading, completeRow } from './spanwise';
 import { jonesDrag, interpolateStatic } from './wake';
@@ -426,12 +427,12 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
   }
   const leaks = bad.filter((b) => b.reason === 'leak');
   if (leaks.length) {
-    flags.push(makeFlag('leaking-tap', { taps: leaks.map((b) => b.id), leakPa: settings.leakPa }));
+    flags.push({ ...makeFlag('leaking-tap', { taps: leaks.map((b) => b.id), leakPa: settings.leakPa }), taps: leaks.map((b) => b.id) });
   }
   // Taps the user marked are bridged without a flag: the user already knows about them.
   const others = bad.filter((b) => b.reason !== 'leak' && b.reason !== 'marked');
   if (others.length) {
-    flags.push(makeFlag('bad-tap', { taps: others.map((b) => ({ id: b.id, reason: b.reason, ...(b.verdict ?? {}) })) }));
+    flags.push({ ...makeFlag('bad-tap', { taps: others.map((b) => ({ id: b.id, reason: b.reason, ...(b.verdict ?? {}) })) }), taps: others.map((b) => b.id) });
   }
   if (reference.length) flags.push(referenceFlag(reference));
   if (!run.zeroRuns.length) {
@@ -722,6 +723,7 @@ export function summariseSession(setup: Setup, results: ResultDigest[], infos: R
   return {
     stats,
     flagged: rows.filter(({ r }) => r.flags.length).map(({ r }) => ({ run: r.run, flags: r.flags })),
+    ...sessionFindings(rows.map(({ r }) => r)),
     conditions: rows.length ? { qMin, qMax, ReMin, ReMax, alphaMin, alphaMax, tempMin, tempMax, baroMin, baroMax } : null,
     polar,
     span,

@@ -286,6 +286,8 @@ export interface Flag {
   reason: string;
   /** 'warn': look at it; 'reject': do not use without review. */
   severity: 'warn' | 'reject';
+  /** Taps the flag is about (leaking-tap, bad-tap), for the session-level findings. */
+  taps?: string[];
 }
 
 /** A value with its Monte Carlo 95 % coverage interval. */
@@ -529,6 +531,17 @@ export interface SessionConditions {
   baroMin: number; baroMax: number;
 }
 
+/** A fault seen on most runs of a session (app/sessionFaults.ts). */
+export interface SessionFinding {
+  code: 'leaking-tap' | 'bad-tap';
+  tap: string;
+  /** Runs carrying it, and the data runs it was looked for on. */
+  runs: number[];
+  of: number;
+  /** One sentence, e.g. "C19 leaks in every wind-off zero, runs 1–52; dropped from all runs". */
+  text: string;
+}
+
 /** What the session reducer returns (app/reduce.ts summariseSession). */
 export interface SessionSummary {
   stats: SessionStats | null;
@@ -536,6 +549,10 @@ export interface SessionSummary {
   conditions: SessionConditions | null;
   /** Corrected coefficients of every reduced data run, in time order. */
   polar: PolarPoint[];
+  /** Faults that persist across the session, each reported once (app/sessionFaults.ts). */
+  findings?: SessionFinding[];
+  /** Runs whose flags are not all explained by a session finding: the runs needing a decision. */
+  needsDecision?: number[];
   /** Span loading of every run with several rows. */
   span: { run: number; alphaDeg: number; z: number[]; cl: number[]; CL: number }[];
 }

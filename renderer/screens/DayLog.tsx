@@ -86,9 +86,16 @@ export function DayLog({ data, selected, onSelect, onOpen, reload, live }: DayLo
           <div><dt>p<sub>baro</sub></dt><dd>{c ? range(c.baroMin / 100, c.baroMax / 100, 1, 'hPa') : '–'}</dd></div>
           <div><dt>Runs</dt><dd>{session.runCount} ({session.dataRunCount} data)</dd></div>
           <div><dt>Flagged</dt><dd className={flaggedCount ? 'warn-text' : undefined}>{flaggedCount}</dd></div>
+          {summary?.needsDecision ? <div title="Runs with a flag that no session finding explains"><dt>Need a decision</dt><dd className={summary.needsDecision.length ? 'warn-text' : undefined}>{summary.needsDecision.length}</dd></div> : null}
           <div><dt>Reviewed</dt><dd>{reviewed}</dd></div>
         </dl>
       </header>
+      {summary?.findings?.length ? (
+        <div className="notice session-findings" role="status">
+          <b>Session findings</b> (reported once; on each run they are a note, not a decision):
+          <ul>{summary.findings.map((f) => <li key={`${f.code}:${f.tap}`}>{f.text}</li>)}</ul>
+        </div>
+      ) : null}
 
       <div className="toolbar" role="toolbar" aria-label="Run table tools">
         <label><input type="checkbox" checked={showZeros} onChange={(e) => setShowZeros(e.target.checked)} /> wind-off zeros</label>

@@ -1,0 +1,63 @@
+// Faults that persist across a session (issue 9, common practice, no source): a tap dropped as
+// leaking (its wind-off zero off the others') or as an outlier on most data runs is one fault of the
+// day, reported once, not a decision per run. A finding needs the same tap in the same flag code on
+// at least FINDING_SHARE of the data runs, and on 3 runs or more. The runs' own flags stay as they
+// are (the record of each run is unchanged); the summary lists the findings and the runs still
+// needing a decision: those with a flag that no finding explains (a flag is explained when it is a
+// leaking-tap or bad-tap flag all of whose taps are session findings of that code).
+import type { Flag, ResultDigest, SessionFinding } from './types';
+
+/** Share of the data runs a tap fault must be seen on to be a session finding. */
+export const FINDING_SHARE = 0.8;
+
+function ranges(runs: readonly number[]): string {
+  const s = [...runs].sort((a, b) => a - b);
+  const out: string[] = [];
+  for (let i = 0; i < s.length; ) {
+    let j = i;
+    while (j + 1 < s.length && s[j + 1] === s[j] + 1) j++;
+    out.push(j > i ? `${s[i]}–${s[j]}` : `${s[i]}`);
+    i = j + 1;
+  }
+  return out.join(', ');
+}
+
+export function sessionFindings(results: readonly Pick<ResultDigest, 'run' | 'flags'>[]): {
+  findings: SessionFinding[];
+  needsDecision: number[];
+} {
+  const n = results.length;
+  const seen = new Map<string, { code: 'leaking-tap' | 'bad-tap'; tap: string; runs: number[] }>();
+  for (const r of results) {
+    for (const f of r.flags) {
+      if ((f.code !== 'leaking-tap' && f.code !== 'bad-tap') || !f.taps) continue;
+      for (const tap of f.taps) {
+        const key = `${f.code}\u0000${tap}`;
+        const e = seen.get(key) ?? { code: f.code, tap, runs: [] };
+        e.runs.push(r.run);
+        seen.set(key, e);
+      }
+    }
+  }
+  const findings: SessionFinding[] = [];
+  for (const e of seen.values()) {
+    if (e.runs.length < 3 || e.runs.length < FINDING_SHARE * n) continue;
+    const all = e.runs.length === n;
+    const where = `${all ? 'every data run' : `${e.runs.length} of ${n} data runs`}, runs ${ranges(e.runs)}`;
+    findings.push({
+      code: e.code,
+      tap: e.tap,
+      runs: e.runs,
+      of: n,
+      text: e.code === 'leaking-tap'
+        ? `${e.tap} leaks in the wind-off zeros of ${where}; dropped from ${all ? 'all those runs' : 'those runs'}.`
+        : `${e.tap} is an outlier against its neighbours on ${where}; dropped from those runs (confirm it as a bad tap, or look at it).`,
+    });
+  }
+  findings.sort((a, b) => (a.tap < b.tap ? -1 : a.tap > b.tap ? 1 : 0));
+  const known = new Set(findings.map((f) => `${f.code}\u0000${f.tap}`));
+  const explained = (f: Flag) =>
+    (f.code === 'leaking-tap' || f.code === 'bad-tap') && !!f.taps?.length && f.taps.every((t) => known.has(`${f.code}\u0000${t}`));
+  const needsDecision = results.filter((r) => r.flags.some((f) => !explained(f))).map((r) => r.run);
+  return { findings, needsDecision };
+}

@@ -1,0 +1,49 @@
+// Session-level persistent faults (issue 9; app/sessionFaults.ts, common practice, no source):
+// on the demo day (invented scenario, resources/demo/scenario.ts) the leaking tap is one session
+// finding, the planted per-run faults are still flagged on exactly their runs, and the runs
+// needing a decision are the runs of the planted faults only.
+import { beforeAll, describe, expect, it } from 'vitest';
+import { demoSession, type DemoSession } from '../resources/demo/scenario';
+import { reduceRawSession } from '../app/reduce';
+import { sessionFindings } from '../app/sessionFaults';
+import type { RunResult, SessionSummary } from '../app/types';
+
+let demo: DemoSession;
+let results: RunResult[];
+let summary: SessionSummary;
+
+beforeAll(() => {
+  demo = demoSession();
+  ({ results, summary } = reduceRawSession(demo.setup, [...demo.runs()], { mcDraws: 0 }));
+});
+
+describe('demo day: persistent faults', () => {
+  it('the leaking tap is one session finding, on every data run', () => {
+    const leak = demo.faults.find((f) => f.code === 'leaking-tap')!;
+    expect(summary.findings).toHaveLength(1);
+    const f = summary.findings![0];
+    expect(f.code).toBe('leaking-tap');
+    expect(f.tap).toBe(leak.tap);
+    expect(f.runs).toEqual(results.map((r) => r.run));
+    expect(f.text).toContain(leak.tap!);
+    expect(f.text).toMatch(/every data run/);
+  });
+
+  it('the runs needing a decision are exactly the runs of the planted per-run faults', () => {
+    const perRun = new Set(demo.faults.filter((f) => f.code !== 'leaking-tap').flatMap((f) => f.runs));
+    expect(summary.needsDecision).toEqual(results.map((r) => r.run).filter((r) => perRun.has(r)));
+    // Every run still carries its own leaking-tap flag in its record.
+    expect(results.every((r) => r.flags.some((x) => x.code === 'leaking-tap'))).toBe(true);
+  });
+
+  it('a tap fault on fewer than 80 % of the runs is no finding, and its runs need a decision', () => {
+    const flag = (run: number, taps: string[]) => ({ run, flags: [{ code: 'bad-tap' as const, severity: 'warn' as const, reason: 'x', taps }] });
+    const rs = [flag(1, ['C07']), flag(2, ['C07']), flag(3, ['C07']), { run: 4, flags: [] }, { run: 5, flags: [] }];
+    const r = sessionFindings(rs);
+    expect(r.findings).toEqual([]);
+    expect(r.needsDecision).toEqual([1, 2, 3]);
+    const r2 = sessionFindings([...rs.slice(0, 3), flag(4, ['C07', 'C11']), flag(5, ['C07'])]);
+    expect(r2.findings.map((f) => f.tap)).toEqual(['C07']);
+    expect(r2.needsDecision).toEqual([4]);
+  });
+});
