@@ -427,12 +427,12 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
   }
   const leaks = bad.filter((b) => b.reason === 'leak');
   if (leaks.length) {
-    flags.push({ ...makeFlag('leaking-tap', { taps: leaks.map((b) => b.id), leakPa: settings.leakPa }), taps: leaks.map((b) => b.id) });
+    flags.push(makeFlag('leaking-tap', { taps: leaks.map((b) => b.id), leakPa: settings.leakPa }));
   }
   // Taps the user marked are bridged without a flag: the user already knows about them.
   const others = bad.filter((b) => b.reason !== 'leak' && b.reason !== 'marked');
   if (others.length) {
-    flags.push({ ...makeFlag('bad-tap', { taps: others.map((b) => ({ id: b.id, reason: b.reason, ...(b.verdict ?? {}) })) }), taps: others.map((b) => b.id) });
+    flags.push(makeFlag('bad-tap', { taps: others.map((b) => ({ id: b.id, reason: b.reason, ...(b.verdict ?? {}) })) }));
   }
   if (reference.length) flags.push(referenceFlag(reference));
   if (!run.zeroRuns.length) {

@@ -22,7 +22,14 @@ function ranges(runs: readonly number[]): string {
   return out.join(', ');
 }
 
-export function sessionFindings(results: readonly Pick<ResultDigest, 'run' | 'flags'>[]): {
+const CODE_OF: Record<string, 'leaking-tap' | 'bad-tap'> = { leak: 'leaking-tap', outlier: 'bad-tap' };
+
+/** The taps behind a run's leaking-tap and bad-tap flags: its automatic drops by flag code. */
+function tapsOf(r: Pick<ResultDigest, 'dropped'>, code: string): string[] {
+  return (r.dropped ?? []).filter((d) => d.by === 'auto' && CODE_OF[d.reason] === code).map((d) => d.id);
+}
+
+export function sessionFindings(results: readonly Pick<ResultDigest, 'run' | 'flags' | 'dropped'>[]): {
   findings: SessionFinding[];
   needsDecision: number[];
 } {
@@ -30,8 +37,8 @@ export function sessionFindings(results: readonly Pick<ResultDigest, 'run' | 'fl
   const seen = new Map<string, { code: 'leaking-tap' | 'bad-tap'; tap: string; runs: number[] }>();
   for (const r of results) {
     for (const f of r.flags) {
-      if ((f.code !== 'leaking-tap' && f.code !== 'bad-tap') || !f.taps) continue;
-      for (const tap of f.taps) {
+      if (f.code !== 'leaking-tap' && f.code !== 'bad-tap') continue;
+      for (const tap of tapsOf(r, f.code)) {
         const key = `${f.code}\u0000${tap}`;
         const e = seen.get(key) ?? { code: f.code, tap, runs: [] };
         e.runs.push(r.run);
@@ -56,8 +63,11 @@ export function sessionFindings(results: readonly Pick<ResultDigest, 'run' | 'fl
   }
   findings.sort((a, b) => (a.tap < b.tap ? -1 : a.tap > b.tap ? 1 : 0));
   const known = new Set(findings.map((f) => `${f.code}\u0000${f.tap}`));
-  const explained = (f: Flag) =>
-    (f.code === 'leaking-tap' || f.code === 'bad-tap') && !!f.taps?.length && f.taps.every((t) => known.has(`${f.code}\u0000${t}`));
-  const needsDecision = results.filter((r) => r.flags.some((f) => !explained(f))).map((r) => r.run);
+  const explained = (r: Pick<ResultDigest, 'dropped'>, f: Flag) => {
+    if (f.code !== 'leaking-tap' && f.code !== 'bad-tap') return false;
+    const taps = tapsOf(r, f.code);
+    return taps.length > 0 && taps.every((t) => known.has(`${f.code}\u0000${t}`));
+  };
+  const needsDecision = results.filter((r) => r.flags.some((f) => !explained(r, f))).map((r) => r.run);
   return { findings, needsDecision };
 }

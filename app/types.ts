@@ -286,8 +286,6 @@ export interface Flag {
   reason: string;
   /** 'warn': look at it; 'reject': do not use without review. */
   severity: 'warn' | 'reject';
-  /** Taps the flag is about (leaking-tap, bad-tap), for the session-level findings. */
-  taps?: string[];
 }
 
 /** A value with its Monte Carlo 95 % coverage interval. */
@@ -489,6 +487,8 @@ export interface RunResult {
 /** What the session summary (app/reduce.ts summariseSession) needs of a run's result: the store
  *  keeps it beside the full result, so a summary never decodes every stored result. */
 export type ResultDigest = Pick<RunResult, 'run' | 'corrected' | 'uncorrected' | 'correction' | 'clMomentum' | 'flags'> & {
+  /** Taps dropped (who and why), for the session findings (app/sessionFaults.ts). */
+  dropped?: Pick<DroppedTap, 'id' | 'reason' | 'by'>[];
   rows: Pick<RowLoads, 'row' | 'z' | 'cl'>[];
   settings: Pick<Settings, 'spanSpreadTol'>;
 };

@@ -1031,6 +1031,7 @@ export function resultDigest(r: RunResult): ResultDigest {
     correction: r.correction,
     clMomentum: r.clMomentum,
     flags: r.flags,
+    ...(r.dropped ? { dropped: r.dropped.map((d) => ({ id: d.id, reason: d.reason, by: d.by })) } : {}),
     rows: r.rows.map((x) => ({ row: x.row, z: x.z, cl: x.cl })),
     settings: { spanSpreadTol: r.settings.spanSpreadTol },
   };

@@ -37,7 +37,11 @@ describe('demo day: persistent faults', () => {
   });
 
   it('a tap fault on fewer than 80 % of the runs is no finding, and its runs need a decision', () => {
-    const flag = (run: number, taps: string[]) => ({ run, flags: [{ code: 'bad-tap' as const, severity: 'warn' as const, reason: 'x', taps }] });
+    const flag = (run: number, taps: string[]) => ({
+      run,
+      flags: [{ code: 'bad-tap' as const, severity: 'warn' as const, reason: 'x' }],
+      dropped: taps.map((id) => ({ id, reason: 'outlier', by: 'auto' as const })),
+    });
     const rs = [flag(1, ['C07']), flag(2, ['C07']), flag(3, ['C07']), { run: 4, flags: [] }, { run: 5, flags: [] }];
     const r = sessionFindings(rs);
     expect(r.findings).toEqual([]);
