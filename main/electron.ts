@@ -13,6 +13,7 @@ import {
   createHandlers, dispatch, disposeHandlers, ensureDemoSession, osActor, progressEmitter,
   type Emit, type Handlers, type Paper,
 } from './handlers';
+import { repairOnStart } from './repair';
 import { installMenu, type MenuCommand } from './menu';
 import { MIME, SECURITY_HEADERS, resolveStatic } from './static';
 
@@ -167,6 +168,7 @@ async function boot(): Promise<void> {
   } catch (e) {
     console.error('rakeline: could not import the demo session:', e);
   }
+  await repairOnStart(store, actor);
   handlers = createHandlers({
     store, mode: 'electron', emit, demoSessionId, actor, pickFolder, printPdf,
     onChange: () => void refreshMenu(),

@@ -16,7 +16,7 @@ import { parseRunIndexDetailed } from '../app/log/runIndex';
 import {
   INDEX_FILE, SETUP_FILE, missingFileError, parseSessionTexts, planRunFiles, type RunFilePlan,
 } from '../app/log/session';
-import type { ImportProgress, ImportReport, ParsedSession, SourceInfo, Store } from './store';
+import { isDiskFull, StoreFullError, type ImportProgress, type ImportReport, type ParsedSession, type SourceInfo, type Store } from './store';
 import { RunFileReader, type PreparedFile } from './runFile';
 import { ImportPool, workersFor } from './importPool';
 import { BufferPool } from '../app/bufferPool';
@@ -227,6 +227,7 @@ export async function importSession(store: Store, src: SessionSource, opts: Impo
     return report;
   } catch (e) {
     writer.abort();
+    if (isDiskFull(e) && !(e instanceof StoreFullError)) throw new StoreFullError(store.file, e instanceof Error ? e.message : String(e), 'import');
     throw e;
   } finally {
     if (pool) void pool.close();
@@ -287,13 +288,16 @@ async function readOnWorkers(
   };
   let k = 0;
   let broken: { error: unknown } | null = null;
+  let storing = false;
   try {
     const window = 2 * workers + 2;
     for (let j = 0; j < Math.min(window, head.plans.length); j++) start(j);
     for (; k < head.plans.length; k++) {
       const f = await started[k];
       delete started[k];
-      onFile(f);
+      storing = true;
+      onFile(f); // a failure to store (disk full, …) is the import's answer, not the threads'
+      storing = false;
       pool.recycle(packedBuffers(f)); // stored: back to a thread, to pack its next runs into
       if (k + window < head.plans.length) start(k + window);
     }
@@ -301,7 +305,7 @@ async function readOnWorkers(
     await pool.close();
     // Bad input is the import's answer; a worker that could not start or died is not: the rest
     // of the run logs are then read on this thread (progress counted again from there).
-    if (isLogError(e) || k >= head.plans.length) throw e;
+    if (isLogError(e) || storing || k >= head.plans.length) throw e;
     broken = { error: e };
   }
   if (broken === null) return pool;
