@@ -410,8 +410,11 @@ export class Store {
 
   private static openReadOnly(path: string): Store {
     if (!existsSync(path)) throw new Error(`no database at ${path}`);
-    const connect = (f: string) => {
-      const db = new Database(f, { readonly: true, fileMustExist: true });
+    // On a writable folder a read-write connection that never writes: a read-only one would
+    // leave its -wal and -shm files behind when it closes.
+    const writable = !notWritable(path) && !notWritable(dirname(path));
+    const connect = (f: string, readonly = !writable) => {
+      const db = new Database(f, { readonly, fileMustExist: true });
       try {
         checkVersion(path, db, true);
         db.pragma('foreign_keys = ON');
@@ -429,7 +432,7 @@ export class Store {
         db = connect(path);
       } catch (e) {
         // An older schema on a writable file is upgraded first, as a writing open would.
-        if (!(e instanceof StoreVersionError) || !/is older/.test(e.message) || notWritable(path) || notWritable(dirname(path))) throw e;
+        if (!(e instanceof StoreVersionError) || !/is older/.test(e.message) || !writable) throw e;
         Store.open(path).close();
         db = connect(path);
       }
@@ -443,7 +446,7 @@ export class Store {
         const copy = join(copyDir, basename(path));
         copyFileSync(path, copy);
         if (existsSync(`${path}-wal`)) copyFileSync(`${path}-wal`, `${copy}-wal`);
-        db = connect(copy);
+        db = connect(copy, true);
       } catch (e2) {
         rmSync(copyDir, { recursive: true, force: true });
         throw storeOpenError(path, e2);
