@@ -1,4 +1,6 @@
 // Issue 12, failures 1, 5 and 8, on real files and a real SQLite database:
+// (5) a run log that is a symbolic link loop, or a link out of the session folder, is refused
+//     naming runs.csv, the line and the column; a link inside the folder is followed;
 // (1) a malformed run log read on import threads fails with the very message (and fields: file,
 //     line, channel, reason) it gives on the calling thread — the reason survives the trip;
 // (8) ignored extra columns (run logs and the index) and values too small for a double are
@@ -6,7 +8,7 @@
 //     error (file and line) and a failed first ingest leaves no database file.
 // Each refused import leaves the database as it was; once the file is mended, the same import
 // gives what an undisturbed one gives.
-import { existsSync, readdirSync } from 'node:fs';
+import { copyFileSync, existsSync, mkdirSync, readdirSync, renameSync, rmSync, symlinkSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Store } from '../main/store';
@@ -120,3 +122,72 @@ describe('(8) what is read with a reservation is said so', () => {
   }, 120_000);
 });
 
+
+describe('(5) symbolic links', () => {
+  const lineOf = (run: number) => 2 + base.index.findIndex((i) => i.run === run);
+  const fileOf = (run: number) => base.index.find((i) => i.run === run)!.file!;
+
+  async function refusedThenMended(folder: string, expected: string, mend: () => void): Promise<void> {
+    const file = join(tempDir('rk-link-db-'), 'l.sqlite');
+    const store = Store.open(file);
+    try {
+      const before = dbContents(store);
+      for (const workers of [0, 2]) {
+        const e = await importSessionFolder(store, folder, { workers }).then(() => null, (x: unknown) => x);
+        expect(e).toBeInstanceOf(LogError);
+        expect((e as LogError).message).toBe(expected);
+        expect(dbContents(store)).toEqual(before);
+      }
+      mend();
+      await importSessionFolder(store, folder, { actor: 'import' });
+      await store.settled();
+    } finally {
+      store.close();
+    }
+    const ref = join(tempDir('rk-link-ref-'), 'r.sqlite');
+    const r = Store.open(ref);
+    try {
+      await importSessionFolder(r, folder, { actor: 'import' });
+    } finally {
+      r.close();
+    }
+    expect(dbHolds(file)).toEqual(dbHolds(ref));
+  }
+
+  it('a run log that is a symbolic link loop: runs.csv line and column named, nothing stored; mended, the import is as undisturbed', async () => {
+    const folder = copyFolder(base.dir, join(dir, 'loop'));
+    const name = fileOf(3);
+    const real = join(dir, 'loop-saved.csv');
+    renameSync(join(folder, name), real);
+    symlinkSync(join(folder, name), join(folder, name)); // a link to itself
+    await refusedThenMended(
+      folder,
+      `runs.csv line ${lineOf(3)}, column file: the file "${name}" is a symbolic link loop (a link that leads back to itself); expected a file inside the session folder`,
+      () => {
+        rmSync(join(folder, name));
+        renameSync(real, join(folder, name));
+      },
+    );
+  }, 60_000);
+
+  it('a run log linked to a file outside the session folder is refused even when its content is right; a link inside the folder is followed', async () => {
+    const folder = copyFolder(base.dir, join(dir, 'escape'));
+    const name = fileOf(4);
+    const outside = join(dir, 'elsewhere');
+    mkdirSync(outside, { recursive: true });
+    copyFileSync(join(folder, name), join(outside, 'same-bytes.csv')); // the very bytes: only the path can stop it
+    rmSync(join(folder, name));
+    symlinkSync(join(outside, 'same-bytes.csv'), join(folder, name));
+    await refusedThenMended(
+      folder,
+      `runs.csv line ${lineOf(4)}, column file: the file "${name}" is a link to ${join(outside, 'same-bytes.csv')}, outside the session folder; expected a file inside the session folder`,
+      () => {
+        rmSync(join(folder, name));
+        // inside the folder: kept under another name, linked (relative link) — followed
+        mkdirSync(join(folder, 'kept'), { recursive: true });
+        copyFileSync(join(outside, 'same-bytes.csv'), join(folder, 'kept', 'r4.csv'));
+        symlinkSync(join('..', 'kept', 'r4.csv'), join(folder, name));
+      },
+    );
+  }, 60_000);
+});
