@@ -28,36 +28,26 @@ export interface WebPrefs {
   javascript?: boolean;
 }
 
+/** What every window has: isolated, sandboxed, no Node, web security on, no webviews. */
+const LOCKED = {
+  contextIsolation: true,
+  sandbox: true,
+  nodeIntegration: false,
+  nodeIntegrationInWorker: false,
+  webSecurity: true,
+  allowRunningInsecureContent: false,
+  webviewTag: false,
+  spellcheck: false,
+} as const;
+
 /** webPreferences of the main window; `dev`: a development build (not app.isPackaged). */
 export function mainWindowPreferences(preload: string, dev: boolean): WebPrefs {
-  return {
-    preload,
-    contextIsolation: true,
-    sandbox: true,
-    nodeIntegration: false,
-    nodeIntegrationInWorker: false,
-    webSecurity: true,
-    allowRunningInsecureContent: false,
-    webviewTag: false,
-    spellcheck: false,
-    devTools: dev,
-  };
+  return { preload, ...LOCKED, devTools: dev };
 }
 
 /** webPreferences of the hidden window that prints the day sheet: no script, no DevTools. */
 export function printWindowPreferences(): WebPrefs {
-  return {
-    javascript: false,
-    contextIsolation: true,
-    sandbox: true,
-    nodeIntegration: false,
-    nodeIntegrationInWorker: false,
-    webSecurity: true,
-    allowRunningInsecureContent: false,
-    webviewTag: false,
-    spellcheck: false,
-    devTools: false,
-  };
+  return { javascript: false, ...LOCKED, devTools: false };
 }
 
 /** Whether a request may go out: `fromPrintWindow` when the print window makes it. */
