@@ -6,7 +6,7 @@ export { Store, StoreFullError, isDiskFull } from './store';
 export { runsNeedingReduction } from './repair';
 export { importSessionFolder } from './import';
 export { reduceStoredSession, reduceStoredSessionAsync, sessionSummary } from './reduceService';
-export { daySheetHtml } from './daysheet';
+export { storedDaySheet } from './daysheetData';
 export { exportResultsCsv, exportResultsJson } from './export';
 export { runsAffectedBy } from './handlers';
 export { settingsPatchSchema } from '../app/log/schema';
