@@ -10,7 +10,8 @@ import { watch } from 'chokidar';
 import { Store, type RunRow, type ImportProgress } from './store';
 import { importSessionFolder } from './import';
 import { reduceStoredSession, reduceStoredSessionAsync, sessionSummary } from './reduceService';
-import { daySheetHtml } from './daysheet';
+import { daySheetHtml, runRanges } from './daysheet';
+import { listRunsMarked, staleRuns } from './stale';
 import { exportResultsCsv, exportResultsJson } from './export';
 import { runsAffectedBy } from './handlers';
 import pkg from '../package.json';
@@ -18,6 +19,7 @@ import { isLogError } from '../app/log/errors';
 import { settingsPatchSchema } from '../app/log/schema';
 import { correctedMomentumCl } from '../app/reduce';
 import { flagsLine } from '../app/flags';
+import { staleRunNumbers } from '../app/stale';
 import { DEFAULT_SETTINGS, type Flag, type RunResult, type Settings } from '../app/types';
 
 export const DEFAULT_DB = 'rakeline.sqlite';
@@ -178,10 +180,14 @@ export function runsTable(rows: RunRow[]): string {
     const x = r.result;
     const t = (/T(\d{2}:\d{2}:\d{2})/.exec(r.time)?.[1] ?? r.time).padEnd(8);
     const status = r.kind === 'zero' ? 'wind-off zero' : x ? flagsLine(x.flags, 'short') : 'not reduced';
-    const review = r.review ? ` [${r.review.verdict} by ${r.review.actor}]` : '';
+    const review = `${r.review ? ` [${r.review.verdict} by ${r.review.actor}]` : ''}${r.stale ? ' [stale]' : ''}`;
     return `${String(r.run).padStart(4)} ${r.kind.padEnd(4)} ${t} ${n(r.alphaDeg, 2, 6)} ${n(x?.alphaCorrDeg, 2, 6)} ${n(x?.q, 1, 7)} ${n(x ? x.Re / 1e6 : undefined, 3, 6)} ${n(x?.cl, 4, 7)} ${n(x?.clMom, 4, 7)} ${n(x?.cd, 5, 8)} ${n(x?.cmc4, 4, 7)}  ${status}${review}`;
   });
-  return [head, ...lines].join('\n');
+  const stale = staleRunNumbers(rows);
+  const note = stale.length
+    ? [`${stale.length} stale result(s), reduced with other settings, bad taps or zeros than the session's now: runs ${runRanges(stale)} (\`reduce --stale\` re-reduces them)`]
+    : [];
+  return [head, ...lines, ...note].join('\n');
 }
 
 /** One line for a reduced run (used by `reduce` and `follow`). */
@@ -374,7 +380,8 @@ Examples:
     .option('--runs <list>', 'runs to reduce, e.g. 3,5-9', parseRunList)
     .option('--set <key=value>', 'reduction setting for this reduction, repeatable (e.g. liftTolAbs=0.03, mcDraws=200, badTaps=C3,C4)', parseSetting)
     .option('--save', 'keep the --set values as the session settings (audited)')
-    .action(async (o: { runs?: number[]; set?: Partial<Settings>; save?: boolean }) => {
+    .option('--stale', 'reduce only the stale runs (reduced with other settings, bad taps or zeros than the session\'s now)')
+    .action(async (o: { runs?: number[]; set?: Partial<Settings>; save?: boolean; stale?: boolean }) => {
       await withStore(g(), false, async (store) => {
         const sid = pickSession(store, g());
         let settings = o.set;
@@ -382,12 +389,19 @@ Examples:
           store.updateSettings(sid, settings, actorOf(g()), 'rakeline reduce --save');
           settings = undefined;
         }
+        if (o.stale && o.runs) throw new UsageError('reduce: give either --runs or --stale, not both');
         if (o.runs) {
           const known = new Set(store.listRuns(sid).map((r) => r.run));
           const missing = o.runs.filter((r) => !known.has(r));
           if (missing.length) throw new InputError(`session ${sid} has no run(s) ${missing.join(', ')}`);
         }
-        await reduceAndTell(store, sid, g(), { runs: o.runs, settings });
+        const runs = o.stale ? staleRuns(store, sid) : o.runs;
+        if (o.stale && !runs?.length) return out(`session ${sid}: no stale results`);
+        await reduceAndTell(store, sid, g(), { runs, settings });
+        const nowStale = settings ? staleRuns(store, sid) : [];
+        if (nowStale.length) {
+          out(`note: ${nowStale.length} result(s) now differ from the session's settings and are marked stale (runs ${runRanges(nowStale)}); --save keeps --set values as the session's settings`);
+        }
       });
     });
 
@@ -447,11 +461,13 @@ Examples:
     .description('list the runs with their latest coefficients and flags')
     .addOption(new Option('--format <format>', 'output format').choices(['table', 'csv', 'json']).default('table'))
     .option('--flagged', 'only runs with flags')
-    .action(async (o: { format: string; flagged?: boolean }) => {
+    .option('--stale', 'only runs whose result is stale')
+    .action(async (o: { format: string; flagged?: boolean; stale?: boolean }) => {
       await withStore(g(), false, (store) => {
         const sid = pickSession(store, g());
-        let rows = store.listRuns(sid);
+        let rows = listRunsMarked(store, sid);
         if (o.flagged) rows = rows.filter((r) => r.result && r.result.flags.length);
+        if (o.stale) rows = rows.filter((r) => r.stale);
         if (o.format === 'json') return out(JSON.stringify(rows, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2));
         if (o.format === 'csv') return void process.stdout.write(exportResultsCsv(rows, store.getSetup(sid), store.latestResults(sid)));
         out(runsTable(rows));
@@ -475,7 +491,7 @@ Examples:
         const sid = pickSession(store, g());
         const text = o.format === 'json'
           ? exportResultsJson(store, sid)
-          : exportResultsCsv(store.listRuns(sid), store.getSetup(sid), store.latestResults(sid));
+          : exportResultsCsv(listRunsMarked(store, sid), store.getSetup(sid), store.latestResults(sid));
         writeOut(text, o.out, `${o.format.toUpperCase()} export`);
       });
     });
@@ -488,7 +504,7 @@ Examples:
     .action(async (o: { out?: string; paper: 'A4' | 'Letter' }) => {
       await withStore(g(), false, (store) => {
         const sid = pickSession(store, g());
-        const runs = store.listRuns(sid);
+        const runs = listRunsMarked(store, sid);
         const html = daySheetHtml({
           session: store.getSession(sid),
           setup: store.getSetup(sid),

@@ -6,6 +6,7 @@ import type { SessionRow, RunRow } from './store';
 import type { Flag, PolarPoint, RunResult, SessionSummary, Settings, Setup } from '../app/types';
 import { CORE_VERSION, DEFAULT_SETTINGS } from '../app/types';
 import { flagLabel, flagShort, severityWord, SEVERITY } from '../app/flags';
+import { staleGroups } from '../app/stale';
 import { escapeHtml, OKABE_ITO, svgPlot, type PlotPoint, type PlotSeries } from './svgplot';
 
 export interface DaySheetArgs {
@@ -115,6 +116,7 @@ function statusCell(row: RunRow): string {
   if (row.review) {
     parts.push(`reviewer ${escapeHtml(row.review.verdict)} (${escapeHtml(row.review.actor)})`);
   }
+  if (row.stale) parts.push('<b>stale</b> (see below)');
   return parts.join('; ');
 }
 
@@ -154,7 +156,16 @@ function runTable(args: DaySheetArgs, settings: Settings): string {
   return `<table class="runs">${head}<tbody>${body.join('\n')}</tbody></table>
 <p class="sub">${SEVERITY.reject.glyph} and a solid left bar: at least one ${SEVERITY.reject.word} flag (${SEVERITY.reject.meaning.toLowerCase()}); ${SEVERITY.warn.glyph} and a dashed bar: ${SEVERITY.warn.word} flags only (${SEVERITY.warn.meaning.toLowerCase()}).
 α corr, q, V, Re, cl, cd and cm are wall-corrected (${escapeHtml(CORRECTION_WORDS[settings.correction] ?? settings.correction)});
-cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl.${args.results?.length ? ' Brackets: 95 % Monte Carlo coverage interval (JCGM 101:2008).' : ''}</p>`;
+cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl.${args.results?.length ? ' Brackets: 95 % Monte Carlo coverage interval (JCGM 101:2008).' : ''}</p>${staleNote(args.runs)}`;
+}
+
+/** Runs whose results were computed with other settings, bad taps or zeros than those in force
+ *  (app/stale.ts): listed under the run table with the reasons. */
+export function staleNote(runs: RunRow[]): string {
+  const groups = staleGroups(runs);
+  if (!groups.length) return '';
+  return `<p class="sub stale-note"><b>Stale results</b>, reduced with other settings, bad taps or zeros than those printed on this sheet: ${groups
+    .map((g) => `run${g.runs.length > 1 ? "s" : ""} ${runRanges(g.runs)} (${escapeHtml(g.reasons.join('; '))})`).join('; ')}. Re-reduce them before relying on these rows.</p>`;
 }
 
 function polars(args: DaySheetArgs): string {
