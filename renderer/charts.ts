@@ -220,16 +220,19 @@ export function wallChartConfig(result: RunResult): PlotConfig | null {
 export { sweepDirections, type Sweep } from '../app/sweeps';
 import { sweepDirections, type Sweep } from '../app/sweeps';
 
-/** Series of one sweep direction in time order, broken (a NaN gap) where the other sweep runs. */
-function sweepSeries(pts: readonly PolarPoint[], dirs: Sweep[], want: Sweep, xy: (p: PolarPoint) => XY | null): Pts {
+/** Series of one sweep direction in time order, broken (a NaN gap) where the other sweep runs.
+ *  A run on hold keeps its marker but is never joined into the line (gaps on both sides). */
+function sweepSeries(pts: readonly PolarPoint[], dirs: Sweep[], want: Sweep, xy: (p: PolarPoint) => XY | null, held: HeldRuns = new Set()): Pts {
   const out: Pts = [];
+  const gap = () => { if (out.length && Number.isFinite(out[out.length - 1].x)) out.push(GAP); };
   pts.forEach((p, i) => {
-    if (dirs[i] !== want) {
-      if (out.length && Number.isFinite(out[out.length - 1].x)) out.push(GAP);
-      return;
-    }
+    if (dirs[i] !== want) return gap();
     const v = xy(p);
-    if (v && Number.isFinite(v.x) && Number.isFinite(v.y)) out.push(v);
+    if (!v || !Number.isFinite(v.x) || !Number.isFinite(v.y)) return;
+    if (held.has(p.run)) {
+      gap();
+      out.push(v, GAP);
+    } else out.push(v);
   });
   while (out.length && !Number.isFinite(out[out.length - 1].x)) out.pop();
   return out;
@@ -242,10 +245,11 @@ function sweepPair(
   name: string, pts: readonly PolarPoint[], dirs: Sweep[], color: string, xy: (p: PolarPoint) => XY | null,
   markers: [PointStyle, PointStyle] = [UP.marker, DOWN.marker],
   radius = 4,
+  held: HeldRuns = new Set(),
 ) {
   return [
-    points(`${name}, ${UP.word}`, sweepSeries(pts, dirs, 'up', xy), color, markers[0], { showLine: true, borderWidth: 1.5, borderDash: UP.dash, spanGaps: false, pointRadius: radius }),
-    points(`${name}, ${DOWN.word}`, sweepSeries(pts, dirs, 'down', xy), color, markers[1], { showLine: true, borderWidth: 1.5, borderDash: DOWN.dash, spanGaps: false, pointRadius: radius, pointBackgroundColor: '#ffffff' }),
+    points(`${name}, ${UP.word}`, sweepSeries(pts, dirs, 'up', xy, held), color, markers[0], { showLine: true, borderWidth: 1.5, borderDash: UP.dash, spanGaps: false, pointRadius: radius }),
+    points(`${name}, ${DOWN.word}`, sweepSeries(pts, dirs, 'down', xy, held), color, markers[1], { showLine: true, borderWidth: 1.5, borderDash: DOWN.dash, spanGaps: false, pointRadius: radius, pointBackgroundColor: '#ffffff' }),
   ];
 }
 
@@ -269,22 +273,22 @@ function polarTooltip(options: ChartOptions<'scatter'>, xName: string, yName: st
   };
 }
 
-/** cl(α): both lift methods on the same axes, sweeps by line style, lift-curve fit dashed grey. */
+/** cl(α): both lift methods on the same axes, sweeps by line style, lift-curve fit dotted dark grey. */
 export function clAlphaConfig(pts: readonly PolarPoint[], stats: SessionStats | null, held: HeldRuns = new Set()): PlotConfig {
   const dirs = sweepDirections(pts);
   const options = base('α corrected [°]', 'cl');
   polarTooltip(options, 'α', 'cl', 2, 4);
   const datasets = [
-    ...sweepPair(`${SERIES.pressure.label}`, pts, dirs, SERIES.pressure.color, (p) => ({ x: p.alphaDeg, y: p.cl, run: p.run })),
+    ...sweepPair(`${SERIES.pressure.label}`, pts, dirs, SERIES.pressure.color, (p) => ({ x: p.alphaDeg, y: p.cl, run: p.run }), undefined, undefined, held),
     // Momentum squares are drawn larger than the pressure circles so both stay visible where the
     // two methods agree (they usually do to three decimals).
-    ...sweepPair(`${SERIES.momentum.label}`, pts, dirs, SERIES.momentum.color, (p) => ({ x: p.alphaDeg, y: p.clMom, run: p.run }), ['rect', 'rectRot'], 6),
+    ...sweepPair(`${SERIES.momentum.label}`, pts, dirs, SERIES.momentum.color, (p) => ({ x: p.alphaDeg, y: p.clMom, run: p.run }), ['rect', 'rectRot'], 6, held),
     flaggedSeries(pts, held, (p) => ({ x: p.alphaDeg, y: p.cl, run: p.run })),
   ];
   if (stats && Number.isFinite(stats.liftSlopePerDeg)) {
     const [a0, a1] = stats.linearRange;
     const f = (a: number) => stats.liftSlopePerDeg * (a - stats.alphaL0Deg);
-    datasets.push(line(`lift-curve fit ${fix(a0, 1)}…${fix(a1, 1)}° (dotted)`, [{ x: stats.alphaL0Deg, y: 0 }, { x: a1, y: f(a1) }], '#7a7a7a', [2, 3]));
+    datasets.push(line(`lift-curve fit ${fix(a0, 1)}…${fix(a1, 1)}° (dotted)`, [{ x: stats.alphaL0Deg, y: 0 }, { x: a1, y: f(a1) }], '#222222', [2, 3], { borderWidth: 2.5 }));
   }
   return { data: { datasets }, options };
 }
@@ -297,7 +301,7 @@ export function dragPolarConfig(pts: readonly PolarPoint[], held: HeldRuns = new
   return {
     data: {
       datasets: [
-        ...sweepPair('cd from the wake rake', pts, dirs, OKABE_ITO.blue, (p) => ({ x: p.cd, y: p.cl, run: p.run })),
+        ...sweepPair('cd from the wake rake', pts, dirs, OKABE_ITO.blue, (p) => ({ x: p.cd, y: p.cl, run: p.run }), undefined, undefined, held),
         points('cd from surface pressures', pts.map((p) => ({ x: p.cdp, y: p.cl, run: p.run })).filter((p) => Number.isFinite(p.x) && Number.isFinite(p.y)), OKABE_ITO.skyBlue, 'rect', { pointRadius: 3 }),
         flaggedSeries(pts, held, (p) => ({ x: p.cd, y: p.cl, run: p.run })),
       ],
@@ -314,7 +318,7 @@ export function cmAlphaConfig(pts: readonly PolarPoint[], held: HeldRuns = new S
   return {
     data: {
       datasets: [
-        ...sweepPair('cm about c/4', pts, dirs, OKABE_ITO.bluishGreen, (p) => ({ x: p.alphaDeg, y: p.cmc4, run: p.run })),
+        ...sweepPair('cm about c/4', pts, dirs, OKABE_ITO.bluishGreen, (p) => ({ x: p.alphaDeg, y: p.cmc4, run: p.run }), undefined, undefined, held),
         flaggedSeries(pts, held, (p) => ({ x: p.alphaDeg, y: p.cmc4, run: p.run })),
       ],
     },
