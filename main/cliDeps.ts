@@ -7,8 +7,12 @@ export { importSessionFolder } from './import';
 export { reduceStoredSession, reduceStoredSessionAsync, sessionSummary } from './reduceService';
 export { daySheetHtml } from './daysheet';
 export { exportResultsCsv, exportResultsJson } from './export';
-export { runsAffectedBy } from './handlers';
 export { settingsPatchSchema } from '../app/log/schema';
 export { correctedMomentumCl } from '../app/reduce';
 export { SingleBar, Presets } from 'cli-progress';
-export { watch } from 'chokidar';
+
+/** What only `follow` needs (the IPC handlers' module brings the whole contract with it). */
+export async function followDeps() {
+  const [{ runsAffectedBy }, { watch }] = await Promise.all([import('./handlers'), import('chokidar')]);
+  return { runsAffectedBy, watch };
+}
