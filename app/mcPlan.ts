@@ -23,11 +23,13 @@
 // source).
 
 import { freeStream } from './air';
-import { applyCorrections, wallCorrections } from './corrections';
+import { applyCorrections } from './corrections';
+import { correctionOf, type CorrectionPlan } from './correctionChoice';
+import type { SignaturePlan } from './wallSignature';
 import { gammaFromCl } from './crosscheck';
 import { applyStencil, linearStencil, trapezoid } from './quadrature';
-import { compareUpper, contourIntegrals } from './surface';
-import type { Coefficients, CorrectionMethod, RunInfo, Setup, Surface } from './types';
+import { compareUpper, contourIntegrals, type ContourRule } from './surface';
+import type { Coefficients, RunInfo, Setup, Surface } from './types';
 import { jonesIntegral, jonesTerm } from './wake';
 import { angleFluxIntegral, angleFluxTerm, momentumCl, wallGrid } from './walls';
 
@@ -43,6 +45,8 @@ export interface PlanLayout {
   ceiling: { x: number; ch: string }[];
   mainRow: string;
   areaC2: number;
+  /** Wall-signature design (app/reduce.ts Layout.signature). */
+  signature: SignaturePlan | null;
 }
 
 /** The nominal pass's facts the plan relies on (from runCore's output). */
@@ -51,6 +55,8 @@ export interface PlanNominal {
   mainRow: string;
   /** Capture fractions of the nominal wall result (depend on the geometry only), or null. */
   walls: { F: number; FMom?: number } | null;
+  /** Contour rule of the surface integration (Settings.contourRule; default 'linear'). */
+  rule?: ContourRule;
 }
 
 /** The outputs of one draw. */
@@ -75,7 +81,10 @@ export interface McPlan {
   height: number;
   width: number;
   areaC2: number;
-  method: CorrectionMethod;
+  /** The correction as the nominal pass resolved it (app/correctionChoice.ts). */
+  correct: CorrectionPlan;
+  signature: SignaturePlan | null;
+  rule: ContourRule;
   baro: number;
   T: number;
   rh: number;
@@ -156,12 +165,14 @@ export function buildMcPlan(
   setup: Setup,
   L: PlanLayout,
   info: RunInfo,
-  correction: CorrectionMethod,
+  correction: CorrectionPlan,
   bad: readonly { id: string }[],
   nominal: PlanNominal,
   index: ReadonlyMap<string, number>,
 ): McPlan | null {
   if (nominal.mainRow !== L.mainRow) return null;
+  // The wall signature needs the walls in the same order as the design (both sorted by x).
+  if (correction.method === 'wall-signature' && (!L.signature || L.signature.unusable)) return null;
   const idx = (name: string): number => index.get(name) ?? -1;
   const iDp = idx(L.dpRef);
   const iPs = idx(L.pStatic);
@@ -238,7 +249,9 @@ export function buildMcPlan(
     height: setup.facility.sectionHeight,
     width: setup.facility.sectionWidth,
     areaC2: L.areaC2,
-    method: correction,
+    correct: correction,
+    signature: L.signature,
+    rule: nominal.rule ?? 'linear',
     baro: info.baro,
     T: info.temperatureC + 273.15,
     rh: info.humidity,
@@ -348,7 +361,7 @@ export function evalMcPlan(
     oy[k] = slotY[s];
     ocp[k] = cp[s];
   }
-  const main = contourIntegrals(ox, oy, ocp, n, nU, alphaDeg);
+  const main = contourIntegrals(ox, oy, ocp, n, nU, alphaDeg, P.rule);
 
   // Wake.
   let cdU = NaN;
@@ -406,14 +419,11 @@ export function evalMcPlan(
     V,
     Re: fs.Re,
   };
-  const correction = wallCorrections({
-    chord: P.chord,
-    height: P.height,
-    width: P.width,
-    sectionAreaC2: P.areaC2,
-    cdU: Number.isFinite(cdU) ? cdU : main.cdp,
-    method: P.method,
-  });
+  // The same parameters as runCore's (correctionOf, app/correctionChoice.ts).
+  const correction = correctionOf(
+    P.correct, { chord: P.chord, height: P.height, width: P.width, sectionAreaC2: P.areaC2 }, cdU, main.cdp, P.signature, W ? P.fcp : null, W ? P.ccp : null,
+  );
+  if (!correction) return false;
   const corrected = applyCorrections(uncorrected, correction, main.cmc4);
   out.cl = corrected.cl;
   out.cd = corrected.cd;

@@ -13,7 +13,8 @@ import {
 } from './types';
 import { freeStream } from './air';
 import { averageRun, applyZeros, unsteadiness } from './samples';
-import { detectBadTaps, reduceSurface, type BadTapReason } from './surface';
+import { detectBadTaps, reduceSurface, type BadTap } from './surface';
+import { referenceCheck, type ReferenceFinding } from './tapCheck';
 import { inviscidCp } from './panel';
 import { spanLoading, completeRow } from './spanwise';
 import { jonesDrag, interpolateStatic } from './wake';
@@ -21,6 +22,8 @@ import { interpLinear } from './quadrature';
 import { wallLoads, angleFlux } from './walls';
 import { gammaFromCl, liftCrossCheck } from './crosscheck';
 import { sectionArea, wallCorrections, applyCorrections } from './corrections';
+import { correctionFor, correctionSet, type CorrectionInputs, type CorrectionPlan } from './correctionChoice';
+import { signaturePlan, type SignaturePlan } from './wallSignature';
 import { monteCarlo, instrumentStd } from './uncertainty';
 import { buildMcPlan, evalMcPlan, type McPlan, type McValues, type PlanLayout } from './mcPlan';
 import { sessionStats } from './session';
@@ -65,6 +68,8 @@ interface Layout {
   ceiling: { x: number; ch: Channel }[];
   mainRow: string;
   areaC2: number;
+  /** Wall-signature fit design for the floor and ceiling taps (null: no taps on both walls). */
+  signature: SignaturePlan | null;
   /** Pa per channel unit (1 for deg). */
   scale: Map<string, number>;
   /** Flow-angle channels (not zeroed, not drift-checked). */
@@ -98,6 +103,8 @@ export function layoutOf(setup: Setup): Layout {
       return ch ? [{ it, ch }] : [];
     });
   const rake = pick('rake', setup.rake.probes);
+  const floorCh = pick('floor', setup.floor).map(({ it, ch }) => ({ x: it.x, ch }));
+  const ceilingCh = pick('ceiling', setup.ceiling).map(({ it, ch }) => ({ x: it.x, ch }));
   const rowCounts = new Map<string, number>();
   for (const t of setup.taps) rowCounts.set(t.row, (rowCounts.get(t.row) ?? 0) + 1);
   const mainRow = rowCounts.has('C')
@@ -112,10 +119,18 @@ export function layoutOf(setup: Setup): Layout {
     rakeTotal: rake.filter((r) => r.it.kind === 'total').map(({ it, ch }) => ({ y: it.y, ch })),
     rakeStatic: rake.filter((r) => r.it.kind === 'static').map(({ it, ch }) => ({ y: it.y, ch })),
     rakeAngle: rake.filter((r) => r.it.kind === 'angle').map(({ it, ch }) => ({ y: it.y, ch })),
-    floor: pick('floor', setup.floor).map(({ it, ch }) => ({ x: it.x, ch })),
-    ceiling: pick('ceiling', setup.ceiling).map(({ it, ch }) => ({ x: it.x, ch })),
+    floor: floorCh,
+    ceiling: ceilingCh,
     mainRow,
     areaC2: sectionArea(setup.model.geometry),
+    signature: floorCh.length >= 2 && ceilingCh.length >= 2
+      ? signaturePlan({
+          floorX: floorCh.map((f) => f.x),
+          ceilingX: ceilingCh.map((c) => c.x),
+          height: setup.facility.sectionHeight,
+          chord: setup.model.chord,
+        })
+      : null,
     scale,
     angle: angleChannels(setup),
   };
@@ -134,6 +149,8 @@ interface CoreInput {
   /** Offsets added to every tap's x/c (Monte Carlo), by tap index in layout.taps. */
   tapDx?: Float64Array;
   bad: { id: string; reason: string }[];
+  /** How to correct (the nominal pass resolves 'auto'; its first pass uses the classical plan). */
+  correct: CorrectionPlan;
 }
 
 interface CoreOutput {
@@ -147,6 +164,8 @@ interface CoreOutput {
   uncorrected: Coefficients;
   corrected: Coefficients;
   correction: ReturnType<typeof wallCorrections>;
+  /** What the correction methods need (for the nominal comparison of every method). */
+  correctionInputs: CorrectionInputs;
   clMomentum: number;
   gamma: { pressure: number; momentum: number; wall: number };
 }
@@ -190,7 +209,7 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     const rt = row === L.mainRow ? own : completeRow(own, mainTaps);
     // A row needs both surfaces to be integrated; short rows that cover one side only are skipped.
     if (!rt.some((t) => t.surface === 'upper') || !rt.some((t) => t.surface === 'lower')) continue;
-    const loads = reduceSurface(rt, inp.alphaDeg, inp.bad);
+    const loads = reduceSurface(rt, inp.alphaDeg, inp.bad, settings.contourRule);
     const z = setup.taps.find((t) => t.row === row)?.z ?? 0;
     rows.push({ ...loads, row, z });
   }
@@ -245,14 +264,20 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     V: fs.V,
     Re: fs.Re,
   };
-  const correction = wallCorrections({
+  const correctionInputs: CorrectionInputs = {
     chord: setup.model.chord,
     height: setup.facility.sectionHeight,
     width: setup.facility.sectionWidth,
     sectionAreaC2: L.areaC2,
-    cdU: Number.isFinite(cdU) ? cdU : main.cdp,
-    method: settings.correction,
-  });
+    uncorrected,
+    cmc4U: main.cmc4,
+    wakeCd: cdU,
+    wakeCaptured: wake?.captured ?? false,
+    walls,
+    signaturePlan: L.signature,
+  };
+  const correction = correctionFor(inp.correct, correctionInputs)
+    ?? correctionFor({ ...inp.correct, method: 'barlow-rae-pope' }, correctionInputs)!;
   const corrected = applyCorrections(uncorrected, correction, main.cmc4);
   const clMomentum = walls ? walls.clMom : NaN;
   return {
@@ -266,6 +291,7 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     uncorrected,
     corrected,
     correction,
+    correctionInputs,
     clMomentum,
     gamma: {
       pressure: gammaFromCl(main.cl, fs.V, setup.model.chord),
@@ -281,8 +307,13 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
  *  pass (when there are any) drops and bridges them. */
 function nominalPass(
   setup: Setup, L: Layout, run: ZeroedRun, settings: Settings,
-): { bad: { id: string; reason: BadTapReason }[]; nominal: CoreOutput } {
+): { bad: BadTap[]; nominal: CoreOutput; reference: ReferenceFinding[]; choice: ReturnType<typeof correctionSet> } {
   const info = run.info;
+  const provisional: CorrectionPlan = {
+    method: settings.correction === 'none' ? 'none' : 'barlow-rae-pope',
+    maskellTheta: settings.maskellTheta,
+    maskellSource: 'pressure',
+  };
   const values = (name: string): number => {
     const x = run.values[name];
     if (x === undefined || !Number.isFinite(x)) throw new Error(`Run ${info.run}: channel ${name} has no value.`);
@@ -290,15 +321,71 @@ function nominalPass(
   };
 
   // First pass: Cp with no taps dropped, to detect bad taps.
-  const first = runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad: [] });
+  const first = runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad: [], correct: provisional });
   const zeroByTap: Record<string, number> | undefined = run.zeroRaw
     ? Object.fromEntries(L.taps.map(({ tap, ch }) => [tap.id, run.zeroRaw![ch.name]]).filter(([, z]) => Number.isFinite(z as number)))
     : undefined;
-  const bad = detectBadTaps(first.taps, settings, zeroByTap, settings.leakPa);
+  // Standard uncertainty of each tap's own Cp (instrument and standard error of its channel), and
+  // of a Cp from the references (p∞ channel, q through k_q and Δp_ref): JCGM 100:2008 eq. (10).
+  const q = first.fs.qu;
+  const chStd = (ch: Channel): number => {
+    const x = run.values[ch.name] ?? 0;
+    const ui = instrumentStd(ch.uncertainty, x, L.scale.get(ch.name) ?? 1);
+    const se = run.stats[ch.name]?.stdErr ?? 0;
+    return Math.hypot(ui, se);
+  };
+  const uCp: Record<string, number> = {};
+  for (const { tap, ch } of L.taps) uCp[tap.id] = chStd(ch) / q;
+  const uPinfCp = chStd(L.pStatic) / q;
+  const dp = run.values[L.dpRef.name];
+  const uqRel = Math.hypot(
+    Number.isFinite(dp) && dp !== 0 ? chStd(L.dpRef) / Math.abs(dp) : 0,
+    (setup.facility.qCalibrationUncertainty ?? 0) / setup.facility.qCalibration,
+  );
+  const bad = detectBadTaps(first.taps, settings, zeroByTap, settings.leakPa, {
+    uCp,
+    positionU: setup.model.tapPositionUncertainty,
+  });
   const nominal = bad.length
-    ? runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad })
+    ? runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad, correct: provisional })
     : first;
-  return { bad, nominal };
+  // The references, row by row, from the taps kept (app/tapCheck.ts referenceCheck).
+  const badIds = new Set(bad.map((b) => b.id));
+  const reference: ReferenceFinding[] = [];
+  const rowsSeen = [...new Set(nominal.taps.map((t) => t.row))];
+  for (const row of rowsSeen) {
+    const kept = nominal.taps.filter((t) => t.row === row && !badIds.has(t.id));
+    const f = referenceCheck(
+      row, kept,
+      (id, cp) => Math.sqrt(Math.max(settings.tapCheckMinU, uCp[id] ?? 0) ** 2 + uPinfCp ** 2 + (cp * uqRel) ** 2),
+      first.fs.M, q, settings.stagnationK,
+    );
+    if (f) reference.push(f);
+  }
+  // Every correction method side by side, and the one applied ('auto' resolved here, once: the
+  // Monte Carlo draws use the same method).
+  const choice = correctionSet(
+    settings.correction, nominal.correctionInputs, settings,
+    nominal.taps.filter((t) => t.row === nominal.main.row),
+    wallCpUncertainty(L, run, nominal.uncorrected.q),
+  );
+  nominal.correction = choice.correction;
+  nominal.corrected = choice.corrected;
+  return { bad, nominal, reference, choice };
+}
+
+/** Standard uncertainty of one wall Cp from the wall channels' stated uncertainty (rms over the
+ *  wall channels, with each channel's standard error), for the wall-signature fit. */
+function wallCpUncertainty(L: Layout, run: ZeroedRun, q: number): number {
+  const all = [...L.floor, ...L.ceiling];
+  if (!all.length || !(q > 0)) return 0;
+  let s = 0;
+  for (const { ch } of all) {
+    const ui = instrumentStd(ch.uncertainty, run.values[ch.name] ?? 0, L.scale.get(ch.name) ?? 1);
+    const se = run.stats[ch.name]?.stdErr ?? 0;
+    s += ui * ui + se * se;
+  }
+  return Math.sqrt(s / all.length) / q;
 }
 
 /** How reduceRun evaluates the Monte Carlo draws: 'plan' (default) by the per-run plan of
@@ -312,7 +399,7 @@ export interface ReduceOptions {
 export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, options: ReduceOptions = {}): RunResult {
   const L = layoutOf(setup);
   const info = run.info;
-  const { bad, nominal } = nominalPass(setup, L, run, settings);
+  const { bad, nominal, reference, choice } = nominalPass(setup, L, run, settings);
 
   // Flags.
   const flags: Flag[] = [];
@@ -344,8 +431,9 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
   // Taps the user marked are bridged without a flag: the user already knows about them.
   const others = bad.filter((b) => b.reason !== 'leak' && b.reason !== 'marked');
   if (others.length) {
-    flags.push(makeFlag('bad-tap', { taps: others }));
+    flags.push(makeFlag('bad-tap', { taps: others.map((b) => ({ id: b.id, reason: b.reason, ...(b.verdict ?? {}) })) }));
   }
+  if (reference.length) flags.push(referenceFlag(reference));
   if (!run.zeroRuns.length) {
     flags.push(makeFlag('no-zero', {}));
   } else {
@@ -362,6 +450,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
   if (M > settings.machLimit) {
     flags.push(makeFlag('compressible', { M, limit: settings.machLimit }));
   }
+  if (choice.flag) flags.push(choice.flag);
   let spanwise: RunResult['spanwise'] = null;
   if (nominal.rows.length > 1) {
     const s = spanLoading(nominal.rows, setup.model.chord, setup.model.span, settings.spanSpreadTol);
@@ -371,7 +460,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
 
   // Monte Carlo uncertainty on the corrected coefficients and circulations.
   const uncertainty = settings.mcDraws > 0
-    ? runUncertainty(mcModel(setup, L, run, settings, bad, nominal, options.mcPath !== 'core'), settings, run)
+    ? runUncertainty(mcModel(setup, L, run, settings, bad, nominal, choice.plan, options.mcPath !== 'core'), settings, run)
     : {};
 
   return {
@@ -381,12 +470,19 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
     air: nominal.fs.air,
     M,
     taps: nominal.taps,
+    dropped: bad.map((b) => ({
+      id: b.id,
+      reason: b.reason,
+      by: b.reason === 'marked' ? ('hand' as const) : ('auto' as const),
+      ...(b.verdict ?? {}),
+    })),
     rows: nominal.rows,
     surface: nominal.main,
     wake: nominal.wake,
     walls: nominal.walls,
     circulation: nominal.gamma,
     correction: nominal.correction,
+    corrections: choice.set,
     uncorrected: nominal.uncorrected,
     corrected: nominal.corrected,
     clMomentum: nominal.clMomentum,
@@ -404,6 +500,17 @@ function peakY(w: WakeResult): number {
   return best ? best.y : NaN;
 }
 
+
+/** The reference flag (app/tapCheck.ts referenceCheck): Cp on the uncorrected basis (q_u) of
+ *  every tap Cp, the same numbers as the tap table. */
+function referenceFlag(found: readonly ReferenceFinding[]): Flag {
+  const w = found.reduce((a, b) => (b.cp > a.cp ? b : a));
+  return makeFlag('reference', {
+    found: found.map((f) => ({ row: f.row, id: f.id, cp: f.cp, cpStag: f.cpStag, M: f.M, u: f.u })),
+    qLowPct: w.qLow * 100,
+    staticLowPa: w.staticLowPa,
+  });
+}
 
 type UKey = 'cl' | 'cd' | 'cdp' | 'cmc4' | 'clMom' | 'gammaPressure' | 'gammaMomentum';
 
@@ -432,7 +539,7 @@ export interface McModel {
 
 function mcModel(
   setup: Setup, L: Layout, run: ZeroedRun, settings: Settings, bad: { id: string; reason: string }[],
-  nominal: CoreOutput, usePlan: boolean,
+  nominal: CoreOutput, correct: CorrectionPlan, usePlan: boolean,
 ): McModel {
   const names = setup.channels.map((c) => c.name).filter((n) => run.values[n] !== undefined);
   const sdByName = new Map<string, number>();
@@ -453,7 +560,7 @@ function mcModel(
   const values = (n: string) => perturbed[n];
   const core = (vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number): Record<UKey, number> => {
     for (let k = 0; k < names.length; k++) perturbed[names[k]] = vals[k];
-    const out = runCore(setup, L, run.info, settings, { values, alphaDeg, kq, tapDx, bad });
+    const out = runCore(setup, L, run.info, settings, { values, alphaDeg, kq, tapDx, bad, correct });
     return {
       cl: out.corrected.cl,
       cd: out.corrected.cd,
@@ -466,9 +573,10 @@ function mcModel(
   };
 
   const plan: McPlan | null = usePlan
-    ? buildMcPlan(setup, planLayout(L), run.info, settings.correction, bad, {
+    ? buildMcPlan(setup, planLayout(L), run.info, correct, bad, {
         mainRow: nominal.main.row,
         walls: nominal.walls,
+        rule: settings.contourRule,
       }, index)
     : null;
   const o: McValues = { cl: NaN, cd: NaN, cdp: NaN, cmc4: NaN, clMom: NaN, gammaPressure: NaN, gammaMomentum: NaN };
@@ -522,6 +630,7 @@ function planLayout(L: Layout): PlanLayout {
     ceiling: L.ceiling.map((c) => ({ x: c.x, ch: c.ch.name })),
     mainRow: L.mainRow,
     areaC2: L.areaC2,
+    signature: L.signature,
   };
   planLayouts.set(L, P);
   return P;
@@ -548,8 +657,8 @@ function runUncertainty(m: McModel, settings: Settings, run: ZeroedRun): Partial
  */
 export function uncertaintyModel(setup: Setup, run: ZeroedRun, settings: Settings, usePlan = true): McModel {
   const L = layoutOf(setup);
-  const { bad, nominal } = nominalPass(setup, L, run, settings);
-  return mcModel(setup, L, run, settings, bad, nominal, usePlan);
+  const { bad, nominal, choice } = nominalPass(setup, L, run, settings);
+  return mcModel(setup, L, run, settings, bad, nominal, choice.plan, usePlan);
 }
 
 // ---------------------------------------------------------------------------------------------

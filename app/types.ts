@@ -5,8 +5,12 @@
 
 /** Stored with every result; raised whenever the reduced numbers change (0.2.0: the
  *  Barlow, Rae & Pope wake blockage is (c/2h)·cd_u as REDUCTION.md §8 gives it, not (c/4h)·cd_u;
- *  the Monte Carlo normal deviates come from the polar Box–Muller method, so other draws). */
-export const CORE_VERSION = '0.2.0';
+ *  the Monte Carlo normal deviates come from the polar Box–Muller method, so other draws; 0.3.0:
+ *  the classical wake blockage is (c/4h)·cd_u for both classical methods — the source between
+ *  walls, docs/WALL-CORRECTIONS.md — and the default correction is 'auto'; 0.4.0: the
+ *  bad-tap test by prediction uncertainty and the stagnation reference check of app/tapCheck.ts,
+ *  the contour rule named in each row's loads). */
+export const CORE_VERSION = '0.4.0';
 
 export type PressureUnit =
   | 'Pa' | 'kPa' | 'hPa' | 'mbar' | 'psi' | 'inH2O' | 'mmH2O' | 'mmHg' | 'torr';
@@ -128,7 +132,16 @@ export interface Setup {
   settings?: Partial<Settings>;
 }
 
-export type CorrectionMethod = 'barlow-rae-pope' | 'allen-vincenti' | 'none';
+/** Wall-correction methods (app/corrections.ts, app/wallSignature.ts, app/correctionChoice.ts):
+ *  the classical closed-wall formulas ('barlow-rae-pope', 'allen-vincenti'), Maskell's separated-flow
+ *  blockage, the wall-pressure-signature fit, 'auto' (chosen per run, see correctionChoice.ts) and
+ *  'none'. */
+export type CorrectionMethod = 'barlow-rae-pope' | 'allen-vincenti' | 'maskell' | 'wall-signature' | 'auto' | 'none';
+/** A method a run is actually corrected with ('auto' resolved). */
+export type AppliedMethod = Exclude<CorrectionMethod, 'auto'>;
+export const CORRECTION_METHODS: readonly CorrectionMethod[] = [
+  'auto', 'wall-signature', 'maskell', 'barlow-rae-pope', 'allen-vincenti', 'none',
+];
 
 /** Reduction settings (per session, overridable per reduction). */
 export interface Settings {
@@ -141,10 +154,19 @@ export interface Settings {
   unsteadyThreshold: number;
   /** Wake captured when both rake edges have (H_w − p∞)/q∞ within this of 1. */
   wakeEdgeTol: number;
-  /** A tap is bad if Cp > 1 + stagnationMargin. */
-  stagnationMargin: number;
-  /** A tap is bad if it departs from a robust local fit of its neighbours by more than this (Cp). */
-  tapOutlierCp: number;
+  /** Bad-tap test (app/tapCheck.ts, docs/TAP-JUDGEMENT.md): a tap is an outlier when it departs
+   *  from the leave-one-out prediction of its neighbours by more than tapCheckK times the combined
+   *  standard uncertainty (tap channel and prediction). */
+  tapCheckK: number;
+  /** Smallest standard uncertainty of a tap's Cp the test assumes (unmodelled effects: tap hole,
+   *  position), in Cp. */
+  tapCheckMinU: number;
+  /** Stagnation check: the row's highest Cp above the isentropic Cp_stag by more than stagnationK
+   *  standard uncertainties gives a reference flag (the tap is kept). */
+  stagnationK: number;
+  /** Contour rule of the surface integration: 'linear' (Cp linear between taps) or 'spline'
+   *  (cubic splines in arc length with the stagnation region resolved, app/contourSpline.ts). */
+  contourRule: 'linear' | 'spline';
   /** Wind-off leak: a tap whose wind-off zero departs from the median zero of the taps by more
    *  than this many Pa is flagged as leaking. */
   leakPa: number;
@@ -158,6 +180,18 @@ export interface Settings {
   mcDraws: number;
   mcSeed: number;
   correction: CorrectionMethod;
+  /** Maskell's two-dimensional blockage factor θ in Δq/q = θ·cd·c/h (R&M 3400; see
+   *  app/corrections.ts for why 0.96). */
+  maskellTheta: number;
+  /** Largest rms fit residual (in Cp) of the wall-signature fit that 'auto' still uses. */
+  wallFitResidualCp: number;
+  /** A run counts as past stall for 'auto' (Maskell instead of classical where the walls cannot
+   *  say) when its rearmost upper-surface tap (aft of 0.85c) reads Cp at or below this. */
+  stallTeCp: number;
+  /** Flag when the chosen and the classical corrections differ in ε by more than this… */
+  correctionTolEps: number;
+  /** …or in Δα by more than this many degrees. */
+  correctionTolAlphaDeg: number;
   /** Taps the user marked bad (ids). */
   badTaps: string[];
 }
@@ -168,15 +202,22 @@ export const DEFAULT_SETTINGS: Settings = {
   spikeK: 5,
   unsteadyThreshold: 0.02,
   wakeEdgeTol: 0.01,
-  stagnationMargin: 0.05,
-  tapOutlierCp: 0.25,
+  tapCheckK: 4,
+  tapCheckMinU: 0.005,
+  stagnationK: 2,
+  contourRule: 'linear',
   leakPa: 15,
   zeroDriftFraction: 0.01,
   machLimit: 0.3,
   spanSpreadTol: 0.05,
   mcDraws: 400,
   mcSeed: 20261202,
-  correction: 'barlow-rae-pope',
+  correction: 'auto',
+  maskellTheta: 0.96,
+  wallFitResidualCp: 0.005,
+  stallTeCp: -0.15,
+  correctionTolEps: 0.006,
+  correctionTolAlphaDeg: 0.25,
   badTaps: [],
 };
 
@@ -264,8 +305,23 @@ export interface TapCp {
   row: string;
   cp: number;
   bad: boolean;
-  /** Why the tap is bad ('marked', 'stagnation', 'outlier', 'leak'). */
+  /** Why the tap is bad ('marked', 'outlier', 'leak'; 'stagnation' in results of core < 0.3.0). */
   badReason?: string;
+}
+
+/** A tap left out of the integration, and who left it out: 'hand' — marked bad by the engineer
+ *  (Settings.badTaps); 'auto' — found by the core (a leak at wind-off, or an outlier of the
+ *  leave-one-out test, with its verdict), a suggestion for the engineer to confirm or keep. */
+export interface DroppedTap {
+  id: string;
+  reason: string;
+  by: 'hand' | 'auto';
+  /** Outliers: Cp predicted from the neighbours, Cp − prediction, combined standard uncertainty,
+   *  |residual|/u. */
+  predicted?: number;
+  residual?: number;
+  u?: number;
+  score?: number;
 }
 
 /** Surface-pressure integration of one row (app/surface.ts). */
@@ -279,6 +335,9 @@ export interface SurfaceLoads {
   /** Trailing-edge Cp used to close the contour, and how. */
   teCp: number;
   teMethod: string;
+  /** The contour rule used (app/surface.ts ContourRule); absent in results of core < 0.3.0, which
+   *  were all 'linear'. */
+  rule?: 'spline' | 'linear';
   /** Ids of taps dropped and bridged. */
   bridged: string[];
 }
@@ -323,11 +382,51 @@ export interface WallResult {
 }
 
 export interface CorrectionResult {
-  method: CorrectionMethod;
+  method: AppliedMethod;
   sigma: number;
   epsSb: number;
   epsWb: number;
   eps: number;
+  /** Upwash and streamline-curvature increments measured at the walls (wall-signature method):
+   *  when present, applyCorrections uses them in place of the σ terms. */
+  measured?: { dAlphaDeg: number; dCl: number; dCm: number };
+}
+
+/** One method's correction of a run, for the side-by-side comparison. */
+export interface MethodCorrection {
+  method: AppliedMethod;
+  /** False when the method could not be applied to this run (then `why` says why, no numbers). */
+  available: boolean;
+  why?: string;
+  eps?: number;
+  epsSb?: number;
+  epsWb?: number;
+  dAlphaDeg?: number;
+  corrected?: Coefficients;
+}
+
+/** Every method's correction of a run, and which one was applied and why. */
+export interface CorrectionSet {
+  /** Setting asked for ('auto' or a method). */
+  requested: CorrectionMethod;
+  applied: AppliedMethod;
+  /** Why this method, in words (names the fall-back when 'auto' or the request could not be met). */
+  reason: string;
+  methods: MethodCorrection[];
+  /** Wall-signature fit (null when the walls could not say). */
+  signature: {
+    gamma: number; Q: number; mu: number; offset: number; gradient: number;
+    residualCp: number; worstCp: number; worstAt: { wall: 'floor' | 'ceiling'; x: number };
+    uEps: number; condition: number; taps: number;
+    epsSb: number; epsWb: number; eps: number; dAlphaDeg: number; dCl: number; dCm: number;
+    /** Shift terms Γδ (m³/s) and μδ (m⁴/s). */
+    gammaShift: number; muShift: number;
+    /** Fitted wall Cp at the taps (for the wall-signature plot). */
+    fitted: { floor: { x: number; cp: number }[]; ceiling: { x: number; cp: number }[] };
+  } | null;
+  /** Cp of the rearmost upper-surface tap aft of 0.85c (NaN: none), and the drag Maskell used. */
+  teCp: number;
+  maskellDrag: { cd: number; source: 'wake' | 'pressure' };
 }
 
 export interface Coefficients {
@@ -360,6 +459,8 @@ export interface RunResult {
   M: number;
   /** Cp of every tap, all rows. */
   taps: TapCp[];
+  /** Taps dropped, by hand or automatically (absent in results of core < 0.3.0). */
+  dropped?: DroppedTap[];
   /** Section loads of each spanwise row (main row first). */
   rows: RowLoads[];
   /** Loads of the main row (uncorrected). */
@@ -369,6 +470,8 @@ export interface RunResult {
   /** Bound circulation Γ by Kutta–Joukowski from each method, m²/s. */
   circulation: { pressure: number; momentum: number; wall: number };
   correction: CorrectionResult;
+  /** Every wall-correction method side by side (absent in results stored before core 0.3.0). */
+  corrections?: CorrectionSet;
   uncorrected: Coefficients;
   corrected: Coefficients;
   /** cl by the wall-momentum method (uncorrected), for the cross-check. */

@@ -1,7 +1,7 @@
 // The `rakeline` command line: a thin layer over the store, the importer, the reduction service,
 // the day sheet and the exports. Exit codes: 0 ok, 1 bad input (log errors name file, line and
 // channel), 2 usage errors (unknown command or option, bad option value, ambiguous session).
-import { existsSync, writeFileSync } from 'node:fs';
+import { existsSync, rmSync, writeFileSync } from 'node:fs';
 import { relative, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { Command, CommanderError, InvalidArgumentError, Option } from 'commander';
@@ -10,6 +10,7 @@ import type * as CliDeps from './cliDeps';
 import pkg from '../package.json';
 import { isLogError } from '../app/log/errors';
 import { flagsLine } from '../app/flags';
+import { staleRunNumbers } from '../app/stale';
 import { DEFAULT_SETTINGS, type Flag, type RunResult, type Settings } from '../app/types';
 
 export const DEFAULT_DB = 'rakeline.sqlite';
@@ -89,12 +90,16 @@ function dbPath(g: GlobalOpts): string {
   return resolve(g.db ?? process.env.RAKELINE_DB ?? DEFAULT_DB);
 }
 
-function openStore(g: GlobalOpts, create: boolean): Store {
+/** How a command uses the database: 'read' opens it read-only (nothing written, also on a
+ *  read-only disk), 'write' needs it to exist and be writable, 'create' may make it. */
+type Access = 'read' | 'write' | 'create';
+
+function openStore(g: GlobalOpts, access: Access): Store {
   const file = dbPath(g);
-  if (!create && !existsSync(file)) {
+  if (access !== 'create' && !existsSync(file)) {
     throw new InputError(`no database at ${file} (import a session first with: rakeline ingest <folder>, or pass --db)`);
   }
-  return D().Store.open(file);
+  return D().Store.open(file, { readOnly: access === 'read' });
 }
 
 /** The session named by --session, or the only one in the database. */
@@ -120,8 +125,8 @@ function actorOf(g: GlobalOpts): string {
   return g.actor ?? process.env.RAKELINE_ACTOR ?? `cli:${process.env.USER ?? process.env.USERNAME ?? 'user'}`;
 }
 
-async function withStore<T>(g: GlobalOpts, create: boolean, fn: (store: Store) => Promise<T> | T): Promise<T> {
-  const store = openStore(g, create);
+async function withStore<T>(g: GlobalOpts, access: Access, fn: (store: Store) => Promise<T> | T): Promise<T> {
+  const store = openStore(g, access);
   try {
     return await fn(store);
   } finally {
@@ -184,10 +189,14 @@ export function runsTable(rows: RunRow[]): string {
     const x = r.result;
     const t = (/T(\d{2}:\d{2}:\d{2})/.exec(r.time)?.[1] ?? r.time).padEnd(8);
     const status = r.kind === 'zero' ? 'wind-off zero' : x ? flagsLine(x.flags, 'short') : 'not reduced';
-    const review = r.review ? ` [${r.review.verdict} by ${r.review.actor}]` : '';
+    const review = `${r.review ? ` [${r.review.verdict} by ${r.review.actor}]` : ''}${r.stale ? ' [stale]' : ''}`;
     return `${String(r.run).padStart(4)} ${r.kind.padEnd(4)} ${t} ${n(r.alphaDeg, 2, 6)} ${n(x?.alphaCorrDeg, 2, 6)} ${n(x?.q, 1, 7)} ${n(x ? x.Re / 1e6 : undefined, 3, 6)} ${n(x?.cl, 4, 7)} ${n(x?.clMom, 4, 7)} ${n(x?.cd, 5, 8)} ${n(x?.cmc4, 4, 7)}  ${status}${review}`;
   });
-  return [head, ...lines].join('\n');
+  const stale = staleRunNumbers(rows);
+  const note = stale.length
+    ? [`${stale.length} stale result(s), reduced with other settings, bad taps or zeros than the session's now: runs ${stale.join(", ")} (\`reduce --stale\` re-reduces them)`]
+    : [];
+  return [head, ...lines, ...note].join('\n');
 }
 
 /** One line for a reduced run (used by `reduce` and `follow`). */
@@ -232,7 +241,7 @@ async function follow(folder: string, g: GlobalOpts, settleMs: number, reduce: b
   const dir = resolve(folder);
   if (!existsSync(dir)) throw new InputError(`no folder ${dir}`);
   const { runsAffectedBy, watch } = await D().followDeps();
-  const store = openStore(g, true);
+  const store = openStore(g, 'create');
   const actor = actorOf(g);
   let busy = false;
   let again = false;
@@ -339,7 +348,7 @@ Examples:
     .description('list the sessions in the database')
     .addOption(new Option('--format <format>', 'output format').choices(['table', 'json']).default('table'))
     .action(async (o: { format: string }) => {
-      await withStore(g(), false, (store) => {
+      await withStore(g(), 'read', (store) => {
         const all = store.listSessions();
         if (o.format === 'json') return out(JSON.stringify(all, null, 2));
         if (!all.length) return out('no sessions');
@@ -358,21 +367,39 @@ Examples:
     .action(async (folder: string, o: { reduce: boolean }) => {
       const dir = resolve(folder);
       if (!existsSync(dir)) throw new InputError(`no folder ${dir}`);
-      await withStore(g(), true, async (store) => {
-        const bar = progress();
-        const t0 = performance.now();
-        let rep;
-        try {
-          rep = await D().importSessionFolder(store, dir, { actor: actorOf(g()), onProgress: bar.onProgress });
-        } finally {
-          bar.stop();
-        }
-        out(`session ${rep.sessionId} (${rep.created ? 'new' : 'existing'}): ${rep.importedRuns.length} run(s) imported, ${rep.changedFiles.length} changed file(s), ${rep.unchangedFiles.length} unchanged, ${rep.skippedRuns.length} skipped in ${((performance.now() - t0) / 1000).toFixed(2)} s`);
-        if (o.reduce && rep.importedRuns.length) await reduceAndTell(store, rep.sessionId, g(), {});
-        if (rep.changedFiles.length) {
-          throw new InputError(`${rep.changedFiles.length} file(s) differ from what session ${rep.sessionId} holds and were not merged: ${rep.changedFiles.join(', ')} (the stored data are kept; import a changed session from a new folder)`);
-        }
-      });
+      const file = dbPath(g());
+      const existed = existsSync(file);
+      let stored = false;
+      try {
+        await withStore(g(), 'create', async (store) => {
+          const bar = progress();
+          const t0 = performance.now();
+          let rep;
+          try {
+            rep = await D().importSessionFolder(store, dir, { actor: actorOf(g()), onProgress: bar.onProgress });
+          } finally {
+            bar.stop();
+          }
+          stored = true;
+          out(`session ${rep.sessionId} (${rep.created ? 'new' : 'existing'}): ${rep.importedRuns.length} run(s) imported, ${rep.changedFiles.length} changed file(s), ${rep.unchangedFiles.length} unchanged, ${rep.skippedRuns.length} skipped in ${((performance.now() - t0) / 1000).toFixed(2)} s`);
+          for (const w of rep.warnings ?? []) note(`warning: ${w}`);
+          if (o.reduce) {
+            // Every data run without a current result, not only this import's: a reduction that an
+            // earlier ingest could not finish (killed, disk full) is done now (main/repair.ts).
+            const todo = D().runsNeedingReduction(store, rep.sessionId);
+            const earlier = todo.filter((r) => !rep.importedRuns.includes(r)).length;
+            if (earlier) note(`session ${rep.sessionId}: ${earlier} data run(s) stored earlier had no current result; reducing them now`);
+            if (todo.length) await reduceAndTell(store, rep.sessionId, g(), { runs: todo });
+          }
+          if (rep.changedFiles.length) {
+            throw new InputError(`${rep.changedFiles.length} file(s) differ from what session ${rep.sessionId} holds and were not merged: ${rep.changedFiles.join(', ')} (the stored data are kept; import a changed session from a new folder)`);
+          }
+        });
+      } catch (e) {
+        // A first ingest that stored nothing leaves no (empty) database behind.
+        if (!existed && !stored) for (const f of [file, `${file}-wal`, `${file}-shm`, `${file}-journal`]) rmSync(f, { force: true });
+        throw e;
+      }
     });
 
   program
@@ -381,20 +408,28 @@ Examples:
     .option('--runs <list>', 'runs to reduce, e.g. 3,5-9', parseRunList)
     .option('--set <key=value>', 'reduction setting for this reduction, repeatable (e.g. liftTolAbs=0.03, mcDraws=200, badTaps=C3,C4)', parseSetting)
     .option('--save', 'keep the --set values as the session settings (audited)')
-    .action(async (o: { runs?: number[]; set?: Partial<Settings>; save?: boolean }) => {
-      await withStore(g(), false, async (store) => {
+    .option('--stale', 'reduce only the stale runs (reduced with other settings, bad taps or zeros than the session\'s now)')
+    .action(async (o: { runs?: number[]; set?: Partial<Settings>; save?: boolean; stale?: boolean }) => {
+      await withStore(g(), 'write', async (store) => {
         const sid = pickSession(store, g());
         let settings = o.set;
         if (o.save && settings) {
           store.updateSettings(sid, settings, actorOf(g()), 'rakeline reduce --save');
           settings = undefined;
         }
+        if (o.stale && o.runs) throw new UsageError('reduce: give either --runs or --stale, not both');
         if (o.runs) {
           const known = new Set(store.listRuns(sid).map((r) => r.run));
           const missing = o.runs.filter((r) => !known.has(r));
           if (missing.length) throw new InputError(`session ${sid} has no run(s) ${missing.join(', ')}`);
         }
-        await reduceAndTell(store, sid, g(), { runs: o.runs, settings });
+        const runs = o.stale ? D().staleRuns(store, sid) : o.runs;
+        if (o.stale && !runs?.length) return out(`session ${sid}: no stale results`);
+        await reduceAndTell(store, sid, g(), { runs, settings });
+        const nowStale = settings ? D().staleRuns(store, sid) : [];
+        if (nowStale.length) {
+          out(`note: ${nowStale.length} result(s) now differ from the session's settings and are marked stale (runs ${D().runRanges(nowStale)}); --save keeps --set values as the session's settings`);
+        }
       });
     });
 
@@ -418,7 +453,7 @@ Examples:
         opts.session = first;
         tapId = second;
       }
-      await withStore(opts, false, async (store) => {
+      await withStore(opts, 'write', async (store) => {
         const sid = pickSession(store, opts);
         const setup = store.getSetup(sid);
         if (!setup.taps.some((t) => t.id === tapId)) {
@@ -441,7 +476,7 @@ Examples:
     .action(async (run: number, o: { accept?: boolean; reject?: boolean; clear?: boolean; note: string }) => {
       const picked = [o.accept, o.reject, o.clear].filter(Boolean).length;
       if (picked !== 1) throw new UsageError('review: give exactly one of --accept, --reject or --clear');
-      await withStore(g(), false, (store) => {
+      await withStore(g(), 'write', (store) => {
         const sid = pickSession(store, g());
         if (!store.listRuns(sid).some((r) => r.run === run)) throw new InputError(`session ${sid} has no run ${run}`);
         store.setReview(sid, run, o.accept ? 'accepted' : o.reject ? 'rejected' : null, o.note, actorOf(g()));
@@ -454,11 +489,13 @@ Examples:
     .description('list the runs with their latest coefficients and flags')
     .addOption(new Option('--format <format>', 'output format').choices(['table', 'csv', 'json']).default('table'))
     .option('--flagged', 'only runs with flags')
-    .action(async (o: { format: string; flagged?: boolean }) => {
-      await withStore(g(), false, (store) => {
+    .option('--stale', 'only runs whose result is stale')
+    .action(async (o: { format: string; flagged?: boolean; stale?: boolean }) => {
+      await withStore(g(), 'read', (store) => {
         const sid = pickSession(store, g());
-        let rows = store.listRuns(sid);
+        let rows = D().listRunsMarked(store, sid);
         if (o.flagged) rows = rows.filter((r) => r.result && r.result.flags.length);
+        if (o.stale) rows = rows.filter((r) => r.stale);
         if (o.format === 'json') return out(JSON.stringify(rows, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2));
         if (o.format === 'csv') return void process.stdout.write(D().exportResultsCsv(rows, store.getSetup(sid), store.latestResults(sid)));
         out(runsTable(rows));
@@ -469,7 +506,7 @@ Examples:
     .command('settings')
     .description('show the session reduction settings (change them with reduce --set … --save)')
     .action(async () => {
-      await withStore(g(), false, (store) => out(JSON.stringify(store.getSettings(pickSession(store, g())), null, 2)));
+      await withStore(g(), 'read', (store) => out(JSON.stringify(store.getSettings(pickSession(store, g())), null, 2)));
     });
 
   program
@@ -478,11 +515,11 @@ Examples:
     .addOption(new Option('--format <format>', 'file format').choices(['csv', 'json']).default('csv'))
     .option('--out <file>', 'output file (default: standard output)')
     .action(async (o: { format: string; out?: string }) => {
-      await withStore(g(), false, (store) => {
+      await withStore(g(), 'read', (store) => {
         const sid = pickSession(store, g());
         const text = o.format === 'json'
           ? D().exportResultsJson(store, sid)
-          : D().exportResultsCsv(store.listRuns(sid), store.getSetup(sid), store.latestResults(sid));
+          : D().exportResultsCsv(D().listRunsMarked(store, sid), store.getSetup(sid), store.latestResults(sid));
         writeOut(text, o.out, `${o.format.toUpperCase()} export`);
       });
     });
@@ -492,21 +529,11 @@ Examples:
     .description('write the printable test-day summary sheet (self-contained HTML; print it or save as PDF)')
     .option('--out <file>', 'output file (default: standard output)')
     .addOption(new Option('--paper <size>', 'paper size').choices(['A4', 'Letter']).default('A4'))
-    .action(async (o: { out?: string; paper: 'A4' | 'Letter' }) => {
-      await withStore(g(), false, (store) => {
+    .option('--cp-runs <list>', 'also plot the Cp distributions of these runs, e.g. 3,5-9 (flagged runs always are)', parseRunList)
+    .action(async (o: { out?: string; paper: 'A4' | 'Letter'; cpRuns?: number[] }) => {
+      await withStore(g(), 'read', (store) => {
         const sid = pickSession(store, g());
-        const runs = store.listRuns(sid);
-        const html = D().daySheetHtml({
-          session: store.getSession(sid),
-          setup: store.getSetup(sid),
-          runs,
-          summary: D().sessionSummary(store, sid),
-          paper: o.paper,
-          generatedAt: new Date().toISOString(),
-          results: store.latestResults(sid),
-          settings: store.getSettings(sid),
-          appVersion: pkg.version,
-        });
+        const html = D().storedDaySheet(store, sid, { paper: o.paper, appVersion: pkg.version, ...(o.cpRuns ? { cpRuns: o.cpRuns } : {}) });
         writeOut(html, o.out, 'day sheet');
       });
     });
@@ -553,7 +580,8 @@ export async function main(argv: string[] = process.argv): Promise<number> {
       note(`rakeline: input error: ${e.message}`);
       return 1;
     }
-    const msg = e instanceof Error ? e.message : String(e);
+    let msg = e instanceof Error ? e.message : String(e);
+    if (deps && deps.isDiskFull(e) && !(e instanceof deps.StoreFullError)) msg = new deps.StoreFullError(dbPath(program.opts<GlobalOpts>()), msg).message;
     note(`rakeline: ${msg}`);
     if (process.env.RAKELINE_DEBUG && e instanceof Error && e.stack) note(e.stack);
     return 1;

@@ -2,11 +2,14 @@
 // exports, the progress bar and the folder watcher — loaded by main/cli.ts on first need
 // (`loadCliDeps`), so that `rakeline --version` and `--help` start without compiling the store,
 // the reduction core and zod (about half of the command line's start-up time).
-export { Store } from './store';
+export { Store, StoreFullError, isDiskFull } from './store';
+export { runsNeedingReduction } from './repair';
 export { importSessionFolder } from './import';
 export { reduceStoredSession, reduceStoredSessionAsync, sessionSummary } from './reduceService';
-export { daySheetHtml } from './daysheet';
+export { storedDaySheet } from './daysheetData';
 export { exportResultsCsv, exportResultsJson } from './export';
+export { listRunsMarked, staleRuns } from './stale';
+export { runRanges } from './daysheet';
 export { settingsPatchSchema } from '../app/log/schema';
 export { correctedMomentumCl } from '../app/reduce';
 export { SingleBar, Presets } from 'cli-progress';

@@ -21,8 +21,10 @@ import { parseRunIndexDetailed } from '../app/log/runIndex';
 import type { Store, RunRow, ImportProgress, ImportReport } from './store';
 import { folderSource, importSession, importSessionFolder, type SessionSource } from './import';
 import { reduceStoredSessionAsync, sessionSummary } from './reduceService';
+import { runsNeedingReduction } from './repair';
 import { zeroRunsFor } from '../app/samples';
-import { daySheetHtml } from './daysheet';
+import { storedDaySheet } from './daysheetData';
+import { listRunsMarked, staleMarks, staleRuns, withStale } from './stale';
 import { FLAG_CODES, flagLine } from '../app/flags';
 import { exportResultsCsv, exportResultsJson } from './export';
 
@@ -39,8 +41,11 @@ export interface HandlerContext {
   pickFolder?: (purpose?: 'import' | 'watch') => Promise<string | null>;
   /** Print HTML to a PDF file (Electron only); asks for a path when none is given; null = cancelled. */
   printPdf?: (html: string, paper: Paper, path?: string, suggestedName?: string) => Promise<string | null>;
-  /** Audit actor; default: the OS user name in Electron, 'browser' in browser mode. */
+  /** Audit actor; default: the OS user name in Electron, 'browser' in browser mode until the
+   *  page tells the reviewer's name ('reviewer.set'). */
   actor?: string;
+  /** Save bytes through a save dialog (Electron only); null = cancelled. */
+  saveFile?: (suggestedName: string, kind: 'svg' | 'png', bytes: Buffer) => Promise<string | null>;
   /** Called after anything that changes the session list or the watch state (menu refresh). */
   onChange?: (what: 'sessions' | 'watch') => void;
   /** Least time between two progress events of one task and phase, ms (default 100). */
@@ -197,7 +202,7 @@ const resultSchema = z.looseObject({
   wake: z.looseObject({ cd: num, captured: z.boolean() }).nullable(),
   walls: z.looseObject({ clMom: num, gammaWall: num, clWall: num }).nullable(),
   circulation: z.looseObject({ pressure: num, momentum: num, wall: num }),
-  correction: z.looseObject({ method: z.enum(['barlow-rae-pope', 'allen-vincenti', 'none']), sigma: num, eps: num }),
+  correction: z.looseObject({ method: z.enum(['barlow-rae-pope', 'allen-vincenti', 'maskell', 'wall-signature', 'none']), sigma: num, eps: num }),
   uncorrected: coefficientsSchema,
   corrected: coefficientsSchema,
   clMomentum: num,
@@ -301,8 +306,10 @@ async function requireDirectory(folder: string): Promise<string> {
 async function reduceAfterImport(
   store: Store, report: ImportReport, actor: string, onProgress?: (p: ImportProgress) => void,
 ): Promise<number> {
-  if (report.importedRuns.length === 0) return 0;
-  const runs = runsAffectedBy(store.listRuns(report.sessionId), report.importedRuns);
+  // This import's runs and the runs they bracket, and any data run an earlier import left without a
+  // current result (its reduction interrupted: main/repair.ts).
+  const affected = report.importedRuns.length ? runsAffectedBy(store.listRuns(report.sessionId), report.importedRuns) : [];
+  const runs = [...new Set([...affected, ...runsNeedingReduction(store, report.sessionId)])].sort((a, b) => a - b);
   if (runs.length === 0) return 0;
   return (await reduceStoredSessionAsync(store, report.sessionId, { runs, actor, onProgress })).results.length;
 }
@@ -336,6 +343,7 @@ export async function readySource(folder: string): Promise<{ source: SessionSour
   const base = folderSource(folder);
   if ((await base.size(SETUP_FILE)) === null || (await base.size(INDEX_FILE)) === null) return null;
   const text = await readFile(path.join(folder, INDEX_FILE), 'utf8');
+  if (text.split('\n').filter((l) => l.trim() !== '').length < 2) return null; // no run line yet
   const idx = parseRunIndexDetailed(text, INDEX_FILE);
   const sizes = new Map<string, number | null>();
   let cut = -1;
@@ -399,7 +407,8 @@ export async function disposeHandlers(handlers: Handlers): Promise<void> {
 
 export function createHandlers(ctx: HandlerContext): Handlers {
   const { store, emit } = ctx;
-  const actor = ctx.actor ?? (ctx.mode === 'electron' ? osActor() : 'browser');
+  let actor = ctx.actor ?? (ctx.mode === 'electron' ? osActor() : 'browser');
+  let named = ctx.actor !== undefined || ctx.mode === 'electron';
   const interval = ctx.progressIntervalMs ?? 100;
   const changed = (what: 'sessions' | 'watch') => ctx.onChange?.(what);
   let live: LiveState | null = null;
@@ -488,7 +497,17 @@ export function createHandlers(ctx: HandlerContext): Handlers {
   const handlers: Handlers = {
     'app.info': async () => ({
       version: pkg.version, coreVersion: CORE_VERSION, mode: ctx.mode, demoSessionId: ctx.demoSessionId, dbFile: store.file,
+      reviewer: named ? actor : null,
     }),
+    'reviewer.set': async ({ name }) => {
+      actor = name.trim();
+      named = true;
+      return { reviewer: actor };
+    },
+    'file.save': async ({ suggestedName, kind, base64 }) => {
+      if (!ctx.saveFile) return { path: null, supported: false };
+      return { path: await ctx.saveFile(suggestedName, kind, Buffer.from(base64, 'base64')), supported: true };
+    },
     'sessions.list': async () => store.listSessions(),
     'sessions.get': async ({ sessionId }) => ({
       session: store.getSession(sessionId), setup: store.getSetup(sessionId), settings: store.getSettings(sessionId),
@@ -509,9 +528,9 @@ export function createHandlers(ctx: HandlerContext): Handlers {
         await rm(dir, { recursive: true, force: true });
       }
     },
-    'runs.list': async ({ sessionId }) => store.listRuns(sessionId),
+    'runs.list': async ({ sessionId }) => listRunsMarked(store, sessionId),
     'runs.get': async ({ sessionId, run }) => ({
-      row: store.getRun(sessionId, run),
+      row: withStale([store.getRun(sessionId, run)], staleMarks(store, sessionId))[0],
       result: store.latestResult(sessionId, run),
       history: store.resultHistory(sessionId, run),
     }),
@@ -525,8 +544,11 @@ export function createHandlers(ctx: HandlerContext): Handlers {
       if (!zeroed) fail('not-found', `Run ${run} of session ${sessionId} has no stored samples.`);
       return { setup, settings, zeroed };
     },
-    'runs.reduce': async ({ sessionId, runs, taskId }) => {
+    'runs.reduce': async ({ sessionId, runs: listed, stale, taskId }) => {
       store.getSession(sessionId);
+      if (stale && listed?.length) fail('validation', 'Invalid payload for "runs.reduce": give either runs or stale, not both');
+      const runs = stale ? staleRuns(store, sessionId) : listed;
+      if (stale && !runs?.length) return { reduced: 0, summary: sessionSummary(store, sessionId) };
       if (runs?.length) {
         const kinds = new Map(store.listRuns(sessionId).map((r) => [r.run, r.kind]));
         const bad = runs.find((r) => kinds.get(r) !== 'data');
@@ -573,13 +595,13 @@ export function createHandlers(ctx: HandlerContext): Handlers {
       store.getSession(sessionId);
       return store.auditTrail(sessionId);
     },
-    'daysheet.html': async ({ sessionId, paper }) => ({ html: sheetHtml(store, sessionId, paper) }),
-    'daysheet.pdf': async ({ sessionId, paper, path: target }) => {
+    'daysheet.html': async ({ sessionId, paper, cpRuns }) => ({ html: sheetHtml(store, sessionId, paper, cpRuns) }),
+    'daysheet.pdf': async ({ sessionId, paper, cpRuns, path: target }) => {
       if (!ctx.printPdf) return { path: null, supported: false };
       if (target !== undefined && (!path.isAbsolute(target) || !/\.pdf$/i.test(target))) {
         fail('validation', `Invalid payload for "daysheet.pdf": path: must be an absolute path ending in .pdf`);
       }
-      const html = sheetHtml(store, sessionId, paper);
+      const html = sheetHtml(store, sessionId, paper, cpRuns);
       const out = await ctx.printPdf(html, paper, target, `${sessionTitleSlug(sessionId)}-day-sheet.pdf`);
       return { path: out, supported: true };
     },
@@ -587,7 +609,7 @@ export function createHandlers(ctx: HandlerContext): Handlers {
       const setup = store.getSetup(sessionId);
       const base = sessionTitleSlug(sessionId);
       if (format === 'csv') {
-        const text = exportResultsCsv(store.listRuns(sessionId), setup, store.latestResults(sessionId));
+        const text = exportResultsCsv(listRunsMarked(store, sessionId), setup, store.latestResults(sessionId));
         return { text, suggestedName: `${base}-results.csv`, mime: 'text/csv' };
       }
       return { text: exportResultsJson(store, sessionId), suggestedName: `${base}-results.json`, mime: 'application/json' };
@@ -627,17 +649,6 @@ export function createHandlers(ctx: HandlerContext): Handlers {
   return handlers;
 }
 
-function sheetHtml(store: Store, sessionId: number, paper: Paper): string {
-  const runs = store.listRuns(sessionId);
-  return daySheetHtml({
-    session: store.getSession(sessionId),
-    setup: store.getSetup(sessionId),
-    runs,
-    summary: sessionSummary(store, sessionId),
-    paper,
-    generatedAt: new Date().toISOString(),
-    results: store.latestResults(sessionId),
-    settings: store.getSettings(sessionId),
-    appVersion: pkg.version,
-  });
+function sheetHtml(store: Store, sessionId: number, paper: Paper, cpRuns?: number[]): string {
+  return storedDaySheet(store, sessionId, { paper, appVersion: pkg.version, ...(cpRuns ? { cpRuns } : {}) });
 }

@@ -23,7 +23,7 @@ describe('first import', () => {
     const store = freshStore(dir);
     const parsed = await readSessionFolder(f.dir);
     const rep = store.importParsed(parsed, 'M. Okonkwo');
-    expect(rep).toEqual({ sessionId: 1, created: true, importedRuns: f.index.map((i) => i.run), unchangedFiles: [], changedFiles: [], skippedRuns: [] });
+    expect(rep).toEqual({ sessionId: 1, created: true, importedRuns: f.index.map((i) => i.run), unchangedFiles: [], changedFiles: [], skippedRuns: [], warnings: [] });
     const s = store.getSession(1);
     expect([s.title, s.date, s.model, s.runCount, s.dataRunCount, s.folder]).toEqual(['HAL-S4412 mini test', '2026-11-18', 'HAL-S4412', f.index.length, 4, f.dir]);
     expect(store.getSetup(1)).toEqual(f.setup);
@@ -159,6 +159,27 @@ describe('re-import', () => {
     expect(rep.changedFiles).toEqual([]);
     expect(rep.importedRuns).toEqual([]);
     expect(rep.unchangedFiles).toContain('runs/run-0002.csv');
+    store.close();
+  });
+
+  it('a run file back to bytes stored before (LF → CRLF → LF) re-imports cleanly', async () => {
+    // Found by test/import-fuzz.test.ts (seed 692876779): the third import tried to store the first
+    // bytes' source row a second time and failed on the UNIQUE (session, name, sha256) key.
+    const dir = tempDir();
+    const f = miniFolder(join(dir, 's'));
+    const store = freshStore(dir);
+    await importSessionFolder(store, f.dir);
+    const path = join(f.dir, 'runs/run-0002.csv');
+    const lf = readFileSync(path, 'utf8');
+    editFile(path, (t) => t.replace(/\n/g, '\r\n'));
+    await importSessionFolder(store, f.dir);
+    editFile(path, () => lf);
+    const before = dbSnapshot(store);
+    const rep = await importSessionFolder(store, f.dir);
+    expect(rep.changedFiles).toEqual([]);
+    expect(rep.importedRuns).toEqual([]);
+    expect(rep.unchangedFiles).toContain('runs/run-0002.csv');
+    expect(dbSnapshot(store)).toBe(before);
     store.close();
   });
 

@@ -7,12 +7,14 @@ import { clAlphaConfig, cmAlphaConfig, dragPolarConfig, spanConfig, sweepDirecti
 import { Plot } from '../components/Plot';
 import { fix } from '../format';
 import { SEVERITY } from '../../app/flags';
+import { StaleBadge } from '../components/FlagBadge';
 
 export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number): void }) {
   const summary = data.summary;
   const pts = summary?.polar ?? [];
   const stats = summary?.stats ?? null;
   const held = useMemo(() => new Set(data.runs.filter((r) => r.result?.flags.some((f) => f.severity === 'reject')).map((r) => r.run)), [data.runs]);
+  const flagsOf = useMemo(() => new Map(data.runs.map((r) => [r.run, r.result?.flags ?? []])), [data.runs]);
   const cla = useMemo(() => clAlphaConfig(pts, stats, held), [pts, stats, held]);
   const drag = useMemo(() => dragPolarConfig(pts, held), [pts, held]);
   const cm = useMemo(() => cmAlphaConfig(pts, held), [pts, held]);
@@ -25,6 +27,7 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
   const spanCfg = useMemo(() => spanConfig(span.filter((s) => chosen.includes(s.run))), [span, chosen]);
   const dirs = sweepDirections(pts);
   const ups = dirs.filter((d) => d === 'up').length;
+  const staleOf = new Map(data.runs.filter((r) => r.stale).map((r) => [r.run, r.stale!]));
 
   if (pts.length === 0) return <p className="empty">No reduced data runs yet: import a session or re-reduce it.</p>;
   const perRad = stats ? stats.liftSlopePerDeg * (180 / Math.PI) : NaN;
@@ -42,7 +45,7 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
             <div><dt>(L/D)<sub>max</sub></dt><dd>{fix(stats.ldMax, 1)} at α {fix(stats.alphaLdMaxDeg, 2)}°</dd></div>
             <div><dt>hysteresis</dt><dd>{stats.hysteresis ? <>largest |Δc<sub>l</sub>| {fix(stats.hysteresis.maxDeltaCl, 4)} at α {fix(stats.hysteresis.alphaDeg, 1)}° (down − up)</> : 'no matching up/down points'}</dd></div>
             <div><dt>repeat spread</dt><dd>{stats.repeatSpread === null ? 'no repeats' : `${fix(stats.repeatSpread, 4)} in cl`}</dd></div>
-            <div><dt>points</dt><dd>{pts.length} runs: {ups} on the up-sweep, {pts.length - ups} on the down-sweep; {pts.filter((p) => p.flagged).length} flagged, {held.size} on hold ✕</dd></div>
+            <div><dt>points</dt><dd>{pts.length} runs: {ups} on the up-sweep, {pts.length - ups} on the down-sweep; {pts.filter((p) => p.flagged).length} flagged, {held.size} on hold ✕{staleOf.size ? <>; <b className="warn-text" data-testid="polars-stale">{staleOf.size} stale</b> (reduced with other settings, bad taps or zeros; re-reduce them in the Day log)</> : null}</dd></div>
           </dl>
         ) : <p>Too few runs for session statistics.</p>}
         <p className="small muted">Legend: blue = c<sub>l</sub> from surface pressures, orange = c<sub>l</sub> from wall momentum; solid line + filled marker = up-sweep (α rising), dashed line + open marker = down-sweep (α falling); ✕ = run on hold (a reject flag; see the Day log). Corrected values.</p>
@@ -86,7 +89,7 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
         <h3>Points</h3>
         <div className="table-scroll short">
           <table className="runs compact">
-            <thead><tr><th scope="col">run</th><th scope="col">sweep</th><th scope="col" className="num">α<sub>c</sub> [°]</th><th scope="col" className="num">c<sub>l</sub> p</th><th scope="col" className="num">c<sub>l</sub> mom</th><th scope="col" className="num">c<sub>d</sub> wake</th><th scope="col" className="num">c<sub>d</sub> p</th><th scope="col" className="num">c<sub>m c/4</sub></th><th scope="col">flag</th></tr></thead>
+            <thead><tr><th scope="col">run</th><th scope="col">sweep</th><th scope="col" className="num">α<sub>c</sub> [°]</th><th scope="col" className="num">c<sub>l</sub> p</th><th scope="col" className="num">c<sub>l</sub> mom</th><th scope="col" className="num">c<sub>d</sub> wake</th><th scope="col" className="num">c<sub>d</sub> p</th><th scope="col" className="num">c<sub>m c/4</sub></th><th scope="col">flags and reasons</th></tr></thead>
             <tbody>
               {pts.map((p, i) => (
                 <tr key={p.run} className={held.has(p.run) ? 'row-reject' : p.flagged ? 'row-warn' : undefined}>
@@ -94,7 +97,9 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
                   <td>{dirs[i] === 'up' ? '↗ up' : '↘ down'}</td>
                   <td className="num">{fix(p.alphaDeg, 2)}</td><td className="num">{fix(p.cl, 4)}</td><td className="num">{fix(p.clMom, 4)}</td>
                   <td className="num">{fix(p.cd, 5)}</td><td className="num">{fix(p.cdp, 5)}</td><td className="num">{fix(p.cmc4, 4)}</td>
-                  <td>{held.has(p.run) ? `${SEVERITY.reject.glyph} ${SEVERITY.reject.word}` : p.flagged ? `${SEVERITY.warn.glyph} ${SEVERITY.warn.word}` : ''}</td>
+                  <td className="flag-reasons">{(flagsOf.get(p.run) ?? []).map((f, k) => (
+                    <div key={k}><b>{SEVERITY[f.severity].glyph} {SEVERITY[f.severity].word}:</b> {f.reason}</div>
+                  ))}{staleOf.has(p.run) ? <StaleBadge mark={staleOf.get(p.run)!} /> : null}</td>
                 </tr>
               ))}
             </tbody>
