@@ -5,8 +5,10 @@
 
 /** Stored with every result; raised whenever the reduced numbers change (0.2.0: the
  *  Barlow, Rae & Pope wake blockage is (c/2h)·cd_u as REDUCTION.md §8 gives it, not (c/4h)·cd_u;
- *  the Monte Carlo normal deviates come from the polar Box–Muller method, so other draws). */
-export const CORE_VERSION = '0.2.0';
+ *  the Monte Carlo normal deviates come from the polar Box–Muller method, so other draws;
+ *  0.3.0: the reduction's own errors and the transducer groups in the uncertainty, every interval
+ *  on the corrected basis, corrected Γ, the per-run budget). */
+export const CORE_VERSION = '0.3.0';
 
 export type PressureUnit =
   | 'Pa' | 'kPa' | 'hPa' | 'mbar' | 'psi' | 'inH2O' | 'mmH2O' | 'mmHg' | 'torr';
@@ -92,6 +94,26 @@ export interface Channel {
   uncertainty: InstrumentUncertainty;
 }
 
+/** Channels that share one transducer or scanner module (setup `transducerGroups`): their errors
+ *  are correlated. Standard uncertainties (k = 1). See app/instruments.ts and docs/LOG-FORMAT.md. */
+export interface TransducerGroup {
+  id: string;
+  /** Channel names (each in at most one group). */
+  channels: string[];
+  /** Unit of `zero` and `fullScale`. */
+  unit: PressureUnit;
+  /** Full scale of the transducer(s), in `unit`. */
+  fullScale: number;
+  /** Gain (span) error common to the group, % of reading. */
+  gainPercent: number;
+  /** Zero (offset) error common to the group, in `unit`: removed by the wind-off zero; counted in
+   *  full only for a run without one. */
+  zero: number;
+  /** Each channel's own error at a reading (non-linearity, hysteresis, repeatability), % of full
+   *  scale, independent from channel to channel and not removed by the zero. */
+  linearityPercentFS: number;
+}
+
 export interface ModelDef {
   name: string;
   /** Chord c, m. */
@@ -124,6 +146,9 @@ export interface Setup {
   floor: WallTap[];
   ceiling: WallTap[];
   channels: Channel[];
+  /** Channels sharing a transducer or module (optional; without it every channel's own
+   *  uncertainty is an independent error, as before). */
+  transducerGroups?: TransducerGroup[];
   /** Session defaults overriding DEFAULT_SETTINGS. */
   settings?: Partial<Settings>;
 }
@@ -261,6 +286,38 @@ export interface Interval {
   u: number;
   lo: number;
   hi: number;
+  /** Mean of the Monte Carlo values, when `value` is the nominal result instead. */
+  mean?: number;
+}
+
+/** Outputs that carry an uncertainty (all on the corrected basis). */
+export type UncertaintyKey = 'cl' | 'cd' | 'cdp' | 'cmc4' | 'clMom' | 'gammaPressure' | 'gammaMomentum' | 'gammaWall';
+
+/** One line of the budget: an input quantity (or a group of independent ones) and what it
+ *  contributes to each output, c_i·u(x_i) (JCGM 100 §5.1.3, eq. 10 terms). */
+export interface BudgetLine {
+  /** Short name of the source. */
+  source: string;
+  /** Kind: instrument, reference, geometry, reduction (the method's own error), correction model. */
+  kind: 'instrument' | 'reference' | 'geometry' | 'reduction' | 'correction';
+  /** Standard uncertainty of the input in its own unit (text, e.g. "0.05°"), and how it was found. */
+  u: string;
+  basis: string;
+  /** Several independent inputs combined (then no single sensitivity). */
+  inputs: number;
+  /** Sensitivity ∂y/∂x per output (per unit of `u`), when the line is one input. */
+  sensitivity?: Partial<Record<UncertaintyKey, number>>;
+  /** |c_i|·u(x_i) per output (root-sum-square over the inputs of the line). */
+  contribution: Partial<Record<UncertaintyKey, number>>;
+}
+
+/** The per-run budget: its lines, the combined standard uncertainty by JCGM 100 eq. (10), the
+ *  analytic 95 % interval value ± k·u_c (k = 1.96, normal) beside the Monte Carlo one. */
+export interface UncertaintyBudget {
+  lines: BudgetLine[];
+  combined: Partial<Record<UncertaintyKey, number>>;
+  analytic: Partial<Record<UncertaintyKey, { lo: number; hi: number }>>;
+  k: number;
 }
 
 export interface TapCp {
@@ -373,16 +430,24 @@ export interface RunResult {
   surface: SurfaceLoads;
   wake: WakeResult | null;
   walls: WallResult | null;
-  /** Bound circulation Γ by Kutta–Joukowski from each method, m²/s. */
+  /** Bound circulation Γ by Kutta–Joukowski from each method, m²/s, UNCORRECTED: ½·V_u·c·cl_u
+   *  (pressure, momentum) and the wall line integral as measured. */
   circulation: { pressure: number; momentum: number; wall: number };
+  /** The same on the corrected basis: ½·V·c·cl with V and cl corrected (the wall line integral
+   *  scaled by the same factor (1 + ε)(1 − σ − 2ε)). The intervals of `uncertainty` sit on these. */
+  circulationCorrected?: { pressure: number; momentum: number; wall: number };
   correction: CorrectionResult;
   uncorrected: Coefficients;
   corrected: Coefficients;
   /** cl by the wall-momentum method (uncorrected), for the cross-check. */
   clMomentum: number;
   spanwise: { spread: number; CL: number } | null;
-  /** 95 % intervals (Monte Carlo) of the corrected coefficients and circulations. */
-  uncertainty: Partial<Record<'cl' | 'cd' | 'cdp' | 'cmc4' | 'clMom' | 'gammaPressure' | 'gammaMomentum', Interval>>;
+  /** 95 % intervals (Monte Carlo, JCGM 101) of the corrected coefficients, the corrected
+   *  momentum cl and the corrected circulations (circulationCorrected); `value` is the nominal
+   *  corrected figure printed beside the interval, `mean` the mean of the draws. */
+  uncertainty: Partial<Record<UncertaintyKey, Interval>>;
+  /** GUM-style budget (JCGM 100 §8) of the same outputs; absent when Monte Carlo is off. */
+  budget?: UncertaintyBudget;
   flags: Flag[];
   /** Inviscid panel-method Cp at the corrected α (x/c, Cp, surface). */
   inviscid: { x: number; cp: number; surface: Surface }[];

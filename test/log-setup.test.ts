@@ -157,7 +157,7 @@ describe('docs/setup.schema.json', () => {
   it('describes the fields of the Setup type', () => {
     const s = JSON.parse(schemaText());
     expect(s.$schema).toBe('https://json-schema.org/draft/2020-12/schema');
-    expect(Object.keys(s.properties).sort()).toEqual(Object.keys(miniSetup()).sort());
+    expect(Object.keys(s.properties).sort()).toEqual([...Object.keys(miniSetup()), 'transducerGroups'].sort());
     expect(s.required).toEqual(['formatVersion', 'session', 'facility', 'model', 'taps', 'rake', 'floor', 'ceiling', 'channels']);
   });
 });
