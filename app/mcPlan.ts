@@ -38,6 +38,8 @@ import { angleFluxIntegral, angleFluxTerm, momentumCl, speedRatio, wallGrid } fr
 export interface PlanLayout {
   dpRef: string;
   pStatic: string;
+  /** The free-stream total-pressure reference, when the setup has one (the wake's q∞ = H∞ − p∞). */
+  pTotal?: string;
   taps: { id: string; x: number; y: number; surface: Surface; row: string; ch: string }[];
   rakeTotal: { y: number; ch: string }[];
   rakeStatic: { y: number; ch: string }[];
@@ -85,6 +87,8 @@ export interface McPlan {
   rh: number;
   iDp: number;
   iPs: number;
+  /** H∞ channel (−1: none, the wake uses q_u). */
+  iPt: number;
   /** Every tap (for the bound check): value index and nominal x. */
   allVal: Int32Array;
   /** Main-row good taps by slot; slots [0, nU) upper, [nU, n) lower, each in nominal contour order. */
@@ -175,6 +179,8 @@ export function buildMcPlan(
   const idx = (name: string): number => index.get(name) ?? -1;
   const iDp = idx(L.dpRef);
   const iPs = idx(L.pStatic);
+  const iPt = L.pTotal !== undefined ? idx(L.pTotal) : -1;
+  if (L.pTotal !== undefined && iPt < 0) return null;
   const allVal = Int32Array.from(L.taps, (t) => idx(t.ch));
   if (iDp < 0 || iPs < 0 || allVal.some((k) => k < 0)) return null;
 
@@ -259,6 +265,7 @@ export function buildMcPlan(
     rh: info.humidity,
     iDp,
     iPs,
+    iPt,
     allVal,
     n,
     nU: upper.length,
@@ -374,14 +381,16 @@ export function evalMcPlan(
   let angleCl = 0;
   if (P.nT > 0) {
     const { nT, tVal, cpt, jones, statics } = P;
+    const qW = P.iPt >= 0 ? vals[P.iPt] - pInf : q;
+    if (!(qW > 0)) return false;
     const st = P.tStatic;
     if (st && P.sVal) for (let j = 0; j < statics.length; j++) statics[j] = vals[P.sVal[j]];
     for (let i = 0; i < nT; i++) {
       const H = vals[tVal[i]];
       const pw = st ? applyStencil(st.lo[i], st.hi[i], st.t[i], statics) : pInf;
-      cpt[i] = (H - pInf) / q;
+      cpt[i] = (H - pInf) / qW;
       cpBound += Math.abs(cpt[i]);
-      jones[i] = jonesTerm((H - pw) / q, cpt[i]);
+      jones[i] = jonesTerm((H - pw) / qW, cpt[i]);
     }
     cdU = jonesIntegral(P.tY, jones, P.chord);
     const ac = P.aCpt;

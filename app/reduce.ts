@@ -214,7 +214,8 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     wake = jonesDrag({
       probes: L.rakeTotal.map((r) => ({ y: r.y, H: v(r.ch.name), ps: statics.length ? interpolateStatic(statics, r.y) : undefined })),
       pInf,
-      qInf: q,
+      // Jones' q∞ = H∞ − p∞ (REDUCTION.md §4) when the setup measures H∞; else k_q·Δp_ref.
+      qInf: L.pTotal ? v(L.pTotal.name) - pInf : q,
       chord: setup.model.chord,
       edgeTol: settings.wakeEdgeTol,
     });
@@ -591,6 +592,7 @@ function planLayout(L: Layout): PlanLayout {
   const P: PlanLayout = {
     dpRef: L.dpRef.name,
     pStatic: L.pStatic.name,
+    ...(L.pTotal ? { pTotal: L.pTotal.name } : {}),
     taps: L.taps.map(({ tap, ch }) => ({ id: tap.id, x: tap.x, y: tap.y, surface: tap.surface, row: tap.row, ch: ch.name })),
     rakeTotal: L.rakeTotal.map((r) => ({ y: r.y, ch: r.ch.name })),
     rakeStatic: L.rakeStatic.map((r) => ({ y: r.y, ch: r.ch.name })),
