@@ -4,6 +4,7 @@
 // flag when |cl_mom − cl_p| > tol_abs + tol_rel·|cl_p| (default 0.02 + 3 %: common practice, no source).
 
 import type { Flag } from './types';
+import { flagLine, makeFlag } from './flags';
 
 /** Circulation per Kutta–Joukowski from a section lift coefficient: Γ = ½ V c cl (m²/s). */
 export function gammaFromCl(cl: number, V: number, chord: number): number {
@@ -29,8 +30,6 @@ export function liftTolerance(clPressure: number, tolAbs: number, tolRel: number
   return tolAbs + tolRel * Math.abs(clPressure);
 }
 
-const f3 = (v: number): string => v.toFixed(3);
-
 /**
  * 'lift-mismatch' (reject) when the wall-momentum lift departs from the surface-pressure lift by
  * more than the tolerance; null when they agree or when either value is not finite (no check
@@ -42,20 +41,10 @@ export function liftCrossCheck(args: LiftCrossCheckArgs): Flag | null {
   const diff = Math.abs(clMomentum - clPressure);
   const tol = liftTolerance(clPressure, tolAbs, tolRel);
   if (!(diff > tol)) return null;
-  const wall =
-    clWall !== undefined && Number.isFinite(clWall)
-      ? `; the wall circulation integral gives ${f3(clWall)}`
-      : '';
-  return {
-    code: 'lift-mismatch',
-    severity: 'reject',
-    reason:
-      `Lift methods disagree: surface pressures give cl = ${f3(clPressure)}, ` +
-      `wall momentum gives ${f3(clMomentum)} (difference ${f3(diff)}, tolerance ${f3(tol)})${wall}.`,
-  };
+  return makeFlag('lift-mismatch', { clPressure, clMomentum, tol, clWall });
 }
 
-/** One-line text of a flag for tables and the day sheet, e.g. "REJECT lift-mismatch: …". */
+/** One-line text of a flag for plain-text tables, e.g. "hold: lift methods disagree — …". */
 export function flagText(flag: Flag): string {
-  return `${flag.severity === 'reject' ? 'REJECT' : 'WARN'} ${flag.code}: ${flag.reason}`;
+  return flagLine(flag, 'reason');
 }

@@ -30,6 +30,7 @@ import { runBudget } from './budget';
 import { orderContour } from './surface';
 import { buildMcPlan, evalMcPlan, type McPlan, type McValues, type PlanLayout } from './mcPlan';
 import { sessionStats } from './session';
+import { makeFlag } from './flags';
 import { toPascal, isPressureUnit } from './units';
 
 export function resolveSettings(setup: Setup, overrides?: Partial<Settings>): Settings {
@@ -291,10 +292,6 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
 
 // ---------------------------------------------------------------------------------------------
 
-function fmt(x: number, d = 3): string {
-  return Number.isFinite(x) ? x.toFixed(d) : '—';
-}
-
 /** The nominal result of a run: a first pass with no taps dropped finds the bad taps, a second
  *  pass (when there are any) drops and bridges them. */
 function nominalPass(
@@ -346,61 +343,39 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
   if (cross) flags.push(cross);
   if (nominal.wake && !nominal.wake.captured) {
     const [lo, hi] = nominal.wake.edgeCpt;
-    flags.push({
-      code: 'wake-not-captured',
-      severity: 'reject',
-      reason: `Wake not captured by the rake: edge total pressure (H − p∞)/q∞ = ${fmt(lo, 4)} (lower) and ${fmt(hi, 4)} (upper), which should be within ${settings.wakeEdgeTol} of 1 with the largest deficit inside the rake; the deficit peaks at y = ${fmt(peakY(nominal.wake) * 1000, 0)} mm. The wake drag (cd = ${fmt(nominal.wake.cd, 4)}) is not reliable.`,
-    });
+    flags.push(makeFlag('wake-not-captured', { edgeLo: lo, edgeHi: hi, tol: settings.wakeEdgeTol, peakMm: peakY(nominal.wake) * 1000, cd: nominal.wake.cd }));
   }
   const qStats = run.stats[L.dpRef.name];
   if (qStats) {
     const u = unsteadiness(qStats);
     if (u > settings.unsteadyThreshold) {
-      flags.push({
-        code: 'unsteady',
-        severity: 'warn',
-        reason: `Unsteady run: the reference pressure fluctuates by ${fmt(u * 100, 1)} % (std/mean), above the ${fmt(settings.unsteadyThreshold * 100, 1)} % limit.`,
-      });
+      flags.push(makeFlag('unsteady', { fraction: u, limit: settings.unsteadyThreshold }));
     }
   }
   const leaks = bad.filter((b) => b.reason === 'leak');
   if (leaks.length) {
-    flags.push({
-      code: 'leaking-tap',
-      severity: 'warn',
-      reason: `Leaking tap${leaks.length > 1 ? 's' : ''} ${leaks.map((b) => b.id).join(', ')}: the wind-off zero sits more than ${settings.leakPa} Pa from the other taps'; dropped and bridged.`,
-    });
+    flags.push(makeFlag('leaking-tap', { taps: leaks.map((b) => b.id), leakPa: settings.leakPa }));
   }
   // Taps the user marked are bridged without a flag: the user already knows about them.
   const others = bad.filter((b) => b.reason !== 'leak' && b.reason !== 'marked');
   if (others.length) {
-    flags.push({
-      code: 'bad-tap',
-      severity: 'warn',
-      reason: `Bad tap${others.length > 1 ? 's' : ''} dropped and bridged: ${others.map((b) => `${b.id} (${badWords(b.reason)})`).join(', ')}.`,
-    });
+    flags.push(makeFlag('bad-tap', { taps: others }));
   }
   if (!run.zeroRuns.length) {
-    flags.push({ code: 'no-zero', severity: 'warn', reason: 'No wind-off zero was found for this run; channels are not zero-corrected.' });
+    flags.push(makeFlag('no-zero', {}));
   } else {
     const limit = settings.zeroDriftFraction * nominal.uncorrected.q;
     const drifting = Object.entries(run.drift).filter(([n, d]) => L.scale.has(n) && !L.angle.has(n) && Math.abs(d) > limit);
     if (drifting.length) {
       const worst = drifting.reduce((a, b) => (Math.abs(b[1]) > Math.abs(a[1]) ? b : a));
-      flags.push({
-        code: 'zero-drift',
-        severity: 'warn',
-        reason: `Zero drift: ${drifting.length} channel${drifting.length > 1 ? 's' : ''} changed by more than ${fmt(settings.zeroDriftFraction * 100, 1)} % of q between the wind-off zeros (runs ${run.zeroRuns.join(' and ')}); largest ${worst[0]} ${fmt(worst[1], 1)} Pa.`,
-      });
+      flags.push(makeFlag('zero-drift', {
+        channels: drifting.length, fraction: settings.zeroDriftFraction, zeroRuns: run.zeroRuns, worstChannel: worst[0], worstPa: worst[1],
+      }));
     }
   }
   const M = nominal.fs.M;
   if (M > settings.machLimit) {
-    flags.push({
-      code: 'compressible',
-      severity: 'warn',
-      reason: `Mach ${fmt(M, 3)} exceeds ${settings.machLimit}: the incompressible reduction is no longer adequate.`,
-    });
+    flags.push(makeFlag('compressible', { M, limit: settings.machLimit }));
   }
   let spanwise: RunResult['spanwise'] = null;
   if (nominal.rows.length > 1) {
@@ -460,15 +435,6 @@ function peakY(w: WakeResult): number {
   return best ? best.y : NaN;
 }
 
-function badWords(reason: string): string {
-  switch (reason) {
-    case 'marked': return 'marked bad by the user';
-    case 'stagnation': return 'Cp above stagnation';
-    case 'outlier': return 'outlier against its neighbours';
-    case 'leak': return 'leak at wind-off';
-    default: return reason;
-  }
-}
 
 type UKey = UncertaintyKey;
 

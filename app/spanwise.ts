@@ -6,6 +6,7 @@
 
 import { interpLinear, trapezoid } from './quadrature';
 import type { Flag, RowLoads, TapCp } from './types';
+import { makeFlag } from './flags';
 
 export interface SpanLoading {
   /** max − min of the rows' section cl. */
@@ -52,15 +53,7 @@ export function spanLoading(
   if (spread > tol) {
     const lo = sorted.reduce((a, b) => (b.cl < a.cl ? b : a));
     const hi = sorted.reduce((a, b) => (b.cl > a.cl ? b : a));
-    flag = {
-      code: 'span-spread',
-      severity: 'warn',
-      reason:
-        `Section cl varies by ${spread.toFixed(3)} across ${n} spanwise rows ` +
-        `(row ${lo.row} at z = ${lo.z.toFixed(3)} m: ${lo.cl.toFixed(3)}; ` +
-        `row ${hi.row} at z = ${hi.z.toFixed(3)} m: ${hi.cl.toFixed(3)}), more than the tolerance ` +
-        `${tol.toFixed(3)}: the flow may not be two-dimensional`,
-    };
+    flag = makeFlag('span-spread', { spread, rows: n, lo, hi, tol });
   }
   return { spread, CL, z, cl, flag };
 }

@@ -260,16 +260,9 @@ export interface ZeroedRun {
   zeroRaw?: Record<string, number>;
 }
 
-export type FlagCode =
-  | 'lift-mismatch'
-  | 'wake-not-captured'
-  | 'unsteady'
-  | 'bad-tap'
-  | 'leaking-tap'
-  | 'zero-drift'
-  | 'no-zero'
-  | 'compressible'
-  | 'span-spread';
+/** Flag codes: the keys of the one vocabulary table (app/flags.ts); add a code there. */
+export type { FlagCode } from './flags';
+import type { FlagCode } from './flags';
 
 export interface Flag {
   code: FlagCode;

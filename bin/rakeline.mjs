@@ -1,8 +1,9 @@
 #!/usr/bin/env node
-// Launcher of the `rakeline` command line: registers tsx so the TypeScript sources run as they are,
-// then hands over to main/cli.ts. The exit code is set by the CLI (0 ok, 1 bad input, 2 usage).
-import { register } from 'tsx/esm/api';
+// Launcher of the `rakeline` command line. It runs the compiled JavaScript in dist/node (built by
+// `npm install`; rebuilt here first when a source changed, see scripts/compiled.mjs), so no
+// compiler runs at start-up. RAKELINE_FROM_SOURCES=1 runs the TypeScript sources through tsx
+// instead (development). The exit code is set by the CLI (0 ok, 1 bad input, 2 usage).
+import { loadEntry } from '../scripts/compiled.mjs';
 
-register();
-const { main } = await import(new URL('../main/cli.ts', import.meta.url).href);
+const { main } = await loadEntry('cli', 'main/cli.ts');
 process.exitCode = await main(process.argv);

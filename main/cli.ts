@@ -5,21 +5,26 @@ import { existsSync, writeFileSync } from 'node:fs';
 import { relative, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { Command, CommanderError, InvalidArgumentError, Option } from 'commander';
-import { SingleBar, Presets } from 'cli-progress';
-import { watch } from 'chokidar';
-import { Store, type RunRow, type ImportProgress } from './store';
-import { importSessionFolder } from './import';
-import { reduceStoredSession, reduceStoredSessionAsync, sessionSummary } from './reduceService';
-import { daySheetHtml } from './daysheet';
-import { exportResultsCsv, exportResultsJson } from './export';
-import { runsAffectedBy } from './handlers';
+import type { Store, RunRow, ImportProgress } from './store';
+import type * as CliDeps from './cliDeps';
 import pkg from '../package.json';
 import { isLogError } from '../app/log/errors';
-import { settingsPatchSchema } from '../app/log/schema';
-import { correctedMomentumCl } from '../app/reduce';
+import { flagsLine } from '../app/flags';
 import { DEFAULT_SETTINGS, type Flag, type RunResult, type Settings } from '../app/types';
 
 export const DEFAULT_DB = 'rakeline.sqlite';
+
+let deps: typeof CliDeps | undefined;
+/** The modules the commands run on (main/cliDeps.ts), loaded once; main() loads them before it
+ *  parses any command line other than a request for help or the version. */
+export async function loadCliDeps(): Promise<typeof CliDeps> {
+  return (deps ??= await import('./cliDeps'));
+}
+/** The loaded command modules (main() has loaded them before any command runs). */
+function D(): typeof CliDeps {
+  if (!deps) throw new Error('internal: the command modules were not loaded');
+  return deps;
+}
 
 /** Bad use of the command line (exit 2). */
 export class UsageError extends Error { override name = 'UsageError'; }
@@ -63,7 +68,8 @@ export function parseSetting(text: string, prev: Partial<Settings> = {}): Partia
     value = raw.split(',').map((s) => s.trim()).filter(Boolean);
   }
   const patch = { ...prev, [key]: value };
-  const check = settingsPatchSchema.safeParse({ [key]: value });
+  // Not loaded only when the command line also asks for help or the version: nothing runs then.
+  const check = deps ? deps.settingsPatchSchema.safeParse({ [key]: value }) : { success: true as const };
   if (!check.success) {
     const issue = check.error.issues[0];
     throw new InvalidArgumentError(`setting ${key}=${raw}: ${issue?.message ?? 'invalid value'}`);
@@ -88,7 +94,7 @@ function openStore(g: GlobalOpts, create: boolean): Store {
   if (!create && !existsSync(file)) {
     throw new InputError(`no database at ${file} (import a session first with: rakeline ingest <folder>, or pass --db)`);
   }
-  return Store.open(file);
+  return D().Store.open(file);
 }
 
 /** The session named by --session, or the only one in the database. */
@@ -136,6 +142,7 @@ function note(text: string): void {
 /** A progress bar on stderr, only when stderr is a terminal. */
 function progress(): { onProgress?: (p: ImportProgress) => void; stop(): void } {
   if (!process.stderr.isTTY) return { stop() {} };
+  const { SingleBar, Presets } = D();
   const bar = new SingleBar(
     { stream: process.stderr, format: '{phase} [{bar}] {percentage}% {detail}', hideCursor: true, clearOnComplete: true, etaBuffer: 50 },
     Presets.shades_classic,
@@ -166,11 +173,6 @@ function progress(): { onProgress?: (p: ImportProgress) => void; stop(): void } 
   };
 }
 
-const SEV = (f: Flag) => (f.severity === 'reject' ? 'REJECT' : 'CHECK');
-/** Flags as words, e.g. "REJECT lift-mismatch; CHECK unsteady". */
-export function flagsText(flags: Flag[]): string {
-  return flags.length ? flags.map((f) => `${SEV(f)} ${f.code}`).join('; ') : 'ok';
-}
 
 const n = (v: number | undefined | null, d: number, w: number) =>
   (v === undefined || v === null || !Number.isFinite(v) ? '-' : v.toFixed(d)).padStart(w);
@@ -181,7 +183,7 @@ export function runsTable(rows: RunRow[]): string {
   const lines = rows.map((r) => {
     const x = r.result;
     const t = (/T(\d{2}:\d{2}:\d{2})/.exec(r.time)?.[1] ?? r.time).padEnd(8);
-    const status = r.kind === 'zero' ? 'wind-off zero' : x ? flagsText(x.flags) : 'not reduced';
+    const status = r.kind === 'zero' ? 'wind-off zero' : x ? flagsLine(x.flags, 'short') : 'not reduced';
     const review = r.review ? ` [${r.review.verdict} by ${r.review.actor}]` : '';
     return `${String(r.run).padStart(4)} ${r.kind.padEnd(4)} ${t} ${n(r.alphaDeg, 2, 6)} ${n(x?.alphaCorrDeg, 2, 6)} ${n(x?.q, 1, 7)} ${n(x ? x.Re / 1e6 : undefined, 3, 6)} ${n(x?.cl, 4, 7)} ${n(x?.clMom, 4, 7)} ${n(x?.cd, 5, 8)} ${n(x?.cmc4, 4, 7)}  ${status}${review}`;
   });
@@ -192,7 +194,7 @@ export function runsTable(rows: RunRow[]): string {
 export function resultLine(r: RunResult, prefix = 'run'): string {
   const c = r.corrected;
   const f = (v: number, d: number) => (Number.isFinite(v) ? v.toFixed(d) : '-');
-  return `${prefix} ${r.run}: alpha ${f(c.alphaDeg, 2)} deg, q ${f(c.q, 1)} Pa, cl ${f(c.cl, 4)} (momentum ${f(correctedMomentumCl(r), 4)}), cd ${f(c.cd, 5)}, cm ${f(c.cmc4, 4)}, ${flagsText(r.flags)}`;
+  return `${prefix} ${r.run}: alpha ${f(c.alphaDeg, 2)} deg, q ${f(c.q, 1)} Pa, cl ${f(c.cl, 4)} (momentum ${f(D().correctedMomentumCl(r), 4)}), cd ${f(c.cd, 5)}, cm ${f(c.cmc4, 4)}, ${flagsLine(r.flags, 'short')}`;
 }
 
 function writeOut(text: string, file: string | undefined, what: string): void {
@@ -213,7 +215,7 @@ async function reduceAndTell(store: Store, sessionId: number, g: GlobalOpts, opt
   const t0 = performance.now();
   let res: { results: RunResult[] };
   try {
-    res = await reduceStoredSessionAsync(store, sessionId, { ...opts, actor: actorOf(g), onProgress: bar.onProgress });
+    res = await D().reduceStoredSessionAsync(store, sessionId, { ...opts, actor: actorOf(g), onProgress: bar.onProgress });
   } finally {
     bar.stop();
   }
@@ -238,7 +240,7 @@ async function follow(folder: string, g: GlobalOpts, settleMs: number, reduce: b
 
   const step = async () => {
     try {
-      const rep = await importSessionFolder(store, dir, { actor });
+      const rep = await D().importSessionFolder(store, dir, { actor });
       lastError = '';
       for (const f of rep.changedFiles) {
         if (!warnedChanged.has(f)) note(`warning: ${f} differs from what session ${rep.sessionId} holds; not merged`);
@@ -252,9 +254,9 @@ async function follow(folder: string, g: GlobalOpts, settleMs: number, reduce: b
         for (const run of rep.importedRuns) if (kind.get(run) === 'data') out(`run ${run}: stored (not reduced)`);
         return;
       }
-      const todo = runsAffectedBy(rows, rep.importedRuns);
+      const todo = D().runsAffectedBy(rows, rep.importedRuns);
       if (!todo.length) return;
-      const { results } = reduceStoredSession(store, rep.sessionId, { runs: todo, actor });
+      const { results } = D().reduceStoredSession(store, rep.sessionId, { runs: todo, actor });
       const freshSet = new Set(rep.importedRuns);
       for (const r of results) out(resultLine(r, freshSet.has(r.run) ? 'run' : 'updated run'));
     } catch (e) {
@@ -281,7 +283,7 @@ async function follow(folder: string, g: GlobalOpts, settleMs: number, reduce: b
   };
 
   await cycle();
-  const watcher = watch(dir, {
+  const watcher = D().watch(dir, {
     ignoreInitial: true,
     depth: 3,
     // hidden files, partial downloads and databases inside the folder are not session files
@@ -360,7 +362,7 @@ Examples:
         const t0 = performance.now();
         let rep;
         try {
-          rep = await importSessionFolder(store, dir, { actor: actorOf(g()), onProgress: bar.onProgress });
+          rep = await D().importSessionFolder(store, dir, { actor: actorOf(g()), onProgress: bar.onProgress });
         } finally {
           bar.stop();
         }
@@ -457,7 +459,7 @@ Examples:
         let rows = store.listRuns(sid);
         if (o.flagged) rows = rows.filter((r) => r.result && r.result.flags.length);
         if (o.format === 'json') return out(JSON.stringify(rows, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2));
-        if (o.format === 'csv') return void process.stdout.write(exportResultsCsv(rows, store.getSetup(sid), store.latestResults(sid)));
+        if (o.format === 'csv') return void process.stdout.write(D().exportResultsCsv(rows, store.getSetup(sid), store.latestResults(sid)));
         out(runsTable(rows));
       });
     });
@@ -478,8 +480,8 @@ Examples:
       await withStore(g(), false, (store) => {
         const sid = pickSession(store, g());
         const text = o.format === 'json'
-          ? exportResultsJson(store, sid)
-          : exportResultsCsv(store.listRuns(sid), store.getSetup(sid), store.latestResults(sid));
+          ? D().exportResultsJson(store, sid)
+          : D().exportResultsCsv(store.listRuns(sid), store.getSetup(sid), store.latestResults(sid));
         writeOut(text, o.out, `${o.format.toUpperCase()} export`);
       });
     });
@@ -493,11 +495,11 @@ Examples:
       await withStore(g(), false, (store) => {
         const sid = pickSession(store, g());
         const runs = store.listRuns(sid);
-        const html = daySheetHtml({
+        const html = D().daySheetHtml({
           session: store.getSession(sid),
           setup: store.getSetup(sid),
           runs,
-          summary: sessionSummary(store, sid),
+          summary: D().sessionSummary(store, sid),
           paper: o.paper,
           generatedAt: new Date().toISOString(),
           results: store.latestResults(sid),
@@ -521,6 +523,13 @@ Examples:
   return program;
 }
 
+/** True when the command line asks for help or the version (commander answers those without
+ *  running any command, so the command modules need not load). */
+function asksOnlyForHelp(argv: string[]): boolean {
+  const args = argv.slice(2);
+  return args[0] === 'help' || args.some((a) => a === '-h' || a === '--help' || a === '-V' || a === '--version');
+}
+
 /** Run the command line; resolves to the exit code. */
 export async function main(argv: string[] = process.argv): Promise<number> {
   // `rakeline runs | head`: a closed pipe ends the output quietly
@@ -530,6 +539,7 @@ export async function main(argv: string[] = process.argv): Promise<number> {
   });
   const program = buildProgram();
   try {
+    if (!asksOnlyForHelp(argv)) await loadCliDeps();
     await program.parseAsync(argv);
     return 0;
   } catch (e) {

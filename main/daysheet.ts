@@ -3,8 +3,9 @@
 // print CSS for A4 or US Letter. Every piece of text that comes from a log, a setup or a user is
 // escaped. Flags are always spelled out in words; colour (Okabe–Ito palette) only repeats them.
 import type { SessionRow, RunRow } from './store';
-import type { Flag, FlagCode, PolarPoint, RunResult, SessionSummary, Settings, Setup } from '../app/types';
+import type { Flag, PolarPoint, RunResult, SessionSummary, Settings, Setup } from '../app/types';
 import { CORE_VERSION, DEFAULT_SETTINGS } from '../app/types';
+import { flagLabel, flagShort, severityWord, SEVERITY } from '../app/flags';
 import { escapeHtml, OKABE_ITO, svgPlot, type PlotPoint, type PlotSeries } from './svgplot';
 
 export interface DaySheetArgs {
@@ -22,37 +23,6 @@ export interface DaySheetArgs {
   settings?: Settings;
   /** Optional: program version printed in the footer. */
   appVersion?: string;
-}
-
-/** Words for each flag code, as printed on the sheet and in tables. */
-export const FLAG_WORDS: Record<FlagCode, string> = {
-  'lift-mismatch': 'lift methods disagree',
-  'wake-not-captured': 'wake not captured by the rake',
-  unsteady: 'unsteady dynamic pressure',
-  'bad-tap': 'bad surface tap(s) bridged',
-  'leaking-tap': 'leaking tap seen at wind-off',
-  'zero-drift': 'wind-off zero drifted',
-  'no-zero': 'no wind-off zero available',
-  compressible: 'Mach number above the incompressible limit',
-  'span-spread': 'spanwise rows disagree (not two-dimensional)',
-};
-
-/** Short words for the run table's status column (the flag list below it has the full words). */
-export const FLAG_SHORT: Record<FlagCode, string> = {
-  'lift-mismatch': 'lift methods disagree',
-  'wake-not-captured': 'wake not captured',
-  unsteady: 'unsteady q',
-  'bad-tap': 'bad tap',
-  'leaking-tap': 'leaking tap',
-  'zero-drift': 'zero drift',
-  'no-zero': 'no zero',
-  compressible: 'Mach limit',
-  'span-spread': 'span spread',
-};
-
-/** Severity in words: 'reject' runs must not be used without review; 'warn' runs need a look. */
-export function severityWord(s: Flag['severity']): string {
-  return s === 'reject' ? 'REJECT' : 'CHECK';
 }
 
 const MINUS = '\u2212';
@@ -119,9 +89,9 @@ table.runs td { overflow-wrap: anywhere; } table.runs th { font-size: 6pt; hyphe
 table.runs td.n { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 table.runs span.u { display: block; font-size: 5.5pt; color: #333; white-space: normal; }
 table.runs tr.zero td { color: #444; font-style: italic; }
-table.runs tr.sev-reject td:first-child { border-left: 3pt solid ${OKABE_ITO.vermillion}; }
-table.runs tr.sev-warn td:first-child { border-left: 3pt dashed ${OKABE_ITO.orange}; }
-table.runs tr.sev-reject { background: #fbe7db; } table.runs tr.sev-warn { background: #fdf3dc; }
+table.runs tr.sev-reject td:first-child { border-left: 3pt solid ${SEVERITY.reject.colour}; }
+table.runs tr.sev-warn td:first-child { border-left: 3pt dashed ${SEVERITY.warn.colour}; }
+table.runs tr.sev-reject { background: ${SEVERITY.reject.tint}; } table.runs tr.sev-warn { background: ${SEVERITY.warn.tint}; }
 .status { font-size: 6.3pt; }
 table.stats { width: auto; min-width: 60%; } table.stats th { text-align: left; background: none; font-size: 8pt; }
 table.stats td { font-variant-numeric: tabular-nums; }
@@ -141,7 +111,7 @@ function statusCell(row: RunRow): string {
   if (row.kind === 'zero') parts.push('wind-off zero');
   else if (!row.result) parts.push('not reduced');
   else if (!row.result.flags.length) parts.push('no flags');
-  for (const f of row.result?.flags ?? []) parts.push(`<b>${severityWord(f.severity)}</b> ${escapeHtml(FLAG_SHORT[f.code] ?? f.code)}`);
+  for (const f of row.result?.flags ?? []) parts.push(`<b>${severityWord(f.severity)}:</b> ${escapeHtml(flagShort(f.code))}`);
   if (row.review) {
     parts.push(`reviewer ${escapeHtml(row.review.verdict)} (${escapeHtml(row.review.actor)})`);
   }
@@ -169,7 +139,7 @@ function runTable(args: DaySheetArgs, settings: Settings): string {
     const sev = rowSeverity(row);
     const cls = [row.kind === 'zero' ? 'zero' : '', sev ? `sev-${sev}` : ''].filter(Boolean).join(' ');
     const full = byRun.get(row.run);
-    const mark = sev === 'reject' ? '✕ ' : sev === 'warn' ? '△ ' : '';
+    const mark = sev ? `${SEVERITY[sev].glyph} ` : '';
     const cells = r
       ? [
           fmt(row.alphaDeg, 2), fmt(r.alphaCorrDeg, 2), fmt(r.q, 1), fmt(r.V, 2), fmt(r.Re / 1e6, 3),
@@ -182,7 +152,7 @@ function runTable(args: DaySheetArgs, settings: Settings): string {
       .join('')}<td class="status">${statusCell(row)}</td></tr>`;
   });
   return `<table class="runs">${head}<tbody>${body.join('\n')}</tbody></table>
-<p class="sub">✕ and a solid left bar: at least one REJECT flag; △ and a dashed bar: CHECK flags only.
+<p class="sub">${SEVERITY.reject.glyph} and a solid left bar: at least one ${SEVERITY.reject.word} flag (${SEVERITY.reject.meaning.toLowerCase()}); ${SEVERITY.warn.glyph} and a dashed bar: ${SEVERITY.warn.word} flags only (${SEVERITY.warn.meaning.toLowerCase()}).
 α corr, q, V, Re, cl, cd and cm are wall-corrected (${escapeHtml(CORRECTION_WORDS[settings.correction] ?? settings.correction)});
 cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl.${args.results?.length ? ' Brackets: 95 % Monte Carlo coverage interval (JCGM 101:2008).' : ''}</p>`;
 }
@@ -213,18 +183,18 @@ function polars(args: DaySheetArgs): string {
     { name: 'cm about c/4, surface pressures', colour: OKABE_ITO.blue, marker: 'circle', filled: true, line: 'solid',
       points: p.map((q) => pt(q, q.alphaDeg, q.cmc4)) },
   ];
-  const flagLabels = { reject: 'REJECT flag (×, labelled r + run number)', check: 'CHECK flags only (ring)' };
+  const flagLabels = { reject: `${severityWord('reject')} flag (×, labelled r + run number)`, check: `${severityWord('warn')} flags only (ring)` };
   return `<div class="plots">
 ${svgPlot({ title: 'Lift curve cl(α)', xLabel: 'α corrected, °', yLabel: 'cl', series: clAlpha, flagLabels })}
 ${svgPlot({ title: 'Drag polar cd(cl)', xLabel: 'cd', yLabel: 'cl', series: cdCl, flagLabels })}
 ${svgPlot({ title: 'Pitching moment cm(α)', xLabel: 'α corrected, °', yLabel: 'cm c/4', series: cmAlpha, flagLabels })}
 </div>
-<p class="sub">Lines join the runs in time order, leaving out runs with a REJECT flag.${notPlotted.length ? ` Not plotted (rejected by the reviewer): runs ${runRanges(notPlotted)}.` : ''}</p>`;
+<p class="sub">Lines join the runs in time order, leaving out runs with a ${severityWord('reject')} flag.${notPlotted.length ? ` Not plotted (rejected by the reviewer): runs ${runRanges(notPlotted)}.` : ''}</p>`;
 }
 
 function statistics(args: DaySheetArgs): string {
   const s = args.summary.stats;
-  if (!s) return '<p>Too few usable runs (fewer than three without a REJECT flag) for session statistics.</p>';
+  if (!s) return `<p>Too few usable runs (fewer than three without a ${severityWord('reject')} flag) for session statistics.</p>`;
   const rows: [string, string][] = [
     ['Lift-curve slope dcl/dα', `${fmt(s.liftSlopePerDeg, 4)} per degree (${fmt(s.liftSlopePerDeg * 180 / Math.PI, 3)} per radian), fitted over α ${range(s.linearRange[0], s.linearRange[1], 2, '°')}`],
     ['Zero-lift angle α_L0', `${fmt(s.alphaL0Deg, 2)}°`],
@@ -235,12 +205,12 @@ function statistics(args: DaySheetArgs): string {
     ['Repeat-run spread', s.repeatSpread !== null ? `largest cl range at a repeated α: ${fmt(s.repeatSpread, 4)}` : 'no repeated runs'],
   ];
   return `<table class="stats"><tbody>${rows.map(([k, v]) => `<tr><th scope="row">${escapeHtml(k)}</th><td>${escapeHtml(v)}</td></tr>`).join('')}</tbody></table>
-<p class="sub">Statistics use the corrected pressure-integration cl and the wake cd (pressure cd where there is no wake) of runs without a REJECT flag.</p>`;
+<p class="sub">Statistics use the corrected pressure-integration cl and the wake cd (pressure cd where there is no wake) of runs without a ${severityWord('reject')} flag.</p>`;
 }
 
 /** "words: reason", without repeating the words when the reason already starts with them. */
 function reasonWords(f: Flag): string {
-  const words = FLAG_WORDS[f.code] ?? f.code;
+  const words = flagLabel(f.code);
   return f.reason.toLowerCase().startsWith(words.toLowerCase())
     ? escapeHtml(f.reason)
     : `${escapeHtml(words)}: ${escapeHtml(f.reason)}`;

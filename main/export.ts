@@ -5,7 +5,7 @@ import type { RunRow, Store } from './store';
 import { sessionSummary } from './reduceService';
 import type { RunResult, Setup } from '../app/types';
 import { CORE_VERSION } from '../app/types';
-import { FLAG_WORDS } from './daysheet';
+import { flagLine } from '../app/flags';
 
 /** Columns of the results CSV, in order (units after the last underscore group: _deg, _Pa, _m_s, _m2_s). */
 export const RESULT_CSV_COLUMNS = [
@@ -50,7 +50,7 @@ export function exportResultsCsv(runs: RunRow[], setup: Setup, results?: RunResu
       num(f?.uncertainty.cl?.lo), num(f?.uncertainty.cl?.hi), num(f?.uncertainty.cd?.lo), num(f?.uncertainty.cd?.hi),
       num(row.baro), num(row.temperatureC), num(row.humidity),
       csvText(flags.map((x) => x.code).join(';')),
-      csvText(flags.map((x) => `${x.severity === 'reject' ? 'REJECT' : 'CHECK'} ${FLAG_WORDS[x.code] ?? x.code}: ${x.reason}`).join(' | ')),
+      csvText(flags.map((x) => flagLine(x, 'reason')).join(' | ')),
       csvText(review), csvText(row.file ?? ''),
     ];
     lines.push(cells.join(','));

@@ -13,7 +13,7 @@ import {
   type Channel, type ContractError, type EventName, type Events, type Payload, type Results,
 } from './contract';
 import type { Envelope } from './wire';
-import { CORE_VERSION, type FlagCode, type RunResult } from '../app/types';
+import { CORE_VERSION, type RunResult } from '../app/types';
 import { prepareRuns } from '../app/reduce';
 import { isLogError } from '../app/log/errors';
 import { INDEX_FILE, LONG_LOG_DEFAULT, SETUP_FILE } from '../app/log/session';
@@ -22,7 +22,8 @@ import type { Store, RunRow, ImportProgress, ImportReport } from './store';
 import { folderSource, importSession, importSessionFolder, type SessionSource } from './import';
 import { reduceStoredSessionAsync, sessionSummary } from './reduceService';
 import { zeroRunsFor } from '../app/samples';
-import { daySheetHtml, FLAG_WORDS } from './daysheet';
+import { daySheetHtml } from './daysheet';
+import { FLAG_CODES, flagLine } from '../app/flags';
 import { exportResultsCsv, exportResultsJson } from './export';
 
 export type Handlers = { [C in Channel]: (payload: Payload<C>) => Promise<Results[C]> };
@@ -182,10 +183,6 @@ export function runsAffectedBy(rows: RunRow[], changed: Iterable<number>): numbe
 // Structural check of results computed elsewhere (the renderer's worker)
 
 const num = z.union([z.number(), z.nan()]);
-const flagCodes = [
-  'lift-mismatch', 'wake-not-captured', 'unsteady', 'bad-tap', 'leaking-tap', 'zero-drift',
-  'no-zero', 'compressible', 'span-spread',
-] as const satisfies readonly FlagCode[];
 const coefficientsSchema = z.looseObject({ cl: num, cd: num, cdp: num, cmc4: num, alphaDeg: num, q: num, V: num, Re: num });
 const surfaceSchema = z.looseObject({ cn: num, ca: num, cl: num, cdp: num, cmLE: num, cmc4: num });
 const resultSchema = z.looseObject({
@@ -206,7 +203,7 @@ const resultSchema = z.looseObject({
   clMomentum: num,
   spanwise: z.looseObject({ spread: num, CL: num }).nullable(),
   uncertainty: z.record(z.string(), z.looseObject({ value: num, u: num, lo: num, hi: num })),
-  flags: z.array(z.looseObject({ code: z.enum(flagCodes), reason: z.string(), severity: z.enum(['warn', 'reject']) })),
+  flags: z.array(z.looseObject({ code: z.enum(FLAG_CODES), reason: z.string(), severity: z.enum(['warn', 'reject']) })),
   inviscid: z.array(z.looseObject({ x: num, cp: num })),
 });
 
@@ -377,7 +374,8 @@ function fmt(x: number, digits: number): string {
   return Number.isFinite(x) ? x.toFixed(digits) : '—';
 }
 
-function watchMessage(row: RunRow, rereduced: number): string {
+/** The live log's line for a run just stored (flags in the words of app/flags.ts). */
+export function watchMessage(row: RunRow, rereduced: number): string {
   if (row.kind === 'zero') {
     const more = rereduced > 0 ? `; ${rereduced} data run${rereduced === 1 ? '' : 's'} re-reduced` : '';
     return `Wind-off zero run ${row.run} stored${more}.`;
@@ -387,7 +385,7 @@ function watchMessage(row: RunRow, rereduced: number): string {
   if (!res) return `${head} stored, not reduced.`;
   const base = `${head} reduced: cl ${fmt(res.cl, 3)}, cd ${fmt(res.cd, 4)}, cm c/4 ${fmt(res.cmc4, 3)}`;
   if (res.flags.length === 0) return `${base}.`;
-  return `${base} — flagged: ${res.flags.map((f) => `${FLAG_WORDS[f.code] ?? f.code} (${f.reason})`).join('; ')}.`;
+  return `${base} — flagged: ${res.flags.map((f) => flagLine(f, 'reason')).join('; ')}`;
 }
 
 // ---------------------------------------------------------------------------------------------

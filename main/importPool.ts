@@ -13,7 +13,8 @@ import type { RunResult, Settings, Setup, ZeroedRun } from '../app/types';
 let workerScript: string | URL | null = null;
 
 /** Where the worker's entry is: set by the packaged app (dist/main/importWorker.cjs); from the
- *  TypeScript sources it is main/importWorker.boot.mjs next to this file (also after null). */
+ *  TypeScript sources it is main/importWorker.boot.mjs next to this file (also after null); in the
+ *  compiled command line and server (dist/node, scripts/compiled.mjs) dist/node/importWorker.mjs. */
 export function setImportWorkerScript(script: string | URL | null): void {
   workerScript = script;
 }
@@ -21,7 +22,7 @@ export function setImportWorkerScript(script: string | URL | null): void {
 function defaultScript(): string | URL {
   if (workerScript) return workerScript;
   const here = typeof import.meta === 'object' && import.meta && typeof import.meta.url === 'string' ? import.meta.url : '';
-  if (here) return new URL('./importWorker.boot.mjs', here);
+  if (here) return new URL(/\.[cm]?ts$/.test(here) ? './importWorker.boot.mjs' : './importWorker.mjs', here);
   // A CommonJS bundle (the desktop app) without an explicit script: next to the bundle.
   return path.join(typeof __dirname === 'string' ? __dirname : process.cwd(), 'importWorker.cjs');
 }

@@ -11,8 +11,6 @@ import { existsSync } from 'node:fs';
 import { readFile } from 'node:fs/promises';
 import { homedir } from 'node:os';
 import path from 'node:path';
-import { spawnSync } from 'node:child_process';
-import { createRequire } from 'node:module';
 import { fileURLToPath } from 'node:url';
 import { Store } from './store';
 import { createHandlers, dispatch, disposeHandlers, ensureDemoSession, progressEmitter, type Emit, type Handlers } from './handlers';
@@ -248,20 +246,31 @@ export function defaultDbFile(): string {
   return path.join(base, 'Rakeline', 'rakeline.sqlite');
 }
 
-const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
+/** The repository (or installed package) root: the nearest folder above this module holding a
+ *  package.json — main/ from the sources, dist/node/ in the compiled build. */
+function findRoot(from: string): string {
+  for (let dir = from; ; dir = path.dirname(dir)) {
+    if (existsSync(path.join(dir, 'package.json'))) return dir;
+    if (path.dirname(dir) === dir) return path.resolve(from, '..');
+  }
+}
+const repoRoot = findRoot(path.dirname(fileURLToPath(import.meta.url)));
 
-/** Write resources/demo/session with the demo generator when it is missing. */
-export function ensureDemoFolder(folder = path.join(repoRoot, 'resources', 'demo', 'session')): string | null {
+/** Write resources/demo/session with the demo generator (in this process) when it is missing. */
+export async function ensureDemoFolder(folder = path.join(repoRoot, 'resources', 'demo', 'session')): Promise<string | null> {
   if (existsSync(path.join(folder, 'setup.json'))) return folder;
-  const generator = path.join(repoRoot, 'resources', 'demo', 'generate.ts');
-  if (!existsSync(generator)) return null;
-  const require = createRequire(import.meta.url);
-  const tsxCli = path.join(path.dirname(require.resolve('tsx/package.json')), 'dist', 'cli.mjs');
-  const r = spawnSync(process.execPath, [tsxCli, generator], { cwd: repoRoot, stdio: ['ignore', 'ignore', 'inherit'] });
-  return r.status === 0 && existsSync(path.join(folder, 'setup.json')) ? folder : null;
+  try {
+    const { writeDemoSession } = await import('../resources/demo/generate');
+    writeDemoSession(folder);
+  } catch (e) {
+    console.error(`rakeline: could not write the demo session to ${folder}: ${e instanceof Error ? e.message : String(e)}`);
+    return null;
+  }
+  return existsSync(path.join(folder, 'setup.json')) ? folder : null;
 }
 
-async function main(): Promise<void> {
+/** Browser mode's command line (`npm run serve`: scripts/serve.mjs runs the compiled build). */
+export async function serveMain(argv: string[] = process.argv): Promise<void> {
   const { Command } = await import('commander');
   const program = new Command('rakeline-serve')
     .description('Rakeline in a web browser: a local server on 127.0.0.1 with a per-launch token')
@@ -269,7 +278,7 @@ async function main(): Promise<void> {
     .option('--port <n>', 'port (0 = any free port)', '0')
     .option('--renderer <dir>', 'built renderer folder', path.join(repoRoot, 'dist', 'renderer'))
     .option('--no-demo', 'do not import the demo session')
-    .parse(process.argv);
+    .parse(argv);
   const o = program.opts<{ db: string; port: string; renderer: string; demo: boolean }>();
   const port = Number(o.port);
   if (!Number.isInteger(port) || port < 0 || port > 65535) {
@@ -282,7 +291,7 @@ async function main(): Promise<void> {
   }
   const { mkdirSync } = await import('node:fs');
   mkdirSync(path.dirname(path.resolve(o.db)), { recursive: true });
-  const demoFolder = o.demo ? ensureDemoFolder() ?? undefined : undefined;
+  const demoFolder = o.demo ? (await ensureDemoFolder()) ?? undefined : undefined;
   const server = await startBrowserServer({ dbFile: path.resolve(o.db), port, rendererDir: o.renderer, demoFolder });
   const banner = process.env.RAKELINE_SERVE_BANNER ?? 'Rakeline is running in your browser at';
   console.log(`${banner} ${server.url}`);
@@ -298,7 +307,7 @@ async function main(): Promise<void> {
 
 const invokedAs = process.argv[1] ? path.resolve(process.argv[1]) : '';
 if (invokedAs === fileURLToPath(import.meta.url) || invokedAs.replace(/\.ts$/, '') === fileURLToPath(import.meta.url).replace(/\.ts$/, '')) {
-  main().catch((e: unknown) => {
+  serveMain().catch((e: unknown) => {
     console.error(`rakeline: ${e instanceof Error ? e.message : String(e)}`);
     process.exit(1);
   });

@@ -223,12 +223,12 @@ export function svgPlot(spec: PlotSpec): string {
   }
   if (rejected.length) {
     out.push(flagMark(m.l + 6, ly, r));
-    out.push(`<text x="${m.l + 22}" y="${ly + 3}" class="lg">${escapeHtml(spec.flagLabels?.reject ?? 'run with a REJECT flag (labelled with its run number)')}</text>`);
+    out.push(`<text x="${m.l + 22}" y="${ly + 3}" class="lg">${escapeHtml(spec.flagLabels?.reject ?? 'run with a hold flag (labelled with its run number)')}</text>`);
     ly += 13;
   }
   if (checked.length) {
     out.push(checkMark(m.l + 6, ly, r));
-    out.push(`<text x="${m.l + 22}" y="${ly + 3}" class="lg">${escapeHtml(spec.flagLabels?.check ?? 'run with CHECK flags only')}</text>`);
+    out.push(`<text x="${m.l + 22}" y="${ly + 3}" class="lg">${escapeHtml(spec.flagLabels?.check ?? 'run with check flags only')}</text>`);
   }
   out.push('</g>');
   if (!all.length) out.push(`<text x="${f1(m.l + plotW / 2)}" y="${f1(m.t + plotH / 2)}" text-anchor="middle" class="al">no reduced points</text>`);

@@ -25,10 +25,15 @@ import { reduceStoredSession, reduceStoredSessionAsync, reduceWorkersFor } from 
 
 const argv = process.argv.slice(2);
 const args = new Set(argv);
+if (args.has('--vs-numpy')) {
+  const { benchVsNumpy } = await import('./bench-vs-numpy');
+  process.exit(await benchVsNumpy(argv));
+}
 const quick = args.has('--quick');
 const keep = args.has('--keep');
 if (args.has('--help')) {
-  console.log('usage: npm run bench -- [--quick] [--keep] [--digits N]\n' +
+  console.log('usage: npm run bench -- [--quick] [--keep] [--digits N]   or   npm run bench -- --vs-numpy [--sizes 30,100,300] [--rounds 3]\n' +
+    '  --vs-numpy  Rakeline against the numpy/pandas baseline (../shared/bench/baseline_numpy.py), whole processes, interleaved\n' +
     '  --quick     a small session (smoke run)\n' +
     '  --keep      keep the generated files and databases (path printed)\n' +
     '  --digits N  significant digits of the logged sample values (default 6, like a scanner log; 0 = exact)\n' +

@@ -2,6 +2,9 @@
 //   node scripts/build.mjs              renderer (vite, renderer/vite.config.ts → dist/renderer)
 //                                        + Electron main and preload (esbuild → dist/main/*.cjs)
 //   node scripts/build.mjs --renderer   the renderer only (browser mode)
+//   node scripts/build.mjs --node       the command line, browser-mode server and worker threads
+//                                        (esbuild → dist/node/<build>/*.mjs; scripts/compiled.mjs rebuilds
+//                                        them on first run when a source changed)
 //   --quiet                             only warnings and errors
 // The full build also makes sure the demo session and the icons exist (electron-builder packs them).
 import { build as esbuild } from 'esbuild';
@@ -53,6 +56,51 @@ export async function buildMain({ quiet = false, outdir = r('dist', 'main') } = 
   });
 }
 
+/** zod's namespace of locales pulls in every language's messages; the app uses English only. */
+const zodEnglishOnly = {
+  name: 'rakeline-zod-english-only',
+  setup(b) {
+    const shim = r('scripts', 'zod-locales-en.mjs');
+    b.onResolve({ filter: /[\\/]locales[\\/]index\.js$/ }, (args) =>
+      /[\\/]node_modules[\\/]zod[\\/]/.test(args.importer) ? { path: shim } : undefined,
+    );
+  },
+};
+
+/** The Node programs as compiled JavaScript (ES modules): the command line (main/cli.ts), the
+ *  browser-mode server (main/serve.ts) and the import/reduction worker thread (main/importWorker.ts).
+ *  The npm packages are bundled in (fewer files
+ *  to resolve at start-up) except better-sqlite3, whose native addon is loaded from node_modules.
+ *  Returns esbuild's metafile (the inputs: scripts/compiled.mjs records them to tell when to rebuild). */
+export async function buildNode({ quiet = false, outdir = r('dist', 'node', 'manual') } = {}) {
+  const res = await esbuild({
+    absWorkingDir: root,
+    entryPoints: {
+      cli: r('main', 'cli.ts'),
+      serve: r('main', 'serve.ts'),
+      importWorker: r('main', 'importWorker.ts'),
+    },
+    outdir,
+    outExtension: { '.js': '.mjs' },
+    // what the entries share, and what they load only on demand (main/cliDeps.ts), in chunks of
+    // their own: `rakeline --version` compiles the command-line parser, not the reduction core
+    splitting: true,
+    chunkNames: '[name]-[hash]', // beside the entries: importWorker.mjs is ./ from every chunk
+    bundle: true,
+    platform: 'node',
+    format: 'esm',
+    target: 'node20',
+    external: ['better-sqlite3', 'fsevents', 'electron'],
+    // the CommonJS packages bundled in call require() for Node's own modules
+    plugins: [zodEnglishOnly],
+    banner: { js: "import { createRequire as __rakelineRequire } from 'node:module'; const require = __rakelineRequire(import.meta.url);" },
+    sourcemap: true,
+    metafile: true,
+    logLevel: quiet ? 'warning' : 'info',
+  });
+  return res.metafile;
+}
+
 function runTs(file) {
   const tsx = r('node_modules', 'tsx', 'dist', 'cli.mjs');
   const res = spawnSync(process.execPath, [tsx, file], { cwd: root, stdio: 'inherit' });
@@ -85,7 +133,14 @@ export async function buildAll({ rendererOnly = false, quiet = false } = {}) {
 
 if (process.argv[1] && path.resolve(process.argv[1]) === fileURLToPath(import.meta.url)) {
   const args = new Set(process.argv.slice(2));
-  buildAll({ rendererOnly: args.has('--renderer'), quiet: args.has('--quiet') }).catch((e) => {
+  if (args.has('--node')) {
+    import('./compiled.mjs')
+      .then(({ compileNode }) => compileNode({ quiet: args.has('--quiet') }))
+      .catch((e) => {
+        console.error(`rakeline build: ${e instanceof Error ? e.message : String(e)}`);
+        process.exit(1);
+      });
+  } else buildAll({ rendererOnly: args.has('--renderer'), quiet: args.has('--quiet') }).catch((e) => {
     console.error(`rakeline build: ${e instanceof Error ? e.message : String(e)}`);
     process.exit(1);
   });

@@ -1,4 +1,7 @@
-// Fetch the Electron binary when the network allows it; never fail the install.
+// 1. Compile the command line, the browser-mode server and their worker threads to JavaScript
+//    (dist/node, scripts/compiled.mjs), so that no compiler runs when they start. A failure here
+//    only costs the first start a compile (the launchers rebuild what is missing or stale).
+// 2. Fetch the Electron binary when the network allows it; never fail the install.
 // npm 11's allowScripts keeps electron's own install script from running, so we run it here
 // with a time limit. Offline (as on CI) this prints one line and carries on: tests and the
 // browser mode do not need the binary.
@@ -7,6 +10,13 @@ import { existsSync } from 'node:fs';
 import { createRequire } from 'node:module';
 
 const require = createRequire(import.meta.url);
+try {
+  const { compileNode } = await import('./compiled.mjs');
+  await compileNode({ quiet: true });
+  console.log('rakeline: compiled the command line and the browser-mode server into dist/node.');
+} catch (e) {
+  console.log(`rakeline: could not compile dist/node now (${e instanceof Error ? e.message : String(e)}); the first start will.`);
+}
 let installer;
 try {
   installer = require.resolve('electron/install.js');

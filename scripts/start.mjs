@@ -112,8 +112,7 @@ async function main() {
     return;
   }
   await buildAll({ rendererOnly: true, quiet: true });
-  const tsx = r('node_modules', 'tsx', 'dist', 'cli.mjs');
-  run(process.execPath, [tsx, r('main', 'serve.ts')], {
+  run(process.execPath, [r('scripts', 'serve.mjs')], {
     ...process.env,
     RAKELINE_SERVE_BANNER: 'Electron binary not installed (offline install?) — starting browser mode instead:',
   });

@@ -44,7 +44,7 @@ describe('liftCrossCheck — tolerance 0.02 + 3 % (common practice, no source)',
     );
     const g = liftCrossCheck({ clPressure: 1.162, clMomentum: 0.981, clWall: 0.99, ...tol });
     expect(g?.reason).toContain('wall circulation integral gives 0.990');
-    expect(flagText(g!)).toMatch(/^REJECT lift-mismatch: Lift methods disagree/);
+    expect(flagText(g!)).toMatch(/^hold: Lift methods disagree: surface pressures/);
   });
 
   it('cannot check (null) when a value is missing', () => {

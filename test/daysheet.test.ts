@@ -57,16 +57,15 @@ describe('day sheet', () => {
     expect(r4).toContain('1.2050');
     expect(r4).toContain('0.01633');
     expect(r4).toContain('\u22120.0744'); // typographic minus
-    expect(r4).toContain('REJECT');
-    expect(r4).toContain('lift methods disagree');
+    expect(r4).toContain('hold: lift mismatch');
     expect(r4).toContain('rejected (T. Lindqvist)');
-    expect(byRun(3).textContent).toContain('CHECK unsteady q');
+    expect(byRun(3).textContent).toContain('check: unsteady q');
     expect(byRun(2).textContent).toContain('no flags');
     expect(byRun(1).textContent).toContain('wind-off zero');
     // the severity is in the text AND mirrored by a row class and a mark, never colour alone
     expect(byRun(4).className).toContain('sev-reject');
-    expect(byRun(4).querySelector('td')!.textContent).toContain('✕');
-    expect(byRun(3).querySelector('td')!.textContent).toContain('△');
+    expect(byRun(4).querySelector('td')!.textContent).toContain('✖');
+    expect(byRun(3).querySelector('td')!.textContent).toContain('▲');
   });
 
   it('lists every flagged run with its reasons in words, and the reviewer decision', () => {
@@ -101,16 +100,16 @@ describe('day sheet', () => {
     // 3 data runs → 3 filled circles (pressure) and 3 open squares (momentum) in the series groups
     expect(lift.querySelectorAll('g.series-circle circle').length).toBe(3);
     expect(lift.querySelectorAll('g.series-square rect[fill="white"]').length).toBe(3);
-    // run 4 has a REJECT flag: a × on each of the two series, labelled once
+    // run 4 has a hold flag: a × on each of the two series, labelled once
     expect(lift.querySelectorAll('g.flag-reject path').length).toBe(2);
     expect([...lift.querySelectorAll('g.flag-reject text')].map((t) => t.textContent)).toEqual(['r4']);
-    // run 3 has CHECK flags only: a ring on each series
+    // run 3 has check flags only: a ring on each series
     expect(lift.querySelectorAll('g.flag-check circle').length).toBe(2);
     const legend = lift.querySelector('g.legend')!.textContent!;
     expect(legend).toContain('cl from surface pressures');
     expect(legend).toContain('cl from wall momentum');
-    expect(legend).toContain('REJECT flag');
-    expect(legend).toContain('CHECK flags only');
+    expect(legend).toContain('hold flag');
+    expect(legend).toContain('check flags only');
   });
 
   it('lists a flag raised identically on several runs once, with its runs', () => {

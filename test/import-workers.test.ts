@@ -8,20 +8,12 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { Store } from '../main/store';
 import { importSessionFolder, readSessionFolder } from '../main/import';
 import { ImportPool, setImportWorkerScript } from '../main/importPool';
-import { cleanupTempDirs, dbContents, dbSnapshot, editFile, miniFolder, tempDir } from './helpers/store-fixtures';
+import { cleanupTempDirs, comparableContents, dbSnapshot, editFile, miniFolder, tempDir } from './helpers/store-fixtures';
 
 afterAll(() => cleanupTempDirs());
 
 /** Everything stored, minus the times and folder (which differ between two imports). */
-function stored(store: Store): Record<string, unknown[]> {
-  const c = dbContents(store);
-  const strip = (rows: unknown[]) => rows.map((r) => {
-    const o = { ...(r as Record<string, unknown>) };
-    for (const k of ['imported_at', 'created_at', 'at', 'folder', 'detail_json', 'applied_at']) delete o[k];
-    return o;
-  });
-  return Object.fromEntries(Object.entries(c).map(([k, v]) => [k, strip(v)]));
-}
+const stored = comparableContents;
 
 describe('import on worker threads', () => {
   it('stores the same samples, statistics and runs as an import on the calling thread', async () => {

@@ -83,7 +83,8 @@ describe('run table', () => {
     const badges = [...tr.querySelectorAll('.badge')];
     expect(badges).toHaveLength(2);
     const lift = tr.querySelector('[data-flag="lift-mismatch"]')!;
-    expect(lift.textContent).toContain('lift methods disagree');
+    expect(lift.textContent).toContain('lift mismatch');
+    expect(lift.textContent).toContain('hold');
     expect(lift.querySelector('.badge-glyph')!.textContent).toBe('✖');
     const leak = tr.querySelector('[data-flag="leaking-tap"]')!;
     expect(leak.textContent).toContain('leaking tap');

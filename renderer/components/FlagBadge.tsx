@@ -1,14 +1,15 @@
 // Flag badges: a glyph + words on a tinted chip; the colour only repeats what the text says.
+// Words, glyphs and severity words come from the one vocabulary table (app/flags.ts).
 import type { Flag } from '../../app/types';
-import { FLAG_LABEL, SEVERITY } from '../palette';
+import { SEVERITY, flagWords } from '../../app/flags';
 
 export function FlagBadge({ flag, long = false }: { flag: Flag; long?: boolean }) {
-  const sev = SEVERITY[flag.severity];
+  const w = flagWords(flag.code, flag.severity);
   return (
-    <span className={`badge badge-${flag.severity}`} title={`${sev.title}: ${flag.reason}`} data-flag={flag.code}>
-      <span className="badge-glyph" aria-hidden="true">{sev.glyph}</span>
-      <span className="badge-text">{FLAG_LABEL[flag.code] ?? flag.code}</span>
-      {long ? <span className="sr-only"> ({sev.word})</span> : null}
+    <span className={`badge badge-${flag.severity}`} title={`${w.word} (${SEVERITY[w.severity].meaning.toLowerCase()}): ${flag.reason}`} data-flag={flag.code}>
+      <span className="badge-glyph" aria-hidden="true">{w.glyph}</span>
+      <span className="badge-text">{long ? w.label : w.short}</span>
+      {long ? null : <span className="sr-only"> ({w.word})</span>}
     </span>
   );
 }

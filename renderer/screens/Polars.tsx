@@ -6,6 +6,7 @@ import type { SessionData } from '../session';
 import { clAlphaConfig, cmAlphaConfig, dragPolarConfig, spanConfig, sweepDirections } from '../charts';
 import { Plot } from '../components/Plot';
 import { fix } from '../format';
+import { SEVERITY } from '../../app/flags';
 
 export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number): void }) {
   const summary = data.summary;
@@ -93,7 +94,7 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
                   <td>{dirs[i] === 'up' ? '↗ up' : '↘ down'}</td>
                   <td className="num">{fix(p.alphaDeg, 2)}</td><td className="num">{fix(p.cl, 4)}</td><td className="num">{fix(p.clMom, 4)}</td>
                   <td className="num">{fix(p.cd, 5)}</td><td className="num">{fix(p.cdp, 5)}</td><td className="num">{fix(p.cmc4, 4)}</td>
-                  <td>{held.has(p.run) ? '✖ hold' : p.flagged ? '▲ check' : ''}</td>
+                  <td>{held.has(p.run) ? `${SEVERITY.reject.glyph} ${SEVERITY.reject.word}` : p.flagged ? `${SEVERITY.warn.glyph} ${SEVERITY.warn.word}` : ''}</td>
                 </tr>
               ))}
             </tbody>

@@ -8,6 +8,7 @@ import type { RunRowLike, Results } from '../../main/contract';
 import type { Interval, RunResult, TapCp } from '../../app/types';
 import { correctedMomentumCl } from '../../app/reduce';
 import { liftTolerance } from '../../app/crosscheck';
+import { flagLine } from '../../app/flags';
 import type { SessionData } from '../session';
 import { useApi, useStatus, quiet } from '../context';
 import { reduceInWorker } from '../workerClient';
@@ -317,7 +318,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
             <thead><tr><th scope="col">reduced</th><th scope="col">core</th><th scope="col" className="num">c<sub>l</sub></th><th scope="col" className="num">c<sub>d</sub></th><th scope="col">flags</th></tr></thead>
             <tbody>
               {got.history.map((h) => (
-                <tr key={h.resultId}><td>{when(h.reducedAt)}</td><td>{h.coreVersion}</td><td className="num">{fix(h.cl, 4)}</td><td className="num">{fix(h.cd, 5)}</td><td>{h.flags.map((f) => f.code).join(', ') || '–'}</td></tr>
+                <tr key={h.resultId}><td>{when(h.reducedAt)}</td><td>{h.coreVersion}</td><td className="num">{fix(h.cl, 4)}</td><td className="num">{fix(h.cd, 5)}</td><td>{h.flags.map((f) => flagLine(f, 'short')).join('; ') || '–'}</td></tr>
               ))}
             </tbody>
           </table>

@@ -9,6 +9,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { Browser, Page } from 'playwright-core';
+import { flagShort } from '../../app/flags';
 
 const CHROMIUM = '/usr/bin/chromium';
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
@@ -119,7 +120,7 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
     await expect.poll(() => page.locator('[data-flag="lift-mismatch"]').count()).toBeGreaterThan(0);
 
     // The flagged lift-mismatch run at the top of the α range (post-stall): find it by its badge text.
-    const stallRow = rows.filter({ has: page.locator('.badge', { hasText: 'lift methods disagree' }) }).first();
+    const stallRow = rows.filter({ has: page.locator('.badge', { hasText: flagShort('lift-mismatch') }) }).first();
     const runNo = Number(await stallRow.getAttribute('data-run'));
     expect(runNo).toBeGreaterThan(0);
     await stallRow.click();

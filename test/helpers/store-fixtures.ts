@@ -59,3 +59,13 @@ export function dbContents(store: Store): Record<string, unknown[]> {
   }
   return out;
 }
+
+/** dbContents minus what differs between two imports of the same folder (times, folder path). */
+export function comparableContents(store: Store): Record<string, unknown[]> {
+  const strip = (rows: unknown[]) => rows.map((r) => {
+    const o = { ...(r as Record<string, unknown>) };
+    for (const k of ['imported_at', 'created_at', 'at', 'folder', 'detail_json', 'applied_at']) delete o[k];
+    return o;
+  });
+  return Object.fromEntries(Object.entries(dbContents(store)).map(([k, v]) => [k, strip(v)]));
+}

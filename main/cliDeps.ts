@@ -1,0 +1,14 @@
+// What the command line's commands run on — the store, the importer, the reduction, the sheet, the
+// exports, the progress bar and the folder watcher — loaded by main/cli.ts on first need
+// (`loadCliDeps`), so that `rakeline --version` and `--help` start without compiling the store,
+// the reduction core and zod (about half of the command line's start-up time).
+export { Store } from './store';
+export { importSessionFolder } from './import';
+export { reduceStoredSession, reduceStoredSessionAsync, sessionSummary } from './reduceService';
+export { daySheetHtml } from './daysheet';
+export { exportResultsCsv, exportResultsJson } from './export';
+export { runsAffectedBy } from './handlers';
+export { settingsPatchSchema } from '../app/log/schema';
+export { correctedMomentumCl } from '../app/reduce';
+export { SingleBar, Presets } from 'cli-progress';
+export { watch } from 'chokidar';
