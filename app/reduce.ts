@@ -338,6 +338,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
         clWall: nominal.walls?.clWall,
         tolAbs: settings.liftTolAbs,
         tolRel: settings.liftTolRel,
+        corrected: { clPressure: nominal.corrected.cl, clMomentum: nominal.lift.clMom },
       })
     : null;
   if (cross) flags.push(cross);
