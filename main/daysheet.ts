@@ -154,7 +154,7 @@ function runTable(args: DaySheetArgs, settings: Settings): string {
   return `<table class="runs">${head}<tbody>${body.join('\n')}</tbody></table>
 <p class="sub">${SEVERITY.reject.glyph} and a solid left bar: at least one ${SEVERITY.reject.word} flag (${SEVERITY.reject.meaning.toLowerCase()}); ${SEVERITY.warn.glyph} and a dashed bar: ${SEVERITY.warn.word} flags only (${SEVERITY.warn.meaning.toLowerCase()}).
 α corr, q, V, Re, cl, cd and cm are wall-corrected (${escapeHtml(CORRECTION_WORDS[settings.correction] ?? settings.correction)});
-cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl.${args.results?.length ? ' Brackets: 95 % Monte Carlo coverage interval (JCGM 101:2008).' : ''}</p>`;
+cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl with V and cl corrected.${args.results?.length ? ' Brackets: 95 % Monte Carlo coverage interval (JCGM 101:2008).' : ''}</p>`;
 }
 
 function polars(args: DaySheetArgs): string {

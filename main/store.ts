@@ -738,8 +738,8 @@ export class Store {
         const c = r.corrected;
         const id = Number(
           ins.run(sessionId, r.run, at, r.coreVersion, actor, auditId, encodeJson(r.settings), encodeJson(r),
-            dbNum(c.q), dbNum(c.Re), dbNum(c.V), dbNum(c.cl), dbNum(correctedMomentumCl(r)), dbNum(r.walls?.clWall ?? NaN), dbNum(c.cd), dbNum(c.cdp),
-            dbNum(c.cmc4), dbNum(r.circulation.pressure), dbNum(r.circulation.momentum), dbNum(c.alphaDeg), r.flags.length,
+            dbNum(c.q), dbNum(c.Re), dbNum(c.V), dbNum(c.cl), dbNum(correctedMomentumCl(r)), dbNum((r.walls?.clWall ?? NaN) * (1 - r.correction.sigma - 2 * r.correction.eps)), dbNum(c.cd), dbNum(c.cdp),
+            dbNum(c.cmc4), dbNum((r.circulationCorrected ?? r.circulation).pressure), dbNum((r.circulationCorrected ?? r.circulation).momentum), dbNum(c.alphaDeg), r.flags.length,
             encodeJson(resultDigest(r))).lastInsertRowid,
         );
         r.flags.forEach((f, k) => insFlag.run(id, k, f.code, f.severity, f.reason));
