@@ -164,7 +164,7 @@ export function runBudget(setup: Setup, m: McModel, alphaDeg: number, nominal: R
   };
   const sig = (v: number) => Number(v.toPrecision(2));
   adjLine('integration (tap resolution)', 'reduction', `cl ${sig(e.integration.cl)}, cm ${sig(e.integration.cmc4)}`,
-    'whole row against its interleaved halves (Richardson; Roache GCI, F_s = 3)',
+    'whole row against its interleaved halves and quarters (Richardson, observed order; GCI form, F_s = 2)',
     [[ADJ.cl, e.integration.cl], [ADJ.cdp, e.integration.cdp], [ADJ.cmc4, e.integration.cmc4]]);
   adjLine('trailing-edge closure', 'reduction', `cl ${sig(e.trailingEdge.cl)}, cm ${sig(e.trailingEdge.cmc4)}`,
     'spread of three closures, rectangular (range/√12)',

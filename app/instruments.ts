@@ -100,3 +100,12 @@ export function addGroupErrors(
     vals[k] += mean[k] * gain[g] + (zeroCounts[k] ? zero[g] : 0);
   }
 }
+
+/** Total standard uncertainty of one channel's reading k (Pa): its independent part and its
+ *  group's gain and (where it counts) zero, in quadrature. */
+export function channelSd(m: InstrumentModel, k: number, reading: number): number {
+  const g = m.group[k];
+  if (g < 0) return m.sd[k];
+  const G = m.groups[g];
+  return Math.hypot(m.sd[k], G.gain * reading, m.zeroCounts[k] ? G.zeroPa : 0);
+}

@@ -9,7 +9,7 @@ import {
   CORE_VERSION, DEFAULT_SETTINGS,
   type Channel, type ChannelStats, type Coefficients, type Flag, type Interval, type PolarPoint,
   type RawRun, type ResultDigest, type RunInfo, type RunResult, type SessionSummary, type Settings, type Setup,
-  type TapCp, type WakeResult, type WallResult, type ZeroedRun, type RowLoads, type UncertaintyKey,
+  type TapCp, type WakeResult, type WallResult, type ZeroedRun, type RowLoads, type UncertaintyKey, type PolarIntervals,
 } from './types';
 import { freeStream } from './air';
 import { averageRun, applyZeros, unsteadiness } from './samples';
@@ -22,7 +22,7 @@ import { wallLoads, angleFlux } from './walls';
 import { gammaFromCl, liftCrossCheck } from './crosscheck';
 import { sectionArea, wallCorrections, applyCorrections } from './corrections';
 import { monteCarlo } from './uncertainty';
-import { addGroupErrors, instrumentModel, type InstrumentModel } from './instruments';
+import { addGroupErrors, channelSd, instrumentModel, type InstrumentModel } from './instruments';
 import {
   ADJ, ADJ_LENGTH, adjustedCorrection, adjustmentSd, correctedLift, reductionErrors, type ReductionErrors,
 } from './reductionErrors';
@@ -388,6 +388,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
   // Monte Carlo uncertainty on the corrected coefficients and circulations, and the GUM budget.
   let uncertainty: RunResult['uncertainty'] = {};
   let budget: RunResult['budget'];
+  let cpU: RunResult['cpU'];
   if (settings.mcDraws > 0) {
     const m = mcModel(setup, L, run, settings, bad, nominal, options.mcPath !== 'core');
     const nominalOut: Record<UKey, number> = {
@@ -402,6 +403,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
     };
     uncertainty = runUncertainty(m, settings, run, nominalOut);
     budget = runBudget(setup, m, run.info.alphaDeg, nominalOut);
+    cpU = tapCpUncertainty(L, m, nominal);
   }
 
   return {
@@ -424,9 +426,34 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
     spanwise,
     uncertainty,
     ...(budget ? { budget } : {}),
+    ...(cpU ? { cpU } : {}),
     flags,
     inviscid: inviscidCp(setup.model.geometry, nominal.corrected.alphaDeg),
   };
+}
+
+/** u(Cp) of every tap for the Cp band: Cp = (p − p∞)/q with the tap's and p∞'s total reading
+ *  uncertainties (app/instruments.ts channelSd) and q's relative one (Δp_ref, k_q), in quadrature
+ *  (JCGM 100 eq. 10; the tap–p∞ correlation of a shared module is left out, a small overstatement). */
+function tapCpUncertainty(L: Layout, m: McModel, nominal: CoreOutput): Record<string, number> {
+  const at = new Map(m.names.map((n, k) => [n, k]));
+  const sdOf = (name: string) => {
+    const k = at.get(name);
+    return k === undefined ? 0 : channelSd(m.instruments, k, m.mean[k]);
+  };
+  const q = nominal.uncorrected.q;
+  const kDp = at.get(L.dpRef.name);
+  const dp = kDp === undefined ? NaN : m.mean[kDp];
+  const uqRel = Math.hypot(sdOf(L.dpRef.name) / dp, m.kqSd / m.kq);
+  const uPinf = sdOf(L.pStatic.name);
+  const out: Record<string, number> = {};
+  for (const t of nominal.taps) {
+    const ch = L.byTarget.get(key('tap', t.id));
+    if (!ch) continue;
+    const u = Math.hypot(Math.hypot(sdOf(ch.name), uPinf) / q, t.cp * uqRel);
+    if (Number.isFinite(u)) out[t.id] = u;
+  }
+  return out;
 }
 
 /** y of the largest total-pressure deficit on the rake. */
@@ -629,6 +656,22 @@ export function correctedMomentumCl(r: Pick<ResultDigest, 'correction' | 'clMome
   return r.clMomentum * (1 - r.correction.sigma - 2 * r.correction.eps);
 }
 
+/** The polar error bars of a result: its 95 % intervals of cl, cl_mom, cd (wake) and cm, or null. */
+export function polarIntervals(r: Pick<RunResult, 'uncertainty'>): PolarIntervals | null {
+  const out: PolarIntervals = {};
+  for (const k of ['cl', 'clMom', 'cd', 'cmc4'] as const) {
+    const iv = r.uncertainty[k];
+    if (iv && Number.isFinite(iv.lo) && Number.isFinite(iv.hi)) out[k] = [iv.lo, iv.hi];
+  }
+  return Object.keys(out).length ? out : null;
+}
+
+/** A digest's stored intervals, or a full result's own. */
+function intervalsOf(r: ResultDigest | RunResult): { intervals?: PolarIntervals } {
+  const iv = ('intervals' in r ? r.intervals : undefined) ?? ('uncertainty' in r ? polarIntervals(r) : null);
+  return iv ? { intervals: iv } : {};
+}
+
 /** String.prototype.localeCompare's own order (default locale and options), one collator reused:
  *  localeCompare builds one per call, which dominated the summary of a 300-run day. */
 const timeOrder = new Intl.Collator();
@@ -650,6 +693,7 @@ export function summariseSession(setup: Setup, results: ResultDigest[], infos: R
     cmc4: r.corrected.cmc4,
     time: info.time,
     flagged: r.flags.length > 0,
+    ...intervalsOf(r),
   }));
   // Statistics from the runs nobody should reject (runs with a 'reject' flag are left out).
   const usable = rows.filter(({ r }) => !r.flags.some((f) => f.severity === 'reject'));

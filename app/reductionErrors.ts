@@ -2,13 +2,17 @@
 // entered in the uncertainty as additive errors of expectation zero with these standard
 // uncertainties (JCGM 100:2008 §3.2.3–3.2.4: a correction of unknown sign, evaluated by Type B):
 //
-// - Integration of the surface pressures (tap resolution): the row is integrated whole and as its
-//   two interleaved halves (every other tap along the contour, each half closed at the trailing
-//   edge the same way). For a second-order rule the error of the whole row is about
-//   E = (I_N − Ī_half)/(2² − 1) (Richardson extrapolation, L. F. Richardson, Phil. Trans. R. Soc.
-//   A 226 (1927) 299). Its uncertainty is Roache's Grid Convergence Index for a two-grid study,
-//   GCI = F_s·|E| with F_s = 3, read as an expanded uncertainty at about 95 % (P. J. Roache,
-//   J. Fluids Eng. 116 (1994) 405–413, memory), so u = GCI/2 = 1.5·|E| = |I_N − Ī_half|/2.
+// - Integration of the surface pressures (tap resolution): the row is integrated whole (I₁), as its
+//   two interleaved halves (every other tap along the contour, each closed at the trailing edge the
+//   same way; their mean I₂) and as its four interleaved quarters (mean I₄), three "grids" of tap
+//   spacing h, 2h, 4h. Richardson extrapolation (L. F. Richardson, Phil. Trans. R. Soc. A 226
+//   (1927) 299) with the observed order p = log₂(|I₂ − I₄|/|I₁ − I₂|) (kept within 1…6; 2, the
+//   order of the trapezoid rule, when the quarters are too sparse) gives the error of the whole
+//   row E = |I₁ − I₂|/(2ᵖ − 1). Its uncertainty is in the form of Roache's Grid Convergence Index,
+//   GCI = F_s·E read as a 95 % expanded uncertainty (P. J. Roache, J. Fluids Eng. 116 (1994)
+//   405–413, memory), so u = F_s·E/2. Roache gives F_s = 3 for two grids and 1.25 for three in the
+//   asymptotic range; taps are rarely in that range, and F_s = 2 is our choice, checked against
+//   exact data by test/uncertainty-coverage.test.ts.
 // - Trailing-edge closure: the row closed three ways — the mean of the linear extrapolations of
 //   the two surfaces (the method used), the mean of the two taps nearest the trailing edge
 //   (constant extrapolation), and each surface closed at its own extrapolated value (a blunt base)
@@ -83,13 +87,14 @@ function loadsOf(r: RowArrays, alphaDeg: number): Loads {
   return contourIntegrals(r.x, r.y, r.cp, r.n, r.nUpper, alphaDeg);
 }
 
-/** Every other point of each surface, keeping parity along the whole contour. */
-function half(r: RowArrays, parity: 0 | 1): RowArrays | null {
+/** Every `step`-th point along the contour from `start` (the interleaved subsets), or null when a
+ *  surface would keep fewer than 2 points. */
+function subset(r: RowArrays, step: number, start: number): RowArrays | null {
   const x: number[] = [];
   const y: number[] = [];
   const cp: number[] = [];
   let nUpper = 0;
-  for (let k = parity; k < r.n; k += 2) {
+  for (let k = start; k < r.n; k += step) {
     x.push(r.x[k]);
     y.push(r.y[k]);
     cp.push(r.cp[k]);
@@ -99,15 +104,28 @@ function half(r: RowArrays, parity: 0 | 1): RowArrays | null {
   return { x, y, cp, n: x.length, nUpper };
 }
 
-/** Interleaved-halves estimate of the integration error (see the module comment). */
+/** Safety factor of the integration estimate (see the module comment). */
+export const INTEGRATION_FS = 2;
+
+/** Interleaved-subsets estimate of the integration error (see the module comment). */
 export function integrationError(r: RowArrays, alphaDeg: number): Loads {
-  const a = half(r, 0);
-  const b = half(r, 1);
-  if (!a || !b) return { cl: 0, cdp: 0, cmc4: 0 };
+  const halves = [subset(r, 2, 0), subset(r, 2, 1)];
+  if (!halves[0] || !halves[1]) return { cl: 0, cdp: 0, cmc4: 0 };
+  const quarters = [0, 1, 2, 3].map((s) => subset(r, 4, s));
   const whole = loadsOf(r, alphaDeg);
-  const la = loadsOf(a, alphaDeg);
-  const lb = loadsOf(b, alphaDeg);
-  const u = (k: keyof Loads) => 0.5 * Math.abs(whole[k] - 0.5 * (la[k] + lb[k]));
+  const lh = halves.map((h) => loadsOf(h!, alphaDeg));
+  const lq = quarters.every((q) => q !== null) ? quarters.map((q) => loadsOf(q!, alphaDeg)) : null;
+  const u = (k: keyof Loads) => {
+    const i2 = 0.5 * (lh[0][k] + lh[1][k]);
+    const d12 = Math.abs(whole[k] - i2);
+    let p = 2;
+    if (lq && d12 > 0) {
+      const i4 = 0.25 * (lq[0][k] + lq[1][k] + lq[2][k] + lq[3][k]);
+      const obs = Math.log(Math.abs(i2 - i4) / d12) / Math.LN2;
+      if (Number.isFinite(obs)) p = Math.min(Math.max(obs, 1), 6);
+    }
+    return (INTEGRATION_FS * d12) / (2 ** p - 1) / 2;
+  };
   return { cl: u('cl'), cdp: u('cdp'), cmc4: u('cmc4') };
 }
 

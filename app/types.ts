@@ -441,6 +441,9 @@ export interface RunResult {
   uncertainty: Partial<Record<UncertaintyKey, Interval>>;
   /** GUM-style budget (JCGM 100 §8) of the same outputs; absent when Monte Carlo is off. */
   budget?: UncertaintyBudget;
+  /** Standard uncertainty of each tap's Cp (every input, Cp = (p − p∞)/q), by tap id; absent when
+   *  Monte Carlo is off. The Cp plot draws its 95 % band. */
+  cpU?: Record<string, number>;
   flags: Flag[];
   /** Inviscid panel-method Cp at the corrected α (x/c, Cp, surface). */
   inviscid: { x: number; cp: number; surface: Surface }[];
@@ -449,6 +452,8 @@ export interface RunResult {
 /** What the session summary (app/reduce.ts summariseSession) needs of a run's result: the store
  *  keeps it beside the full result, so a summary never decodes every stored result. */
 export type ResultDigest = Pick<RunResult, 'run' | 'corrected' | 'uncorrected' | 'correction' | 'clMomentum' | 'flags'> & {
+  /** The 95 % intervals the polars draw as error bars (absent in digests stored before 0.3.0). */
+  intervals?: PolarIntervals;
   rows: Pick<RowLoads, 'row' | 'z' | 'cl'>[];
   settings: Pick<Settings, 'spanSpreadTol'>;
 };
@@ -470,8 +475,13 @@ export interface SessionStats {
   repeatSpread: number | null;
 }
 
+/** 95 % intervals [lo, hi] of a polar point's corrected values (error bars). */
+export type PolarIntervals = Partial<Record<'cl' | 'clMom' | 'cd' | 'cmc4', [number, number]>>;
+
 /** One point of the session polars. */
 export interface PolarPoint {
+  /** 95 % intervals of cl, clMom, cd (wake) and cm, when the reduction had Monte Carlo. */
+  intervals?: PolarIntervals;
   run: number;
   alphaDeg: number;
   cl: number;

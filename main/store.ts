@@ -23,7 +23,7 @@ import {
   type ChannelStats, type Flag, type RawRun, type ResultDigest, type RunInfo, type RunKind, type RunResult, type Settings, type Setup,
 } from '../app/types';
 import { averageRun } from '../app/samples';
-import { correctedMomentumCl, resolveSettings } from '../app/reduce';
+import { polarIntervals, correctedMomentumCl, resolveSettings } from '../app/reduce';
 import { settingsPatchSchema } from '../app/log/schema';
 import { INDEX_FILE, SETUP_FILE } from '../app/log/session';
 import { prepareRun, type PreparedFile, type PreparedRun } from './runFile';
@@ -1013,6 +1013,7 @@ export class ImportWriter {
 
 /** What the session summary needs of a result (ResultDigest). */
 export function resultDigest(r: RunResult): ResultDigest {
+  const intervals = polarIntervals(r);
   return {
     run: r.run,
     corrected: r.corrected,
@@ -1020,6 +1021,7 @@ export function resultDigest(r: RunResult): ResultDigest {
     correction: r.correction,
     clMomentum: r.clMomentum,
     flags: r.flags,
+    ...(intervals ? { intervals } : {}),
     rows: r.rows.map((x) => ({ row: x.row, z: x.z, cl: x.cl })),
     settings: { spanSpreadTol: r.settings.spanSpreadTol },
   };
