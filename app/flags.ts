@@ -146,6 +146,25 @@ export const FLAGS = {
       `more than the tolerance ${f(p.tol, 3)}: the flow may not be two-dimensional.`,
     example: { spread: 0.061, rows: 3, lo: { row: 'B', z: -0.15, cl: 0.812 }, hi: { row: 'C', z: 0, cl: 0.873 }, tol: 0.04 },
   }),
+  'correction-disagree': entry<{
+    applied: string; epsApplied: number; dAlphaApplied: number; clApplied: number;
+    reference: string; epsReference: number; dAlphaReference: number; clReference: number;
+    tolEps: number; tolAlphaDeg: number;
+  }>({
+    label: 'wall corrections disagree',
+    short: 'corrections differ',
+    severity: 'warn',
+    reason: (p) =>
+      `Wall corrections disagree: ${p.applied} (applied) ε = ${f(p.epsApplied, 4)}, Δα = ${f(p.dAlphaApplied, 2)}° against ` +
+      `${p.reference} ε = ${f(p.epsReference, 4)}, Δα = ${f(p.dAlphaReference, 2)}° (limits ${f(p.tolEps, 4)} in ε, ` +
+      `${f(p.tolAlphaDeg, 2)}° in Δα); corrected cl ${f(p.clApplied, 4)} against ${f(p.clReference, 4)}. ` +
+      'A sign of stall, wall boundary-layer growth or wall-tap trouble.',
+    example: {
+      applied: 'wall signature', epsApplied: 0.0171, dAlphaApplied: 0.16, clApplied: 1.081,
+      reference: 'classical (Barlow, Rae & Pope)', epsReference: 0.0113, dAlphaReference: 0.11, clReference: 1.073,
+      tolEps: 0.005, tolAlphaDeg: 0.25,
+    },
+  }),
 } as const;
 
 export type FlagCode = keyof typeof FLAGS;

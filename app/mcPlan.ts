@@ -26,11 +26,13 @@
 // source).
 
 import { freeStream } from './air';
-import { applyCorrections, wallCorrections } from './corrections';
+import { applyCorrections } from './corrections';
+import { correctionOf, type CorrectionPlan } from './correctionChoice';
+import type { SignaturePlan } from './wallSignature';
 import { ADJ, adjustedCorrection, correctedLift } from './reductionErrors';
 import { applyStencil, linearStencil, trapezoid } from './quadrature';
 import { compareUpper, contourIntegrals } from './surface';
-import type { Coefficients, CorrectionMethod, RunInfo, Setup, Surface } from './types';
+import type { Coefficients, RunInfo, Setup, Surface } from './types';
 import { jonesIntegral, jonesTerm } from './wake';
 import { angleFluxIntegral, angleFluxTerm, momentumCl, speedRatio, wallGrid } from './walls';
 
@@ -48,6 +50,8 @@ export interface PlanLayout {
   ceiling: { x: number; ch: string }[];
   mainRow: string;
   areaC2: number;
+  /** Wall-signature design (app/reduce.ts Layout.signature). */
+  signature: SignaturePlan | null;
 }
 
 /** The nominal pass's facts the plan relies on (from runCore's output). */
@@ -81,7 +85,9 @@ export interface McPlan {
   height: number;
   width: number;
   areaC2: number;
-  method: CorrectionMethod;
+  /** The correction as the nominal pass resolved it (app/correctionChoice.ts). */
+  correct: CorrectionPlan;
+  signature: SignaturePlan | null;
   baro: number;
   T: number;
   rh: number;
@@ -170,12 +176,14 @@ export function buildMcPlan(
   setup: Setup,
   L: PlanLayout,
   info: RunInfo,
-  correction: CorrectionMethod,
+  correction: CorrectionPlan,
   bad: readonly { id: string }[],
   nominal: PlanNominal,
   index: ReadonlyMap<string, number>,
 ): McPlan | null {
   if (nominal.mainRow !== L.mainRow) return null;
+  // The wall signature needs the walls in the same order as the design (both sorted by x).
+  if (correction.method === 'wall-signature' && (!L.signature || L.signature.unusable)) return null;
   const idx = (name: string): number => index.get(name) ?? -1;
   const iDp = idx(L.dpRef);
   const iPs = idx(L.pStatic);
@@ -259,7 +267,8 @@ export function buildMcPlan(
     height: setup.facility.sectionHeight,
     width: setup.facility.sectionWidth,
     areaC2: L.areaC2,
-    method: correction,
+    correct: correction,
+    signature: L.signature,
     baro: info.baro,
     T: info.temperatureC + 273.15,
     rh: info.humidity,
@@ -446,14 +455,13 @@ export function evalMcPlan(
     V,
     Re: fs.Re,
   };
-  const correction = adjustedCorrection(wallCorrections({
-    chord: P.chord,
-    height: P.height,
-    width: P.width,
-    sectionAreaC2: P.areaC2,
-    cdU: Number.isFinite(cdU) ? cdU : uncorrected.cdp,
-    method: P.method,
-  }), adj);
+  // The same parameters as runCore's (correctionOf, app/correctionChoice.ts), the draw's
+  // correction-model errors applied as runCore applies them.
+  const chosen = correctionOf(
+    P.correct, { chord: P.chord, height: P.height, width: P.width, sectionAreaC2: P.areaC2 }, cdU, uncorrected.cdp, P.signature, W ? P.fcp : null, W ? P.ccp : null,
+  );
+  if (!chosen) return false;
+  const correction = adjustedCorrection(chosen, adj);
   const corrected = applyCorrections(uncorrected, correction, uncorrected.cmc4);
   const lift = correctedLift(corrected, correction, V, clMom, gammaWall, P.chord);
   out.cl = corrected.cl;

@@ -21,7 +21,9 @@ import { interpLinear } from './quadrature';
 import { wallLoads, angleFlux } from './walls';
 import { gammaFromCl, liftCrossCheck } from './crosscheck';
 import { sectionArea, wallCorrections, applyCorrections } from './corrections';
-import { monteCarlo } from './uncertainty';
+import { correctionFor, correctionSet, type CorrectionInputs, type CorrectionPlan } from './correctionChoice';
+import { signaturePlan, type SignaturePlan } from './wallSignature';
+import { instrumentStd, monteCarlo } from './uncertainty';
 import { addGroupErrors, channelSd, instrumentModel, type InstrumentModel } from './instruments';
 import {
   ADJ, ADJ_LENGTH, adjustedCorrection, adjustmentSd, correctedLift, reductionErrors, type ReductionErrors,
@@ -71,6 +73,8 @@ interface Layout {
   ceiling: { x: number; ch: Channel }[];
   mainRow: string;
   areaC2: number;
+  /** Wall-signature fit design for the floor and ceiling taps (null: no taps on both walls). */
+  signature: SignaturePlan | null;
   /** Pa per channel unit (1 for deg). */
   scale: Map<string, number>;
   /** Flow-angle channels (not zeroed, not drift-checked). */
@@ -104,6 +108,8 @@ export function layoutOf(setup: Setup): Layout {
       return ch ? [{ it, ch }] : [];
     });
   const rake = pick('rake', setup.rake.probes);
+  const floorCh = pick('floor', setup.floor).map(({ it, ch }) => ({ x: it.x, ch }));
+  const ceilingCh = pick('ceiling', setup.ceiling).map(({ it, ch }) => ({ x: it.x, ch }));
   const rowCounts = new Map<string, number>();
   for (const t of setup.taps) rowCounts.set(t.row, (rowCounts.get(t.row) ?? 0) + 1);
   const mainRow = rowCounts.has('C')
@@ -118,10 +124,18 @@ export function layoutOf(setup: Setup): Layout {
     rakeTotal: rake.filter((r) => r.it.kind === 'total').map(({ it, ch }) => ({ y: it.y, ch })),
     rakeStatic: rake.filter((r) => r.it.kind === 'static').map(({ it, ch }) => ({ y: it.y, ch })),
     rakeAngle: rake.filter((r) => r.it.kind === 'angle').map(({ it, ch }) => ({ y: it.y, ch })),
-    floor: pick('floor', setup.floor).map(({ it, ch }) => ({ x: it.x, ch })),
-    ceiling: pick('ceiling', setup.ceiling).map(({ it, ch }) => ({ x: it.x, ch })),
+    floor: floorCh,
+    ceiling: ceilingCh,
     mainRow,
     areaC2: sectionArea(setup.model.geometry),
+    signature: floorCh.length >= 2 && ceilingCh.length >= 2
+      ? signaturePlan({
+          floorX: floorCh.map((f) => f.x),
+          ceilingX: ceilingCh.map((c) => c.x),
+          height: setup.facility.sectionHeight,
+          chord: setup.model.chord,
+        })
+      : null,
     scale,
     angle: angleChannels(setup),
   };
@@ -142,6 +156,8 @@ interface CoreInput {
   /** The reduction's own errors of one draw, in app/reductionErrors.ts ADJ order (Monte Carlo). */
   adj?: Float64Array;
   bad: { id: string; reason: string }[];
+  /** How to correct (the nominal pass resolves 'auto'; its first pass uses the classical plan). */
+  correct: CorrectionPlan;
 }
 
 interface CoreOutput {
@@ -155,6 +171,8 @@ interface CoreOutput {
   uncorrected: Coefficients;
   corrected: Coefficients;
   correction: ReturnType<typeof wallCorrections>;
+  /** What the correction methods need (for the nominal comparison of every method). */
+  correctionInputs: CorrectionInputs;
   clMomentum: number;
   gamma: { pressure: number; momentum: number; wall: number };
   /** Corrected momentum cl and corrected Γ (app/reductionErrors.ts correctedLift). */
@@ -257,14 +275,20 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     V: fs.V,
     Re: fs.Re,
   };
-  const correction = adjustedCorrection(wallCorrections({
+  const correctionInputs: CorrectionInputs = {
     chord: setup.model.chord,
     height: setup.facility.sectionHeight,
     width: setup.facility.sectionWidth,
     sectionAreaC2: L.areaC2,
-    cdU: Number.isFinite(cdU) ? cdU : uncorrected.cdp,
-    method: settings.correction,
-  }), adj);
+    uncorrected,
+    cmc4U: uncorrected.cmc4,
+    wakeCd: cdU,
+    wakeCaptured: wake?.captured ?? false,
+    walls,
+    signaturePlan: L.signature,
+  };
+  const correction = adjustedCorrection(correctionFor(inp.correct, correctionInputs)
+    ?? correctionFor({ ...inp.correct, method: 'barlow-rae-pope' }, correctionInputs)!, adj);
   const corrected = applyCorrections(uncorrected, correction, uncorrected.cmc4);
   const wallScale = adj ? 1 + adj[ADJ.walls] : 1;
   const clMomentum = walls ? walls.clMom * wallScale : NaN;
@@ -280,6 +304,7 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     uncorrected,
     corrected,
     correction,
+    correctionInputs,
     clMomentum,
     gamma: {
       pressure: gammaFromCl(uncorrected.cl, fs.V, setup.model.chord),
@@ -296,8 +321,13 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
  *  pass (when there are any) drops and bridges them. */
 function nominalPass(
   setup: Setup, L: Layout, run: ZeroedRun, settings: Settings,
-): { bad: { id: string; reason: BadTapReason }[]; nominal: CoreOutput } {
+): { bad: { id: string; reason: BadTapReason }[]; nominal: CoreOutput; choice: ReturnType<typeof correctionSet> } {
   const info = run.info;
+  const provisional: CorrectionPlan = {
+    method: settings.correction === 'none' ? 'none' : 'barlow-rae-pope',
+    maskellTheta: settings.maskellTheta,
+    maskellSource: 'pressure',
+  };
   const values = (name: string): number => {
     const x = run.values[name];
     if (x === undefined || !Number.isFinite(x)) throw new Error(`Run ${info.run}: channel ${name} has no value.`);
@@ -305,15 +335,38 @@ function nominalPass(
   };
 
   // First pass: Cp with no taps dropped, to detect bad taps.
-  const first = runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad: [] });
+  const first = runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad: [], correct: provisional });
   const zeroByTap: Record<string, number> | undefined = run.zeroRaw
     ? Object.fromEntries(L.taps.map(({ tap, ch }) => [tap.id, run.zeroRaw![ch.name]]).filter(([, z]) => Number.isFinite(z as number)))
     : undefined;
   const bad = detectBadTaps(first.taps, settings, zeroByTap, settings.leakPa);
   const nominal = bad.length
-    ? runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad })
+    ? runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad, correct: provisional })
     : first;
-  return { bad, nominal };
+  // Every correction method side by side, and the one applied ('auto' resolved here, once: the
+  // Monte Carlo draws use the same method).
+  const choice = correctionSet(
+    settings.correction, nominal.correctionInputs, settings,
+    nominal.taps.filter((t) => t.row === nominal.main.row),
+    wallCpUncertainty(L, run, nominal.uncorrected.q),
+  );
+  nominal.correction = choice.correction;
+  nominal.corrected = choice.corrected;
+  return { bad, nominal, choice };
+}
+
+/** Standard uncertainty of one wall Cp from the wall channels' stated uncertainty (rms over the
+ *  wall channels, with each channel's standard error), for the wall-signature fit. */
+function wallCpUncertainty(L: Layout, run: ZeroedRun, q: number): number {
+  const all = [...L.floor, ...L.ceiling];
+  if (!all.length || !(q > 0)) return 0;
+  let s = 0;
+  for (const { ch } of all) {
+    const ui = instrumentStd(ch.uncertainty, run.values[ch.name] ?? 0, L.scale.get(ch.name) ?? 1);
+    const se = run.stats[ch.name]?.stdErr ?? 0;
+    s += ui * ui + se * se;
+  }
+  return Math.sqrt(s / all.length) / q;
 }
 
 /** How reduceRun evaluates the Monte Carlo draws: 'plan' (default) by the per-run plan of
@@ -327,7 +380,7 @@ export interface ReduceOptions {
 export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, options: ReduceOptions = {}): RunResult {
   const L = layoutOf(setup);
   const info = run.info;
-  const { bad, nominal } = nominalPass(setup, L, run, settings);
+  const { bad, nominal, choice } = nominalPass(setup, L, run, settings);
 
   // Flags.
   const flags: Flag[] = [];
@@ -378,6 +431,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
   if (M > settings.machLimit) {
     flags.push(makeFlag('compressible', { M, limit: settings.machLimit }));
   }
+  if (choice.flag) flags.push(choice.flag);
   let spanwise: RunResult['spanwise'] = null;
   if (nominal.rows.length > 1) {
     const s = spanLoading(nominal.rows, setup.model.chord, setup.model.span, settings.spanSpreadTol);
@@ -390,7 +444,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
   let budget: RunResult['budget'];
   let cpU: RunResult['cpU'];
   if (settings.mcDraws > 0) {
-    const m = mcModel(setup, L, run, settings, bad, nominal, options.mcPath !== 'core');
+    const m = mcModel(setup, L, run, settings, bad, nominal, choice.plan, options.mcPath !== 'core');
     const nominalOut: Record<UKey, number> = {
       cl: nominal.corrected.cl,
       cd: nominal.corrected.cd,
@@ -420,6 +474,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
     circulation: nominal.gamma,
     circulationCorrected: { pressure: nominal.lift.pressure, momentum: nominal.lift.momentum, wall: nominal.lift.wall },
     correction: nominal.correction,
+    corrections: choice.set,
     uncorrected: nominal.uncorrected,
     corrected: nominal.corrected,
     clMomentum: nominal.clMomentum,
@@ -506,7 +561,7 @@ function mainRowArrays(nominal: CoreOutput, mainRow: string) {
 
 function mcModel(
   setup: Setup, L: Layout, run: ZeroedRun, settings: Settings, bad: { id: string; reason: string }[],
-  nominal: CoreOutput, usePlan: boolean,
+  nominal: CoreOutput, correct: CorrectionPlan, usePlan: boolean,
 ): McModel {
   const names = setup.channels.map((c) => c.name).filter((n) => run.values[n] !== undefined);
   const instruments = instrumentModel(setup, run, names, L.scale);
@@ -539,11 +594,11 @@ function mcModel(
   });
   const core = (vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number, adj?: Float64Array): Record<UKey, number> => {
     for (let k = 0; k < names.length; k++) perturbed[names[k]] = vals[k];
-    return outputs(runCore(setup, L, run.info, settings, { values, alphaDeg, kq, tapDx, adj, bad }));
+    return outputs(runCore(setup, L, run.info, settings, { values, alphaDeg, kq, tapDx, adj, bad, correct }));
   };
 
   const plan: McPlan | null = usePlan
-    ? buildMcPlan(setup, planLayout(L), run.info, settings.correction, bad, {
+    ? buildMcPlan(setup, planLayout(L), run.info, correct, bad, {
         mainRow: nominal.main.row,
         walls: nominal.walls,
       }, index)
@@ -595,6 +650,7 @@ function planLayout(L: Layout): PlanLayout {
     ceiling: L.ceiling.map((c) => ({ x: c.x, ch: c.ch.name })),
     mainRow: L.mainRow,
     areaC2: L.areaC2,
+    signature: L.signature,
   };
   planLayouts.set(L, P);
   return P;
@@ -643,8 +699,8 @@ function runUncertainty(m: McModel, settings: Settings, run: ZeroedRun, nominal:
  */
 export function uncertaintyModel(setup: Setup, run: ZeroedRun, settings: Settings, usePlan = true): McModel {
   const L = layoutOf(setup);
-  const { bad, nominal } = nominalPass(setup, L, run, settings);
-  return mcModel(setup, L, run, settings, bad, nominal, usePlan);
+  const { bad, nominal, choice } = nominalPass(setup, L, run, settings);
+  return mcModel(setup, L, run, settings, bad, nominal, choice.plan, usePlan);
 }
 
 // ---------------------------------------------------------------------------------------------

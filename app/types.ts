@@ -5,10 +5,12 @@
 
 /** Stored with every result; raised whenever the reduced numbers change (0.2.0: the
  *  Barlow, Rae & Pope wake blockage is (c/2h)·cd_u as REDUCTION.md §8 gives it, not (c/4h)·cd_u;
- *  the Monte Carlo normal deviates come from the polar Box–Muller method, so other draws;
- *  0.3.0: the reduction's own errors and the transducer groups in the uncertainty, every interval
- *  on the corrected basis, corrected Γ, the per-run budget). */
-export const CORE_VERSION = '0.3.0';
+ *  the Monte Carlo normal deviates come from the polar Box–Muller method, so other draws; 0.3.0:
+ *  the classical wake blockage is (c/4h)·cd_u for both classical methods — the source between
+ *  walls, docs/WALL-CORRECTIONS.md — and the default correction is 'auto'; 0.4.0: the reduction's
+ *  own errors and the transducer groups in the uncertainty, every interval on the corrected basis,
+ *  corrected Γ, the per-run budget, the wake's q∞ = H∞ − p∞ when H∞ is measured). */
+export const CORE_VERSION = '0.4.0';
 
 export type PressureUnit =
   | 'Pa' | 'kPa' | 'hPa' | 'mbar' | 'psi' | 'inH2O' | 'mmH2O' | 'mmHg' | 'torr';
@@ -153,7 +155,16 @@ export interface Setup {
   settings?: Partial<Settings>;
 }
 
-export type CorrectionMethod = 'barlow-rae-pope' | 'allen-vincenti' | 'none';
+/** Wall-correction methods (app/corrections.ts, app/wallSignature.ts, app/correctionChoice.ts):
+ *  the classical closed-wall formulas ('barlow-rae-pope', 'allen-vincenti'), Maskell's separated-flow
+ *  blockage, the wall-pressure-signature fit, 'auto' (chosen per run, see correctionChoice.ts) and
+ *  'none'. */
+export type CorrectionMethod = 'barlow-rae-pope' | 'allen-vincenti' | 'maskell' | 'wall-signature' | 'auto' | 'none';
+/** A method a run is actually corrected with ('auto' resolved). */
+export type AppliedMethod = Exclude<CorrectionMethod, 'auto'>;
+export const CORRECTION_METHODS: readonly CorrectionMethod[] = [
+  'auto', 'wall-signature', 'maskell', 'barlow-rae-pope', 'allen-vincenti', 'none',
+];
 
 /** Reduction settings (per session, overridable per reduction). */
 export interface Settings {
@@ -183,6 +194,18 @@ export interface Settings {
   mcDraws: number;
   mcSeed: number;
   correction: CorrectionMethod;
+  /** Maskell's two-dimensional blockage factor θ in Δq/q = θ·cd·c/h (R&M 3400; see
+   *  app/corrections.ts for why 0.96). */
+  maskellTheta: number;
+  /** Largest rms fit residual (in Cp) of the wall-signature fit that 'auto' still uses. */
+  wallFitResidualCp: number;
+  /** A run counts as past stall for 'auto' (Maskell instead of classical where the walls cannot
+   *  say) when its rearmost upper-surface tap (aft of 0.85c) reads Cp at or below this. */
+  stallTeCp: number;
+  /** Flag when the chosen and the classical corrections differ in ε by more than this… */
+  correctionTolEps: number;
+  /** …or in Δα by more than this many degrees. */
+  correctionTolAlphaDeg: number;
   /** Taps the user marked bad (ids). */
   badTaps: string[];
 }
@@ -201,7 +224,12 @@ export const DEFAULT_SETTINGS: Settings = {
   spanSpreadTol: 0.05,
   mcDraws: 400,
   mcSeed: 20261202,
-  correction: 'barlow-rae-pope',
+  correction: 'auto',
+  maskellTheta: 0.96,
+  wallFitResidualCp: 0.005,
+  stallTeCp: -0.15,
+  correctionTolEps: 0.006,
+  correctionTolAlphaDeg: 0.25,
   badTaps: [],
 };
 
@@ -380,11 +408,51 @@ export interface WallResult {
 }
 
 export interface CorrectionResult {
-  method: CorrectionMethod;
+  method: AppliedMethod;
   sigma: number;
   epsSb: number;
   epsWb: number;
   eps: number;
+  /** Upwash and streamline-curvature increments measured at the walls (wall-signature method):
+   *  when present, applyCorrections uses them in place of the σ terms. */
+  measured?: { dAlphaDeg: number; dCl: number; dCm: number };
+}
+
+/** One method's correction of a run, for the side-by-side comparison. */
+export interface MethodCorrection {
+  method: AppliedMethod;
+  /** False when the method could not be applied to this run (then `why` says why, no numbers). */
+  available: boolean;
+  why?: string;
+  eps?: number;
+  epsSb?: number;
+  epsWb?: number;
+  dAlphaDeg?: number;
+  corrected?: Coefficients;
+}
+
+/** Every method's correction of a run, and which one was applied and why. */
+export interface CorrectionSet {
+  /** Setting asked for ('auto' or a method). */
+  requested: CorrectionMethod;
+  applied: AppliedMethod;
+  /** Why this method, in words (names the fall-back when 'auto' or the request could not be met). */
+  reason: string;
+  methods: MethodCorrection[];
+  /** Wall-signature fit (null when the walls could not say). */
+  signature: {
+    gamma: number; Q: number; mu: number; offset: number; gradient: number;
+    residualCp: number; worstCp: number; worstAt: { wall: 'floor' | 'ceiling'; x: number };
+    uEps: number; condition: number; taps: number;
+    epsSb: number; epsWb: number; eps: number; dAlphaDeg: number; dCl: number; dCm: number;
+    /** Shift terms Γδ (m³/s) and μδ (m⁴/s). */
+    gammaShift: number; muShift: number;
+    /** Fitted wall Cp at the taps (for the wall-signature plot). */
+    fitted: { floor: { x: number; cp: number }[]; ceiling: { x: number; cp: number }[] };
+  } | null;
+  /** Cp of the rearmost upper-surface tap aft of 0.85c (NaN: none), and the drag Maskell used. */
+  teCp: number;
+  maskellDrag: { cd: number; source: 'wake' | 'pressure' };
 }
 
 export interface Coefficients {
@@ -430,6 +498,8 @@ export interface RunResult {
    *  scaled by the same factor (1 + ε)(1 − σ − 2ε)). The intervals of `uncertainty` sit on these. */
   circulationCorrected?: { pressure: number; momentum: number; wall: number };
   correction: CorrectionResult;
+  /** Every wall-correction method side by side (absent in results stored before core 0.3.0). */
+  corrections?: CorrectionSet;
   uncorrected: Coefficients;
   corrected: Coefficients;
   /** cl by the wall-momentum method (uncorrected), for the cross-check. */

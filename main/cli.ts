@@ -491,21 +491,11 @@ Examples:
     .description('write the printable test-day summary sheet (self-contained HTML; print it or save as PDF)')
     .option('--out <file>', 'output file (default: standard output)')
     .addOption(new Option('--paper <size>', 'paper size').choices(['A4', 'Letter']).default('A4'))
-    .action(async (o: { out?: string; paper: 'A4' | 'Letter' }) => {
+    .option('--cp-runs <list>', 'also plot the Cp distributions of these runs, e.g. 3,5-9 (flagged runs always are)', parseRunList)
+    .action(async (o: { out?: string; paper: 'A4' | 'Letter'; cpRuns?: number[] }) => {
       await withStore(g(), false, (store) => {
         const sid = pickSession(store, g());
-        const runs = store.listRuns(sid);
-        const html = D().daySheetHtml({
-          session: store.getSession(sid),
-          setup: store.getSetup(sid),
-          runs,
-          summary: D().sessionSummary(store, sid),
-          paper: o.paper,
-          generatedAt: new Date().toISOString(),
-          results: store.latestResults(sid),
-          settings: store.getSettings(sid),
-          appVersion: pkg.version,
-        });
+        const html = D().storedDaySheet(store, sid, { paper: o.paper, appVersion: pkg.version, ...(o.cpRuns ? { cpRuns: o.cpRuns } : {}) });
         writeOut(html, o.out, 'day sheet');
       });
     });

@@ -5,7 +5,7 @@
 export { Store } from './store';
 export { importSessionFolder } from './import';
 export { reduceStoredSession, reduceStoredSessionAsync, sessionSummary } from './reduceService';
-export { daySheetHtml } from './daysheet';
+export { storedDaySheet } from './daysheetData';
 export { exportResultsCsv, exportResultsJson } from './export';
 export { runsAffectedBy } from './handlers';
 export { settingsPatchSchema } from '../app/log/schema';

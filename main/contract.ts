@@ -49,10 +49,20 @@ export const channels = {
   'settings.update': z.object({ sessionId, patch: settingsPatchSchema, note: z.string().max(4000).optional() }).strict(),
   'session.summary': z.object({ sessionId }).strict(),
   'audit.list': z.object({ sessionId }).strict(),
-  'daysheet.html': z.object({ sessionId, paper }).strict(),
+  /** The day sheet; cpRuns: runs whose Cp plots the engineer picked (flagged runs always get one). */
+  'daysheet.html': z.object({ sessionId, paper, cpRuns: z.array(runNo).max(1000).optional() }).strict(),
   /** Electron: printToPDF and save (dialog when no path). Browser mode: unsupported (use print). */
-  'daysheet.pdf': z.object({ sessionId, paper, path: z.string().max(4096).optional() }).strict(),
+  'daysheet.pdf': z.object({ sessionId, paper, cpRuns: z.array(runNo).max(1000).optional(), path: z.string().max(4096).optional() }).strict(),
   'export.results': z.object({ sessionId, format: z.enum(['csv', 'json']) }).strict(),
+  /** Save an exported plot (SVG or PNG bytes, base64): the desktop app's save dialog. Browser mode
+   *  answers { supported: false } and the page downloads the file itself. */
+  'file.save': z.object({
+    suggestedName: z.string().min(1).max(200).regex(/^[^/\\:*?"<>|]+\.(svg|png)$/, 'a plain file name ending in .svg or .png'),
+    kind: z.enum(['svg', 'png']),
+    base64: z.string().max(64 * 1024 * 1024).regex(/^[A-Za-z0-9+/]*={0,2}$/, 'base64 text'),
+  }).strict(),
+  /** The reviewer's name for the audit trail and the day sheet (browser mode asks once per launch). */
+  'reviewer.set': z.object({ name: z.string().trim().min(1).max(120) }).strict(),
   'watch.start': z.object({ folder: z.string().min(1).max(4096) }).strict(),
   'watch.stop': z.object({}).strict(),
   'watch.status': z.object({}).strict(),
@@ -85,7 +95,9 @@ export interface ImportReportLike {
 
 /** Result type of each channel. */
 export interface Results {
-  'app.info': { version: string; coreVersion: string; mode: 'electron' | 'browser'; demoSessionId: number | null; dbFile: string };
+  'app.info': { version: string; coreVersion: string; mode: 'electron' | 'browser'; demoSessionId: number | null; dbFile: string;
+    /** The name reviews and overrides are recorded under; null until browser mode is told one. */
+    reviewer: string | null };
   'sessions.list': SessionRowLike[];
   'sessions.get': { session: SessionRowLike; setup: Setup; settings: Settings };
   'dialog.pickFolder': { folder: string | null; supported: boolean };
@@ -105,6 +117,8 @@ export interface Results {
   'daysheet.html': { html: string };
   'daysheet.pdf': { path: string | null; supported: boolean };
   'export.results': { text: string; suggestedName: string; mime: string };
+  'file.save': { path: string | null; supported: boolean };
+  'reviewer.set': { reviewer: string };
   'watch.start': { folder: string; watching: true };
   'watch.stop': { watching: false };
   'watch.status': { folder: string | null; watching: boolean };

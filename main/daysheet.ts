@@ -1,12 +1,37 @@
 // The printable test-day summary sheet: one self-contained HTML document (inline CSS and inline
-// SVG polars; no scripts, no remote content, a Content-Security-Policy that forbids both) with
-// print CSS for A4 or US Letter. Every piece of text that comes from a log, a setup or a user is
-// escaped. Flags are always spelled out in words; colour (Okabe–Ito palette) only repeats them.
+// SVG plots; no scripts, no remote content, a Content-Security-Policy that forbids both) with
+// print CSS for A4 or US Letter. A running header on every page (test, model, date, page n of m)
+// comes from CSS page-margin boxes (CSS Paged Media Level 3, supported by Chromium, which prints
+// it in the desktop app and in browser mode). Every piece of text from a log, a setup or a user
+// is escaped. Flags are always spelled out in words; colour (Okabe–Ito palette) only repeats them.
+// Times are printed in the local time of the machine that makes the sheet (zone named), to the
+// second; no local file paths are printed.
 import type { SessionRow, RunRow } from './store';
-import type { Flag, PolarPoint, RunResult, SessionSummary, Settings, Setup } from '../app/types';
+import type { Flag, Interval, PolarPoint, RunResult, SessionSummary, Settings, Setup } from '../app/types';
 import { CORE_VERSION, DEFAULT_SETTINGS } from '../app/types';
-import { flagLabel, flagShort, severityWord, SEVERITY } from '../app/flags';
-import { escapeHtml, OKABE_ITO, svgPlot, type PlotPoint, type PlotSeries } from './svgplot';
+import { badTapWords, flagLabel, flagShort, severityWord, SEVERITY } from '../app/flags';
+import { sweepDirections } from '../app/sweeps';
+import { escapeHtml, OKABE_ITO, offScalePoints, svgPlot, type PlotPoint, type PlotSeries, type PlotSpec } from './svgplot';
+
+/** A finding about the whole session rather than one run (a tap faulty all day, say). The
+ *  session-level fault finder (issue 9) fills these in; the sheet prints them in their own section. */
+export interface SessionFinding {
+  severity: Flag['severity'];
+  /** Short title in words. */
+  title: string;
+  /** The finding with its numbers. */
+  detail: string;
+  runs?: number[];
+}
+
+/** A tap marked bad or good again by an engineer, with the reason given (from the audit trail). */
+export interface TapNote {
+  tapId: string;
+  bad: boolean;
+  comment: string;
+  actor: string;
+  at: string;
+}
 
 export interface DaySheetArgs {
   session: SessionRow;
@@ -14,15 +39,23 @@ export interface DaySheetArgs {
   runs: RunRow[];
   summary: SessionSummary;
   paper: 'A4' | 'Letter';
-  /** ISO time the sheet was made (printed on it). */
+  /** ISO time the sheet was made (printed on it, in local time). */
   generatedAt: string;
-  /** Optional: full latest results, to print the 95 % intervals of cl and cd beside the values. */
+  /** Optional: full latest results, for intervals, uncertainty bars, Cp plots and bad taps. */
   results?: RunResult[];
   /** Optional: the session's reduction settings (store.getSettings); default: the setup's
    *  session defaults over DEFAULT_SETTINGS (what the sheet prints about tolerances). */
   settings?: Settings;
   /** Optional: program version printed in the footer. */
   appVersion?: string;
+  /** IANA time zone for the printed times (default: this machine's). */
+  timeZone?: string;
+  /** Runs whose Cp plot the engineer asked for, besides the flagged runs. */
+  cpRuns?: number[];
+  /** Tap overrides with their reasons, oldest first. */
+  tapNotes?: TapNote[];
+  /** Session-level findings (issue 9); none yet = the section says so. */
+  findings?: SessionFinding[];
 }
 
 const MINUS = '\u2212';
@@ -38,12 +71,10 @@ function range(lo: number, hi: number, decimals: number, unit: string): string {
   if (fmt(lo, decimals) === fmt(hi, decimals)) return `${fmt(lo, decimals)}${u}`;
   return `${fmt(lo, decimals)} to ${fmt(hi, decimals)}${u}`;
 }
-function clock(iso: string): string {
-  const m = /T(\d{2}:\d{2}(:\d{2})?)/.exec(iso);
-  return m ? m[1] : iso;
-}
-
 const CORRECTION_WORDS: Record<string, string> = {
+  auto: 'chosen per run (wall signature where the walls can say, Maskell past stall, classical otherwise; see the method in the status column)',
+  'wall-signature': 'wall-pressure signature: vortex, source and doublet between the walls fitted to the floor and ceiling Cp',
+  maskell: 'Maskell separated-flow blockage (ARC R&M 3400) with classical solid blockage and curvature',
   'barlow-rae-pope': 'closed-section 2-D corrections, Barlow, Rae & Pope (1999) ch. 9',
   'allen-vincenti': 'closed-section 2-D corrections, Allen & Vincenti, NACA Rep. 782 (1944)',
   none: 'none (uncorrected)',
@@ -54,68 +85,197 @@ function geometryWords(setup: Setup): string {
   return g.kind === 'naca4' ? `NACA ${g.code}` : `coordinates (${g.x.length} points)`;
 }
 
-function css(paper: 'A4' | 'Letter'): string {
+
+// ---------------------------------------------------------------------------------------------
+// Times, names, run lists
+
+/** The offset of a zone at an instant, as "UTC+01:00". */
+function zoneOffset(when: Date, timeZone: string): string {
+  const d = Number.isFinite(when.getTime()) ? when : new Date();
+  const part = new Intl.DateTimeFormat('en-GB', { timeZone, timeZoneName: 'longOffset' })
+    .formatToParts(d).find((p) => p.type === 'timeZoneName')?.value ?? 'GMT';
+  const off = part.replace(/^GMT/, '');
+  return `UTC${off || '+00:00'}`;
+}
+
+/** Local date and time of an ISO instant to the second ("2026-11-18 10:07:03"); `clockOnly`
+ *  leaves out the date. Text that is not a time is returned as it is. */
+export function localTime(iso: string, timeZone: string, clockOnly = false): string {
+  const d = new Date(iso);
+  if (!Number.isFinite(d.getTime())) return iso;
+  const parts = new Intl.DateTimeFormat('en-GB', {
+    timeZone, year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', second: '2-digit', hourCycle: 'h23',
+  }).formatToParts(d);
+  const get = (t: string) => parts.find((p) => p.type === t)?.value ?? '';
+  const clock = `${get('hour')}:${get('minute')}:${get('second')}`;
+  return clockOnly ? clock : `${get('year')}-${get('month')}-${get('day')} ${clock}`;
+}
+
+/** A person's name from an audit actor: "cli:jsmith" → "jsmith"; the anonymous browser-mode
+ *  actor and the program itself are said in words. */
+export function personName(actor: string): string {
+  if (actor === 'browser') return 'an unnamed browser-mode user';
+  if (actor === 'rakeline') return 'Rakeline (automatic)';
+  return actor.replace(/^cli:/, '');
+}
+
+/** "run 11" or "runs 2–4, 7". */
+export function runsWord(runs: number[]): string {
+  const n = new Set(runs).size;
+  return `${n === 1 ? 'run' : 'runs'} ${runRanges(runs)}`;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Settings: what is in force, and which stored results were reduced with other settings
+
+const SETTING_WORDS: { key: keyof Settings; words: string; show: (s: Settings) => string }[] = [
+  { key: 'correction', words: 'Wall correction', show: (s) => CORRECTION_WORDS[s.correction] ?? s.correction },
+  { key: 'liftTolAbs', words: 'Lift cross-check, absolute', show: (s) => `${s.liftTolAbs} in cl` },
+  { key: 'liftTolRel', words: 'Lift cross-check, relative', show: (s) => `${fmt(s.liftTolRel * 100, 1)} % of |cl pressure|` },
+  { key: 'spikeK', words: 'Spike rejection', show: (s) => `beyond median ± ${s.spikeK} scaled MAD` },
+  { key: 'unsteadyThreshold', words: 'Unsteady q above', show: (s) => `std(q)/q = ${s.unsteadyThreshold}` },
+  { key: 'wakeEdgeTol', words: 'Wake captured when rake edges within', show: (s) => `${s.wakeEdgeTol} of Cpt = 1` },
+  { key: 'stagnationMargin', words: 'Tap bad above stagnation', show: (s) => `Cp > 1 + ${s.stagnationMargin}` },
+  { key: 'tapOutlierCp', words: 'Tap bad off its neighbours by', show: (s) => `ΔCp > ${s.tapOutlierCp}` },
+  { key: 'leakPa', words: 'Leak at wind-off above', show: (s) => `${s.leakPa} Pa` },
+  { key: 'zeroDriftFraction', words: 'Zero drift above', show: (s) => `${fmt(s.zeroDriftFraction * 100, 1)} % of q` },
+  { key: 'machLimit', words: 'Mach limit', show: (s) => `M > ${s.machLimit}` },
+  { key: 'spanSpreadTol', words: 'Spanwise spread above', show: (s) => `${s.spanSpreadTol} in section cl` },
+  { key: 'mcDraws', words: 'Uncertainty', show: (s) => (s.mcDraws ? `Monte Carlo, ${s.mcDraws} draws, seed ${s.mcSeed}` : 'not computed') },
+  { key: 'mcSeed', words: 'Monte Carlo seed', show: (s) => String(s.mcSeed) },
+  { key: 'badTaps', words: 'Taps marked bad', show: (s) => (s.badTaps.length ? [...s.badTaps].sort().join(', ') : 'none') },
+  { key: 'maskellTheta', words: 'Maskell blockage factor θ', show: (s) => String(s.maskellTheta) },
+  { key: 'wallFitResidualCp', words: 'Wall-signature fit used up to', show: (s) => `rms residual ${s.wallFitResidualCp} in Cp` },
+  { key: 'stallTeCp', words: 'Past stall (automatic choice) when', show: (s) => `rearmost upper tap Cp ≤ ${s.stallTeCp}` },
+  { key: 'correctionTolEps', words: 'Correction methods disagree above', show: (s) => `Δε = ${s.correctionTolEps}` },
+  { key: 'correctionTolAlphaDeg', words: 'Correction methods disagree above', show: (s) => `Δα = ${s.correctionTolAlphaDeg}°` },
+];
+
+/**
+ * The settings in which a stored result's reduction differs from the session's current ones, in
+ * words ("Lift cross-check, absolute: 0.03 in cl (now 0.02 in cl)"). Empty: reduced with the
+ * current settings. This is the sheet's own rule for results reduced with other settings until
+ * the stale-result rule of issue 13 lands (then that rule should replace this one).
+ */
+export function settingsDifferences(used: Partial<Settings> | undefined, current: Settings): string[] {
+  const u = { ...DEFAULT_SETTINGS, ...(used ?? {}) } as Settings;
+  const same = (k: keyof Settings) => (k === 'badTaps'
+    ? [...u.badTaps].sort().join() === [...current.badTaps].sort().join()
+    : JSON.stringify(u[k]) === JSON.stringify(current[k]));
+  return settingWords(current)
+    .filter((w) => !(w.key === 'mcSeed' && u.mcDraws === 0 && current.mcDraws === 0))
+    .filter((w) => !same(w.key))
+    .map((w) => `${w.words}: ${w.show(u)} (now ${w.show(current)})`);
+}
+
+/** The words of every setting: those above, then any other key of the settings by its name (a
+ *  setting added later is still printed and compared). */
+function settingWords(current: Settings): typeof SETTING_WORDS {
+  const known = new Set<string>(SETTING_WORDS.map((w) => w.key));
+  const more = (Object.keys(current) as (keyof Settings)[]).filter((k) => !known.has(k))
+    .map((key) => ({ key, words: String(key), show: (s: Settings) => JSON.stringify(s[key]) ?? '–' }));
+  return [...SETTING_WORDS, ...more];
+}
+
+function settingsSection(args: DaySheetArgs, settings: Settings): string {
+  const rows = settingWords(settings).filter((w) => w.key !== 'mcSeed')
+    .map((w) => `<tr><th scope="row">${escapeHtml(w.words)}</th><td>${escapeHtml(w.show(settings))}</td></tr>`).join('');
+  const groups = new Map<string, number[]>();
+  for (const r of args.results ?? []) {
+    const d = settingsDifferences(r.settings, settings);
+    if (!d.length) continue;
+    const k = d.join('; ');
+    groups.set(k, [...(groups.get(k) ?? []), r.run]);
+  }
+  const other = groups.size
+    ? `<p class="stale"><b>Reduced with other settings</b> than those in force (their numbers on this sheet are as stored; reduce them again to bring them in line):</p><ul class="stale">${[...groups]
+      .map(([d, runs]) => `<li><b>${escapeHtml(runsWord(runs))}:</b> ${escapeHtml(d)}</li>`).join('')}</ul>`
+    : '<p class="sub">Every stored result was reduced with the settings in force.</p>';
+  return `<table class="settings"><tbody>${rows}</tbody></table>${other}`;
+}
+
+// ---------------------------------------------------------------------------------------------
+// CSS
+
+/** A CSS string literal (for the page-margin boxes). */
+function cssString(s: string): string {
+  const esc = s.replace(/[\r\n\f]+/g, ' ').replace(/[\\"<>&']/g, (c) => `\\${c.charCodeAt(0).toString(16)} `);
+  return `"${esc}"`;
+}
+
+function css(args: DaySheetArgs, runningHead: string, footLine: string): string {
+  const paper = args.paper;
   const size = paper === 'A4' ? 'A4 portrait' : 'letter portrait';
   const sheetWidth = paper === 'A4' ? '186mm' : '191.9mm';
   return `
-@page { size: ${size}; margin: 12mm 12mm 14mm 12mm;
-  @bottom-right { content: "page " counter(page) " of " counter(pages); font: 7pt sans-serif; } }
+@page { size: ${size}; margin: 15mm 12mm 13mm 12mm;
+  @top-left { content: ${cssString(runningHead)}; font: 8pt "DejaVu Sans", "Liberation Sans", Arial, sans-serif; vertical-align: bottom; padding-bottom: 2mm; }
+  @top-right { content: "page " counter(page) " of " counter(pages); font: 8pt "DejaVu Sans", "Liberation Sans", Arial, sans-serif; vertical-align: bottom; padding-bottom: 2mm; white-space: nowrap; }
+  @bottom-left { content: ${cssString(footLine)}; font: 7pt "DejaVu Sans", "Liberation Sans", Arial, sans-serif; color: #333; }
+}
 * { box-sizing: border-box; }
 html { font: 8.5pt/1.3 "DejaVu Sans", "Liberation Sans", Arial, sans-serif; color: #000; background: #fff; }
 body { margin: 0 auto; max-width: ${sheetWidth}; padding: 0; }
-@media screen { body { padding: 8mm 0; } }
+@media screen { body { padding: 8mm 0; } .runhead { display: block; } }
+@media print { .runhead { display: none; } a { color: #000; text-decoration: none; } }
+.runhead { font-size: 8pt; border-bottom: 0.4pt solid #000; margin-bottom: 2mm; display: none; }
 h1 { font-size: 14pt; margin: 0 0 1mm; }
-h2 { font-size: 10pt; margin: 4mm 0 1.5mm; border-bottom: 0.4pt solid #000; padding-bottom: 0.5mm; break-after: avoid; page-break-after: avoid; }
-.sub { font-size: 7.5pt; margin: 0 0 2mm; }
+h2 { font-size: 10.5pt; margin: 4mm 0 1.5mm; border-bottom: 0.4pt solid #000; padding-bottom: 0.5mm; break-after: avoid; page-break-after: avoid; }
+h3 { font-size: 9pt; margin: 2mm 0 1mm; break-after: avoid; }
+.sub { font-size: 8pt; margin: 0.5mm 0 2mm; }
 .facts { display: grid; grid-template-columns: 1fr 1fr; gap: 0 6mm; margin: 0; }
-.facts div { display: grid; grid-template-columns: 28mm 1fr; border-bottom: 0.3pt dotted #777; padding: 0.4mm 0; }
+.facts div { display: grid; grid-template-columns: 30mm 1fr; border-bottom: 0.3pt dotted #777; padding: 0.4mm 0; }
 .facts dt { font-weight: bold; } .facts dd { margin: 0; }
 .caution { border: 1.2pt solid #000; border-left-width: 4pt; padding: 1.5mm 2.5mm; margin: 3mm 0; break-inside: avoid; page-break-inside: avoid; }
+.caution p { margin: 0; }
 .caution strong { text-transform: uppercase; letter-spacing: 0.03em; }
-.plots { display: grid; grid-template-columns: 1fr 1fr; gap: 2mm; break-inside: avoid; page-break-inside: avoid; }
-.plots svg { width: 100%; height: auto; }
-svg .pt { font-size: 9px; font-weight: bold; } svg .tk { font-size: 7px; } svg .al { font-size: 8px; }
-svg .lg { font-size: 7.5px; } svg .fl { font-size: 6.5px; }
-svg .grid { stroke: #ccc; stroke-width: 0.4; } svg .zero { stroke: #666; stroke-width: 0.6; }
-svg .frame { fill: none; stroke: #000; stroke-width: 0.6; }
+.plots { display: flex; flex-wrap: wrap; justify-content: space-between; row-gap: 2mm; }
+.plots figure { margin: 0; break-inside: avoid; page-break-inside: avoid; }
+.plots figcaption { font-size: 8pt; max-width: 91mm; }
 table { border-collapse: collapse; width: 100%; }
 thead { display: table-header-group; } tfoot { display: table-footer-group; }
 tr, li, .signoff div { break-inside: avoid; page-break-inside: avoid; }
 th, td { border: 0.3pt solid #888; padding: 0.5mm 0.8mm; vertical-align: top; }
 th { background: #eee; font-weight: bold; text-align: center; font-size: 7pt; }
-table.runs { font-size: 6.8pt; table-layout: fixed; }
-table.runs th, table.runs td { padding: 0.4mm 0.5mm; }
-table.runs td { overflow-wrap: anywhere; } table.runs th { font-size: 6pt; hyphens: manual; }
+table.runs { font-size: 7pt; table-layout: fixed; }
+table.runs th, table.runs td { padding: 0.4mm 0.4mm; }
+table.runs th { font-size: 6.6pt; line-height: 1.15; overflow-wrap: normal; }
 table.runs td.n { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
-table.runs span.u { display: block; font-size: 5.5pt; color: #333; white-space: normal; }
+table.runs span.u { display: block; font-size: 6pt; color: #333; }
 table.runs tr.zero td { color: #444; font-style: italic; }
 table.runs tr.sev-reject td:first-child { border-left: 3pt solid ${SEVERITY.reject.colour}; }
 table.runs tr.sev-warn td:first-child { border-left: 3pt dashed ${SEVERITY.warn.colour}; }
 table.runs tr.sev-reject { background: ${SEVERITY.reject.tint}; } table.runs tr.sev-warn { background: ${SEVERITY.warn.tint}; }
-.status { font-size: 6.3pt; }
-table.stats { width: auto; min-width: 60%; } table.stats th { text-align: left; background: none; font-size: 8pt; }
-table.stats td { font-variant-numeric: tabular-nums; }
-ol.flagged, ul.common { margin: 0; padding-left: 5mm; } ol.flagged li, ul.common li { margin-bottom: 1mm; }
+.status { font-size: 6.6pt; }
+table.stats, table.settings { width: auto; min-width: 60%; }
+table.stats th, table.settings th { text-align: left; background: none; font-size: 8pt; }
+table.stats td, table.settings td { font-variant-numeric: tabular-nums; }
+table.settings { font-size: 8pt; }
+ol.flagged, ul.common, ul.stale, ul.taps, ul.findings { margin: 0; padding-left: 5mm; }
+ol.flagged li, ul.common li, ul.stale li, ul.taps li, ul.findings li { margin-bottom: 1mm; }
 .sevtag { font-weight: bold; border: 0.6pt solid #000; padding: 0 0.8mm; font-size: 7pt; }
 .signoff { display: grid; grid-template-columns: 1fr; gap: 5mm; margin-top: 4mm; break-inside: avoid; page-break-inside: avoid; }
 .signoff div { display: grid; grid-template-columns: 30mm 1fr 1fr 30mm; gap: 3mm; align-items: end; }
-.signoff span.line { border-bottom: 0.6pt solid #000; min-height: 8mm; display: block; font-size: 6.5pt; color: #333; padding-top: 7mm; }
-footer { margin-top: 4mm; font-size: 6.5pt; color: #333; }
-@media print { a { color: #000; text-decoration: none; } }
+.signoff span.line { border-bottom: 0.6pt solid #000; min-height: 8mm; display: block; font-size: 7pt; color: #333; padding-top: 7mm; }
+.keep { break-inside: avoid; page-break-inside: avoid; }
+.keep-next { break-after: avoid; page-break-after: avoid; }
+footer { margin-top: 4mm; font-size: 7pt; color: #333; }
 `;
 }
 
-/** Words of one run's status cell: flags (severity and words) and the reviewer's verdict. */
-function statusCell(row: RunRow): string {
-  const parts: string[] = [];
-  if (row.kind === 'zero') parts.push('wind-off zero');
-  else if (!row.result) parts.push('not reduced');
-  else if (!row.result.flags.length) parts.push('no flags');
-  for (const f of row.result?.flags ?? []) parts.push(`<b>${severityWord(f.severity)}:</b> ${escapeHtml(flagShort(f.code))}`);
-  if (row.review) {
-    parts.push(`reviewer ${escapeHtml(row.review.verdict)} (${escapeHtml(row.review.actor)})`);
-  }
-  return parts.join('; ');
+// ---------------------------------------------------------------------------------------------
+// Run table
+
+/** Short words for the wall-correction method a run was corrected with (the run table). */
+const METHOD_SHORT: Record<string, string> = {
+  'wall-signature': 'wall signature', maskell: 'Maskell', 'barlow-rae-pope': 'classical (BRP)',
+  'allen-vincenti': 'classical (A&V)', none: 'uncorrected',
+};
+/** "; corrected: …" for a run whose full result is at hand (issue 11: the method per run). */
+function methodNote(full: RunResult | undefined): string {
+  if (!full) return '';
+  const m = full.corrections?.applied ?? full.correction.method;
+  return `; corrected: ${escapeHtml(METHOD_SHORT[m] ?? m)}`;
 }
 
 function rowSeverity(row: RunRow): 'reject' | 'warn' | null {
@@ -124,73 +284,218 @@ function rowSeverity(row: RunRow): 'reject' | 'warn' | null {
   return fl.length ? 'warn' : null;
 }
 
-function runTable(args: DaySheetArgs, settings: Settings): string {
+/** Words of one run's status cell: flags (severity and words), the reviewer's verdict beside
+ *  them, and a note when the run was reduced with other settings. */
+function statusCell(row: RunRow, stale: boolean): string {
+  const parts: string[] = [];
+  if (row.kind === 'zero') parts.push('wind-off zero');
+  else if (!row.result) parts.push('not reduced');
+  else if (!row.result.flags.length) parts.push('no flags');
+  for (const f of row.result?.flags ?? []) parts.push(`<b>${severityWord(f.severity)}:</b> ${escapeHtml(flagShort(f.code))}`);
+  if (row.review) parts.push(`<b>${escapeHtml(row.review.verdict)}</b> by ${escapeHtml(personName(row.review.actor))}`);
+  if (stale) parts.push('other settings');
+  return parts.join('; ');
+}
+
+/** "±0.0123": half the width of a 95 % interval. */
+function halfWidth(iv: Interval | undefined, d: number): string {
+  if (!iv || !Number.isFinite(iv.lo) || !Number.isFinite(iv.hi)) return '';
+  return `<span class="u">±${fmt((iv.hi - iv.lo) / 2, d)}</span>`;
+}
+
+function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Set<number>): string {
   const byRun = new Map((args.results ?? []).map((r) => [r.run, r]));
-  const uText = (iv: { lo: number; hi: number } | undefined, d: number) =>
-    iv && Number.isFinite(iv.lo) && Number.isFinite(iv.hi) ? `<span class="u">[${fmt(iv.lo, d)}, ${fmt(iv.hi, d)}]</span>` : '';
-  const widths = [5, 6.5, 5, 4.5, 5, 4.5, 4.5, 8, 6.5, 8.5, 6, 6, 6.5, 6.5, 17];
+  const widths = [4.6, 6.6, 4.6, 4.6, 4.8, 4.4, 4.4, 6.8, 6.8, 7.4, 6.8, 6.6, 5.8, 5.8, 19.1];
   const cols = `<colgroup>${widths.map((w) => `<col style="width:${w}%">`).join('')}</colgroup>`;
   const head = `${cols}<thead><tr>
-<th>Run</th><th>Time</th><th>α geom<br>°</th><th>α corr<br>°</th><th>q<br>Pa</th><th>V<br>m/s</th><th>Re<br>×10⁶</th>
-<th>cl<br>pressure</th><th>cl<br>momentum</th><th>cd<br>wake</th><th>cd<br>pressure</th><th>cm<br>c/4</th>
-<th>Γ<br>pressure<br>m²/s</th><th>Γ<br>momentum<br>m²/s</th><th>Status and flags</th></tr></thead>`;
+<th>Run</th><th>Time</th><th>α geom °</th><th>α corr °</th><th>q Pa</th><th>V m/s</th><th>Re ×10⁶</th>
+<th>cl pres&shy;sure</th><th>cl mo&shy;men&shy;tum</th><th>cd wake</th><th>cd pres&shy;sure</th><th>cm c/4</th>
+<th>Γ pres&shy;sure m²/s</th><th>Γ mo&shy;men&shy;tum m²/s</th><th>Status, flags and verdict</th></tr></thead>`;
   const body = args.runs.map((row) => {
     const r = row.result;
     const sev = rowSeverity(row);
     const cls = [row.kind === 'zero' ? 'zero' : '', sev ? `sev-${sev}` : ''].filter(Boolean).join(' ');
-    const full = byRun.get(row.run);
+    const u = byRun.get(row.run)?.uncertainty;
     const mark = sev ? `${SEVERITY[sev].glyph} ` : '';
     const cells = r
       ? [
           fmt(row.alphaDeg, 2), fmt(r.alphaCorrDeg, 2), fmt(r.q, 1), fmt(r.V, 2), fmt(r.Re / 1e6, 3),
-          fmt(r.cl, 4) + uText(full?.uncertainty.cl, 4), fmt(r.clMom, 4), fmt(r.cd, 5) + uText(full?.uncertainty.cd, 5),
-          fmt(r.cdp, 5), fmt(r.cmc4, 4), fmt(r.gammaPressure, 3), fmt(r.gammaMomentum, 3),
+          fmt(r.cl, 4) + halfWidth(u?.cl, 4), fmt(r.clMom, 4) + halfWidth(u?.clMom, 4),
+          fmt(r.cd, 5) + halfWidth(u?.cd, 5), fmt(r.cdp, 5) + halfWidth(u?.cdp, 5), fmt(r.cmc4, 4) + halfWidth(u?.cmc4, 4),
+          fmt(r.gammaPressure, 3) + halfWidth(u?.gammaPressure, 3), fmt(r.gammaMomentum, 3) + halfWidth(u?.gammaMomentum, 3),
         ]
       : [fmt(row.alphaDeg, 2), '–', '–', '–', '–', '–', '–', '–', '–', '–', '–', '–'];
-    return `<tr${cls ? ` class="${cls}"` : ''}><td class="n">${mark}${row.run}</td><td class="n">${escapeHtml(clock(row.time))}</td>${cells
+    return `<tr${cls ? ` class="${cls}"` : ''} data-run="${row.run}"><td class="n">${mark}${row.run}</td><td class="n">${escapeHtml(localTime(row.time, tz, true))}</td>${cells
       .map((c) => `<td class="n">${c}</td>`)
-      .join('')}<td class="status">${statusCell(row)}</td></tr>`;
+      .join('')}<td class="status">${statusCell(row, stale.has(row.run))}${methodNote(byRun.get(row.run))}</td></tr>`;
   });
   return `<table class="runs">${head}<tbody>${body.join('\n')}</tbody></table>
-<p class="sub">${SEVERITY.reject.glyph} and a solid left bar: at least one ${SEVERITY.reject.word} flag (${SEVERITY.reject.meaning.toLowerCase()}); ${SEVERITY.warn.glyph} and a dashed bar: ${SEVERITY.warn.word} flags only (${SEVERITY.warn.meaning.toLowerCase()}).
-α corr, q, V, Re, cl, cd and cm are wall-corrected (${escapeHtml(CORRECTION_WORDS[settings.correction] ?? settings.correction)});
-cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl with V and cl corrected.${args.results?.length ? ' Brackets: 95 % Monte Carlo coverage interval (JCGM 101:2008).' : ''}</p>`;
+<p class="sub">${SEVERITY.reject.glyph} and a solid left bar: at least one ${SEVERITY.reject.word} flag (${SEVERITY.reject.meaning.toLowerCase()}); ${SEVERITY.warn.glyph} and a dashed bar: ${SEVERITY.warn.word} flags only (${SEVERITY.warn.meaning.toLowerCase()}). Times are local (${escapeHtml(zoneOffset(new Date(args.generatedAt), tz))}).
+α corr, q, V, Re, cl, cd and cm are wall-corrected (${escapeHtml(CORRECTION_WORDS[settings.correction] ?? settings.correction)}); the status column names each run's method.
+cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl with V and cl corrected.${args.results?.length ? ' Small figures under a value: half the width of its 95 % Monte Carlo coverage interval (JCGM 101:2008), same basis as the value.' : ''}</p>`;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Plots
+
+/** Plot sizes in points (1 user unit = 1 pt on paper): two plots side by side across the page. */
+const PLOT_W = 258; // 91 mm
+const PLOT_H = 232; // 82 mm
+const CP_H = 206; // 73 mm: three rows of Cp plots fit a page
+
+const flagOf = (sev: 'reject' | 'warn' | null | undefined): PlotPoint['flag'] => (sev === 'reject' ? 'reject' : sev === 'warn' ? 'check' : undefined);
+
+/** Both sweeps of one quantity as two series: up-sweep filled markers and a solid line, down-sweep
+ *  open markers and a dashed line. */
+function sweepSeries(
+  name: string, colour: string, marker: PlotSeries['marker'], pts: readonly PolarPoint[],
+  xy: (p: PolarPoint) => PlotPoint, extra: Partial<PlotSeries> = {},
+): PlotSeries[] {
+  const dirs = sweepDirections(pts);
+  const pick = (want: 'up' | 'down') => pts.map((p, i) => (dirs[i] === want ? xy(p) : { x: NaN, y: NaN }));
+  const hasDown = dirs.includes('down');
+  const up: PlotSeries = { name: hasDown ? `${name}, up-sweep` : name, colour, marker, filled: true, line: 'solid', points: pick('up'), ...extra };
+  if (!hasDown) return [up];
+  return [up, { name: `${name}, down-sweep`, colour, marker, filled: false, line: 'dashed', points: pick('down'), ...extra }];
+}
+
+/** The drag axis: from zero (or the least cd) to a little above the largest wake cd of the runs
+ *  inside the linear lift range (±2°) and 60 % more, so the drag bucket fills most of the plot
+ *  and the rise towards maximum lift shows; stalled runs beyond
+ *  it are drawn as off-scale marks and named in the caption. */
+export function dragAxis(pts: readonly PolarPoint[], linear: [number, number] | null, held: Set<number>): [number, number] | undefined {
+  const usable = pts.filter((p) => !held.has(p.run) && Number.isFinite(p.cd));
+  const inRange = linear ? usable.filter((p) => p.alphaDeg >= linear[0] - 2 && p.alphaDeg <= linear[1] + 2) : usable;
+  const basis = inRange.length >= 3 ? inRange : usable;
+  if (basis.length < 2) return undefined;
+  const cds = basis.map((p) => p.cd);
+  const lo = Math.min(0, ...cds);
+  const hi = Math.max(...cds);
+  return [lo, hi + 0.6 * (hi - lo)];
 }
 
 function polars(args: DaySheetArgs): string {
   const p = args.summary.polar;
-  const sevOf = new Map(args.runs.map((r) => [r.run, rowSeverity(r)]));
-  const flag = (q: PolarPoint): PlotPoint['flag'] => {
-    const s = sevOf.get(q.run);
-    return s === 'reject' ? 'reject' : s === 'warn' || (s === undefined && q.flagged) ? 'check' : undefined;
+  // A ring marks runs with check flags of their own; a flag raised alike on many runs (one leaking
+  // tap all day) would ring every point and hide the ones that matter.
+  const common = new Set(commonFlags(args.runs).map((g) => flagKey(g.flag)));
+  const sevOf = new Map(args.runs.map((r) => [r.run, rowSeverity(r) === 'reject' ? 'reject' as const
+    : r.result?.flags.some((f) => !common.has(flagKey(f))) ? 'warn' as const : null]));
+  const held = new Set(p.filter((q) => sevOf.get(q.run) === 'reject').map((q) => q.run));
+  const full = new Map((args.results ?? []).map((r) => [r.run, r]));
+  const iv = (run: number, k: keyof RunResult['uncertainty']): [number, number] | undefined => {
+    const u = full.get(run)?.uncertainty[k];
+    return u && Number.isFinite(u.lo) && Number.isFinite(u.hi) ? [u.lo, u.hi] : undefined;
   };
+  const pt = (q: PolarPoint, x: number, y: number, more: Partial<PlotPoint> = {}): PlotPoint =>
+    ({ x, y, flag: flagOf(sevOf.get(q.run)), label: `r${q.run}`, ...more });
+  const flagLabels = { reject: `${severityWord('reject')} flag (×, labelled r + run number)`, check: `${severityWord('warn')} flag of its own (ring)` };
+  const base = { width: PLOT_W, height: PLOT_H, unit: 'pt' as const, flagLabels };
+  // Momentum first (larger squares), pressure circles on top: both stay visible where they agree.
+  const lift: PlotSpec = {
+    ...base, title: 'Lift curve cl(α)', xLabel: 'α corrected, °', yLabel: 'cl',
+    series: [
+      ...sweepSeries('cl from wall momentum', OKABE_ITO.vermillion, 'square', p, (q) => pt(q, q.alphaDeg, q.clMom, { yErr: iv(q.run, 'clMom') }), { size: 3.6 }),
+      ...sweepSeries('cl from surface pressures', OKABE_ITO.blue, 'circle', p, (q) => pt(q, q.alphaDeg, q.cl, { yErr: iv(q.run, 'cl') }), { size: 2.3 }),
+    ],
+  };
+  const stats = args.summary.stats;
+  const xr = dragAxis(p, stats ? stats.linearRange : null, held);
+  const drag: PlotSpec = {
+    ...base, title: 'Drag polar cd(cl)', xLabel: 'cd', yLabel: 'cl', ...(xr ? { xRange: xr } : {}),
+    series: [
+      ...sweepSeries('cd from the wake rake (Jones)', OKABE_ITO.green, 'diamond', p, (q) => pt(q, q.cd, q.cl, { xErr: iv(q.run, 'cd') })),
+      { name: 'cd from surface pressures', colour: OKABE_ITO.purple, marker: 'triangle', filled: false, line: 'none', fit: false,
+        points: p.map((q) => pt(q, q.cdp, q.cl)) },
+    ],
+  };
+  const cm: PlotSpec = {
+    ...base, title: 'Pitching moment cm(α)', xLabel: 'α corrected, °', yLabel: 'cm c/4',
+    series: sweepSeries('cm about c/4, surface pressures', OKABE_ITO.blue, 'circle', p, (q) => pt(q, q.alphaDeg, q.cmc4, { yErr: iv(q.run, 'cmc4') })),
+  };
+  const cdA: PlotSpec = {
+    ...base, title: 'Wake drag cd(α)', xLabel: 'α corrected, °', yLabel: 'cd', ...(xr ? { yRange: xr } : {}),
+    series: sweepSeries('cd from the wake rake (Jones)', OKABE_ITO.green, 'diamond', p, (q) => pt(q, q.alphaDeg, q.cd, { yErr: iv(q.run, 'cd') })),
+  };
+  const span = (v: number[], d: number) => range(Math.min(...v), Math.max(...v), d, '');
+  const offNote = (spec: PlotSpec, what: (pp: PlotPoint[]) => string) => {
+    const off = offScalePoints(spec);
+    if (!off.length) return '';
+    const pts = [...new Map(off.map((o) => [o.point.label, o.point])).values()];
+    const runs = pts.map((q) => Number((q.label ?? '').slice(1))).filter(Number.isFinite);
+    return `Off scale (arrowheads on the frame): ${escapeHtml(runsWord(runs))} (${what(pts)}).`;
+  };
+  const fig = (spec: PlotSpec, caption = '') => `<figure>${svgPlot(spec)}${caption ? `<figcaption>${caption}</figcaption>` : ''}</figure>`;
   const plotted = new Set(p.map((q) => q.run));
   const notPlotted = args.runs.filter((r) => r.review?.verdict === 'rejected' && !plotted.has(r.run)).map((r) => r.run);
-  const pt = (q: PolarPoint, x: number, y: number): PlotPoint => ({ x, y, flag: flag(q), label: `r${q.run}` });
-  const clAlpha: PlotSeries[] = [
-    { name: 'cl from surface pressures', colour: OKABE_ITO.blue, marker: 'circle', filled: true, line: 'solid',
-      points: p.map((q) => pt(q, q.alphaDeg, q.cl)) },
-    { name: 'cl from wall momentum', colour: OKABE_ITO.vermillion, marker: 'square', filled: false, line: 'dashed',
-      points: p.map((q) => pt(q, q.alphaDeg, q.clMom)) },
-  ];
-  const cdCl: PlotSeries[] = [
-    { name: 'cd from the wake rake (Jones)', colour: OKABE_ITO.green, marker: 'diamond', filled: true, line: 'none',
-      points: p.map((q) => pt(q, q.cd, q.cl)) },
-    { name: 'cd from surface pressures', colour: OKABE_ITO.purple, marker: 'triangle', filled: false, line: 'none',
-      points: p.map((q) => pt(q, q.cdp, q.cl)) },
-  ];
-  const cmAlpha: PlotSeries[] = [
-    { name: 'cm about c/4, surface pressures', colour: OKABE_ITO.blue, marker: 'circle', filled: true, line: 'solid',
-      points: p.map((q) => pt(q, q.alphaDeg, q.cmc4)) },
-  ];
-  const flagLabels = { reject: `${severityWord('reject')} flag (×, labelled r + run number)`, check: `${severityWord('warn')} flags only (ring)` };
   return `<div class="plots">
-${svgPlot({ title: 'Lift curve cl(α)', xLabel: 'α corrected, °', yLabel: 'cl', series: clAlpha, flagLabels })}
-${svgPlot({ title: 'Drag polar cd(cl)', xLabel: 'cd', yLabel: 'cl', series: cdCl, flagLabels })}
-${svgPlot({ title: 'Pitching moment cm(α)', xLabel: 'α corrected, °', yLabel: 'cm c/4', series: cmAlpha, flagLabels })}
+${fig(lift)}
+${fig(drag, offNote(drag, (q) => `cd ${span(q.map((o) => o.x), 4)}`))}
+${fig(cm)}
+${fig(cdA, offNote(cdA, (q) => `cd ${span(q.map((o) => o.y), 4)}`))}
 </div>
-<p class="sub">Lines join the runs in time order, leaving out runs with a ${severityWord('reject')} flag.${notPlotted.length ? ` Not plotted (rejected by the reviewer): runs ${runRanges(notPlotted)}.` : ''}</p>`;
+<p class="sub">Corrected values. Filled markers and solid lines: up-sweep (α rising); open markers and dashed lines: down-sweep (α falling).
+Bars: 95 % coverage intervals. Lines join the runs of each sweep in time order and break at runs with a ${severityWord('reject')} flag.${notPlotted.length ? ` Not plotted (rejected by the reviewer): ${runsWord(notPlotted)}.` : ''}</p>`;
 }
+
+/** Cp(x/c) of one run's main tap row, for the Cp pages. */
+export function cpPlotSpec(r: RunResult, title: string, opts: Partial<PlotSpec> = {}): PlotSpec {
+  const row = r.rows[0]?.row ?? r.taps[0]?.row;
+  const taps = r.taps.filter((t) => t.row === row && Number.isFinite(t.cp)).sort((a, b) => a.x - b.x);
+  const bridged = new Set([...(r.surface.bridged ?? []), ...r.taps.filter((t) => t.bad).map((t) => t.id)]);
+  const of = (s: 'upper' | 'lower') => taps.filter((t) => t.surface === s && !bridged.has(t.id)).map((t) => ({ x: t.x, y: t.cp }));
+  const inv = (s: 'upper' | 'lower') => r.inviscid.filter((q) => q.surface === s).sort((a, b) => a.x - b.x).map((q) => ({ x: q.x, y: q.cp }));
+  const measured = taps.map((t) => t.cp);
+  const lo = Math.min(...measured, 1), hi = Math.max(...measured, 1);
+  return {
+    title, xLabel: 'x/c', yLabel: 'Cp (negative up)', yReverse: true, xRange: [0, 1],
+    yRange: [Math.min(lo, -0.5) - 0.05 * (hi - lo), Math.max(hi, 1) + 0.05 * (hi - lo)],
+    series: [
+      { name: 'inviscid, upper', colour: OKABE_ITO.green, marker: 'none', filled: false, line: 'solid', fit: false, points: inv('upper') },
+      { name: 'inviscid, lower', colour: OKABE_ITO.green, marker: 'none', filled: false, line: 'dashed', fit: false, points: inv('lower') },
+      { name: 'upper surface', colour: OKABE_ITO.blue, marker: 'circle', filled: true, line: 'none', points: of('upper') },
+      { name: 'lower surface', colour: OKABE_ITO.vermillion, marker: 'triangle', filled: false, line: 'none', points: of('lower') },
+      { name: 'bad or bridged tap', colour: OKABE_ITO.black, marker: 'cross', filled: false, line: 'none', size: 3, points: taps.filter((t) => bridged.has(t.id)).map((t) => ({ x: t.x, y: t.cp })) },
+    ],
+    ...opts,
+  };
+}
+
+/** Runs that get a Cp plot: every run with a hold flag, a flag of its own (not one raised
+ *  identically on several runs) or a reviewer's rejection, and the runs the engineer picked. */
+export function cpPlotRuns(args: DaySheetArgs, common: Set<string>): { runs: number[]; left: number[] } {
+  const picked = new Set(args.cpRuns ?? []);
+  const want = args.runs.filter((row) => row.kind === 'data' && row.result && (
+    picked.has(row.run)
+    || row.review?.verdict === 'rejected'
+    || row.result.flags.some((f) => f.severity === 'reject' || !common.has(flagKey(f)))
+  )).map((r) => r.run);
+  const have = new Set((args.results ?? []).filter((r) => Array.isArray(r.taps) && r.taps.length).map((r) => r.run));
+  const runs = want.filter((r) => have.has(r));
+  const MAX = 24;
+  return { runs: runs.slice(0, MAX), left: runs.slice(MAX) };
+}
+
+function cpPages(args: DaySheetArgs, common: Set<string>): string {
+  const { runs, left } = cpPlotRuns(args, common);
+  if (!runs.length) return '<p>No flagged run and no run picked: no Cp plots.</p>';
+  const byRun = new Map((args.results ?? []).map((r) => [r.run, r]));
+  const rows = new Map(args.runs.map((r) => [r.run, r]));
+  const figs = runs.map((run) => {
+    const r = byRun.get(run)!;
+    const row = rows.get(run)!;
+    const words = [...(row.result?.flags ?? []).map((f) => `${severityWord(f.severity)}: ${flagShort(f.code)}`),
+      ...(row.review ? [`${row.review.verdict} by the reviewer`] : [])];
+    const title = `Run ${run}: α ${fmt(r.corrected.alphaDeg, 2)}° corr., cl ${fmt(r.corrected.cl, 3)}`;
+    const spec = cpPlotSpec(r, title, { width: PLOT_W, height: CP_H, unit: 'pt' });
+    return `<figure>${svgPlot(spec)}<figcaption>${escapeHtml(words.length ? words.join('; ') : 'picked by the engineer, no flags')}</figcaption></figure>`;
+  });
+  return `<p class="sub keep-next">Main tap row, measured Cp (not wall-corrected) against the inviscid panel solution at the corrected α. Runs: the flagged and rejected runs${args.cpRuns?.length ? ' and those picked by the engineer' : ''}.${left.length ? ` Left out for room: ${escapeHtml(runsWord(left))}.` : ''}</p>
+<div class="plots">${figs.join('\n')}</div>`;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Statistics, findings, flags, taps
 
 function statistics(args: DaySheetArgs): string {
   const s = args.summary.stats;
@@ -205,7 +510,13 @@ function statistics(args: DaySheetArgs): string {
     ['Repeat-run spread', s.repeatSpread !== null ? `largest cl range at a repeated α: ${fmt(s.repeatSpread, 4)}` : 'no repeated runs'],
   ];
   return `<table class="stats"><tbody>${rows.map(([k, v]) => `<tr><th scope="row">${escapeHtml(k)}</th><td>${escapeHtml(v)}</td></tr>`).join('')}</tbody></table>
-<p class="sub">Statistics use the corrected pressure-integration cl and the wake cd (pressure cd where there is no wake) of runs without a ${severityWord('reject')} flag.</p>`;
+<p class="sub">Statistics use the corrected pressure-integration cl and the wake cd (pressure cd where there is no wake) of runs without a ${severityWord('reject')} flag and not rejected by the reviewer.</p>`;
+}
+
+function findingsSection(args: DaySheetArgs): string {
+  const f = args.findings ?? [];
+  if (!f.length) return '<p>None reported for this session.</p>';
+  return `<ul class="findings">${f.map((x) => `<li><span class="sevtag">${severityWord(x.severity)}</span> <b>${escapeHtml(x.title)}:</b> ${escapeHtml(x.detail)}${x.runs?.length ? ` (${escapeHtml(runsWord(x.runs))})` : ''}</li>`).join('')}</ul>`;
 }
 
 /** "words: reason", without repeating the words when the reason already starts with them. */
@@ -214,6 +525,21 @@ function reasonWords(f: Flag): string {
   return f.reason.toLowerCase().startsWith(words.toLowerCase())
     ? escapeHtml(f.reason)
     : `${escapeHtml(words)}: ${escapeHtml(f.reason)}`;
+}
+
+const flagKey = (f: Flag) => `${f.severity}\u0000${f.code}\u0000${f.reason}`;
+
+/** Flags raised identically (same code, severity and reason) on several runs. */
+function commonFlags(runs: RunRow[]): { flag: Flag; runs: number[] }[] {
+  const groups = new Map<string, { flag: Flag; runs: number[] }>();
+  for (const row of runs) {
+    for (const f of row.result?.flags ?? []) {
+      const g = groups.get(flagKey(f)) ?? { flag: f, runs: [] };
+      g.runs.push(row.run);
+      groups.set(flagKey(f), g);
+    }
+  }
+  return [...groups.values()].filter((g) => g.runs.length > 1);
 }
 
 /** "2–6, 8, 10–12" from run numbers. */
@@ -229,56 +555,85 @@ export function runRanges(runs: number[]): string {
   return parts.join(', ');
 }
 
-function flaggedList(args: DaySheetArgs): string {
-  const byRun = new Map(args.runs.map((r) => [r.run, r]));
-  const flaggedRuns = new Set(args.summary.flagged.map((f) => f.run));
-  const reviewedOnly = args.runs.filter((r) => r.review && !flaggedRuns.has(r.run));
-  if (!args.summary.flagged.length && !reviewedOnly.length) return '<p>No run was flagged.</p>';
-  // The same flag with the same reason on several runs (a session-wide fault such as one leaking
-  // tap) is listed once, with its runs.
-  const key = (f: Flag) => `${f.severity}\u0000${f.code}\u0000${f.reason}`;
-  const groups = new Map<string, { flag: Flag; runs: number[] }>();
-  for (const { run, flags } of args.summary.flagged) {
-    for (const f of flags) {
-      const g = groups.get(key(f)) ?? { flag: f, runs: [] };
-      g.runs.push(run);
-      groups.set(key(f), g);
-    }
-  }
-  const common = [...groups.values()].filter((g) => g.runs.length > 1);
-  const isCommon = new Set(common.map((g) => key(g.flag)));
+/** Every flagged or reviewed run with its flags in words and the reviewer's verdict beside them.
+ *  Flags come from the runs' own results, so a run the reviewer rejected keeps its flags. */
+function flaggedList(args: DaySheetArgs, tz: string): string {
+  const flagged = args.runs.filter((r) => r.result?.flags.length);
+  const reviewedOnly = args.runs.filter((r) => r.review && !r.result?.flags.length);
+  if (!flagged.length && !reviewedOnly.length) return '<p>No run was flagged.</p>';
+  const common = commonFlags(args.runs);
+  const isCommon = new Set(common.map((g) => flagKey(g.flag)));
   const reviewText = (row: RunRow) =>
-    row.review ? `Reviewer ${escapeHtml(row.review.actor)} ${escapeHtml(row.review.verdict)} this run${row.review.comment ? `: ${escapeHtml(row.review.comment)}` : ''} (${escapeHtml(row.review.at)})` : '';
+    row.review ? `Reviewer ${escapeHtml(personName(row.review.actor))} <b>${escapeHtml(row.review.verdict)}</b> this run${row.review.comment ? `: ${escapeHtml(row.review.comment)}` : ''} (${escapeHtml(localTime(row.review.at, tz))})` : '';
   const parts: string[] = [];
   if (common.length) {
     parts.push(`<p>Flags raised identically on several runs:</p><ul class="common">${common
-      .map((g) => `<li><span class="sevtag">${severityWord(g.flag.severity)}</span> ${reasonWords(g.flag)} <b>Runs ${runRanges(g.runs)}.</b></li>`)
+      .map((g) => `<li><span class="sevtag">${severityWord(g.flag.severity)}</span> ${reasonWords(g.flag)} <b>${escapeHtml(runsWord(g.runs).replace(/^r/, 'R'))}.</b></li>`)
       .join('\n')}</ul>`);
   }
   const items: string[] = [];
-  for (const { run, flags } of args.summary.flagged) {
-    const row = byRun.get(run);
-    const own = flags.filter((f) => !isCommon.has(key(f)));
-    if (!own.length && !row?.review) continue;
-    const where = row ? ` (α ${fmt(row.alphaDeg, 2)}°, ${escapeHtml(clock(row.time))})` : '';
+  for (const row of flagged) {
+    const flags = row.result!.flags;
+    const own = flags.filter((f) => !isCommon.has(flagKey(f)));
+    if (!own.length && !row.review) continue;
+    const where = ` (α ${fmt(row.alphaDeg, 2)}°, ${escapeHtml(localTime(row.time, tz, true))})`;
     const reasons = own.map((f) => `<li><span class="sevtag">${severityWord(f.severity)}</span> ${reasonWords(f)}</li>`).join('');
-    const review = row?.review ? `<li>${reviewText(row)}</li>` : '';
-    const more = own.length < flags.length ? ', also the common flags above' : '';
-    items.push(`<li><b>Run ${run}</b>${where}${more}<ul>${reasons}${review}</ul></li>`);
+    const review = row.review ? `<li>${reviewText(row)}</li>` : '';
+    const more = own.length < flags.length ? `${own.length ? ', also' : ':'} the common flags above` : '';
+    items.push(`<li><b>Run ${row.run}</b>${where}${more}<ul>${reasons}${review}</ul></li>`);
   }
-  for (const row of reviewedOnly) items.push(`<li><b>Run ${row.run}</b> (no flags): ${reviewText(row)}</li>`);
+  for (const row of reviewedOnly) items.push(`<li><b>Run ${row.run}</b> (${row.result ? 'no flags' : 'not reduced'}): ${reviewText(row)}</li>`);
   if (items.length) parts.push(`${common.length ? '<p>Run by run:</p>' : ''}<ol class="flagged">${items.join('\n')}</ol>`);
   return parts.join('\n');
 }
 
+/** Every bad tap: those the engineer marked (with the reason given and who gave it), and those
+ *  the reduction dropped by itself (with its reason and the runs). */
+function badTaps(args: DaySheetArgs, settings: Settings, tz: string): string {
+  const latest = new Map<string, TapNote>();
+  for (const n of args.tapNotes ?? []) latest.set(n.tapId, n);
+  const marked = [...settings.badTaps].sort();
+  const items = marked.map((id) => {
+    const n = latest.get(id);
+    const why = n?.bad ? (n.comment ? escapeHtml(n.comment) : 'no reason given') : 'in the session settings (no note)';
+    const who = n?.bad ? ` — ${escapeHtml(personName(n.actor))}, ${escapeHtml(localTime(n.at, tz))}` : '';
+    return `<li><b>${escapeHtml(id)}</b>, marked bad by the engineer: ${why}${who}</li>`;
+  });
+  const restored = [...latest.values()].filter((n) => !n.bad && !settings.badTaps.includes(n.tapId));
+  for (const n of restored) {
+    items.push(`<li><b>${escapeHtml(n.tapId)}</b>, restored to good: ${n.comment ? escapeHtml(n.comment) : 'no reason given'} — ${escapeHtml(personName(n.actor))}, ${escapeHtml(localTime(n.at, tz))}</li>`);
+  }
+  const auto = new Map<string, { reason: string; runs: number[] }>();
+  for (const r of args.results ?? []) {
+    for (const t of r.taps ?? []) {
+      if (!t.bad || !t.badReason || t.badReason === 'marked') continue;
+      const k = `${t.id}\u0000${t.badReason}`;
+      const g = auto.get(k) ?? { reason: t.badReason, runs: [] };
+      g.runs.push(r.run);
+      auto.set(k, g);
+    }
+  }
+  for (const [k, g] of [...auto].sort((a, b) => a[0].localeCompare(b[0]))) {
+    items.push(`<li><b>${escapeHtml(k.split('\u0000')[0])}</b>, dropped by the reduction: ${escapeHtml(badTapWords(g.reason))} (${escapeHtml(runsWord(g.runs))})</li>`);
+  }
+  if (!items.length) return '<p>No tap was marked or found bad.</p>';
+  return `<ul class="taps">${items.join('\n')}</ul><p class="sub">Bad taps are bridged in the surface integration (left out and the contour joined across them).</p>`;
+}
+
+// ---------------------------------------------------------------------------------------------
+
 /** The whole sheet as one HTML document. */
 export function daySheetHtml(args: DaySheetArgs): string {
   const { session, setup, summary } = args;
+  const tz = args.timeZone ?? Intl.DateTimeFormat().resolvedOptions().timeZone ?? 'UTC';
   const c = summary.conditions;
   const dataRuns = args.runs.filter((r) => r.kind === 'data');
   const zeroRuns = args.runs.length - dataRuns.length;
   const settings: Settings = args.settings ?? { ...DEFAULT_SETTINGS, ...setup.settings };
-  const tol = `|cl momentum − cl pressure| ≤ ${settings.liftTolAbs} + ${fmt(settings.liftTolRel * 100, 1)} % of |cl pressure|`;
+  const flaggedCount = dataRuns.filter((r) => r.result?.flags.length).length;
+  const rejectedCount = dataRuns.filter((r) => r.review?.verdict === 'rejected').length;
+  const stale = new Set((args.results ?? []).filter((r) => settingsDifferences(r.settings, settings).length).map((r) => r.run));
+  const common = new Set(commonFlags(args.runs).map((g) => flagKey(g.flag)));
   const fact = (k: string, v: string) => `<div><dt>${escapeHtml(k)}</dt><dd>${escapeHtml(v)}</dd></div>`;
   const facts = [
     fact('Facility', `${setup.facility.name}; closed section ${fmt(setup.facility.sectionHeight, 3)} m high × ${fmt(setup.facility.sectionWidth, 3)} m wide`),
@@ -286,18 +641,18 @@ export function daySheetHtml(args: DaySheetArgs): string {
     fact('Chord / span', `${fmt(setup.model.chord, 3)} m / ${fmt(setup.model.span, 3)} m`),
     fact('Test date', setup.session.date),
     fact('Operators', setup.session.operators.join(', ') || '–'),
-    fact('Runs', `${dataRuns.length} data, ${zeroRuns} wind-off zero, ${summary.flagged.length} flagged`),
+    fact('Runs', `${dataRuns.length} data, ${zeroRuns} wind-off zero, ${flaggedCount} flagged${rejectedCount ? `, ${rejectedCount} rejected by the reviewer` : ''}`),
     fact('Dynamic pressure q', c ? range(c.qMin, c.qMax, 1, 'Pa') : '–'),
     fact('Reynolds number', c ? range(c.ReMin / 1e6, c.ReMax / 1e6, 3, '× 10⁶') : '–'),
     fact('α (corrected)', c ? range(c.alphaMin, c.alphaMax, 2, '°') : '–'),
     fact('Air temperature', c ? range(c.tempMin, c.tempMax, 1, '°C') : '–'),
     fact('Barometer', c ? range(c.baroMin / 100, c.baroMax / 100, 1, 'hPa') : '–'),
     fact('Wall correction', CORRECTION_WORDS[settings.correction] ?? settings.correction),
-    fact('Taps marked bad', settings.badTaps.length ? settings.badTaps.join(', ') : 'none'),
-    fact('Lift cross-check', tol),
-    fact('Uncertainty', settings.mcDraws ? `Monte Carlo, ${settings.mcDraws} draws` : 'not computed'),
   ].join('\n');
   const notes = setup.session.notes ? `<p><b>Session notes:</b> ${escapeHtml(setup.session.notes)}</p>` : '';
+  const made = `${localTime(args.generatedAt, tz)} (${zoneOffset(new Date(args.generatedAt), tz)})`;
+  const runningHead = `Test-day summary · ${session.title} · model ${setup.model.name} · ${setup.session.date}`;
+  const footLine = `Rakeline${args.appVersion ? ` ${args.appVersion}` : ''}, core ${CORE_VERSION} · sheet made ${made} · reduced data: for review by a qualified engineer`;
 
   return `<!DOCTYPE html>
 <html lang="en">
@@ -306,12 +661,13 @@ export function daySheetHtml(args: DaySheetArgs): string {
 <meta http-equiv="Content-Security-Policy" content="default-src 'none'; style-src 'unsafe-inline'; img-src data:">
 <meta name="viewport" content="width=device-width, initial-scale=1">
 <title>${escapeHtml(`Test-day summary – ${session.title} – ${setup.session.date}`)}</title>
-<style>${css(args.paper)}</style>
+<style>${css(args, runningHead, footLine)}</style>
 </head>
 <body>
+<div class="runhead" aria-hidden="true">${escapeHtml(runningHead)}</div>
 <header>
 <h1>Test-day summary: ${escapeHtml(session.title)}</h1>
-<p class="sub">Session ${session.id}, imported ${escapeHtml(session.importedAt)}${session.folder ? ` from ${escapeHtml(session.folder)}` : ''}. Sheet made ${escapeHtml(args.generatedAt)} for ${args.paper} paper.</p>
+<p class="sub">Session ${session.id}, imported ${escapeHtml(localTime(session.importedAt, tz))}. Sheet made ${escapeHtml(made)} for ${args.paper} paper. Times on this sheet are local (${escapeHtml(zoneOffset(new Date(args.generatedAt), tz))}).</p>
 <dl class="facts">
 ${facts}
 </dl>
@@ -325,20 +681,32 @@ and the local test practice take precedence over anything printed here.</p>
 <section><h2>Polars</h2>
 ${polars(args)}
 </section>
-<section><h2>Session statistics</h2>
+<section class="keep"><h2>Session statistics</h2>
 ${statistics(args)}
 </section>
-<section><h2>Flagged runs and their reasons</h2>
-${flaggedList(args)}
-</section>
-<section><h2>Runs</h2>
-${runTable(args, settings)}
-</section>
-<section><h2>Review and sign-off</h2>
-<p>By signing, the reviewer confirms that the runs above, their flags and the reviewer decisions were checked.</p>
+<section class="keep"><h2>Review and sign-off</h2>
+<p>By signing, the reviewer confirms that the runs on this sheet, their flags and the reviewer decisions were checked.</p>
 <div class="signoff">
 ${['Test engineer', 'Reviewer'].map((role) => `<div><b>${role}</b><span class="line">Name</span><span class="line">Signature</span><span class="line">Date</span></div>`).join('\n')}
 </div>
+</section>
+<section><h2>Session-level findings</h2>
+${findingsSection(args)}
+</section>
+<section><h2>Flagged runs and their reasons</h2>
+${flaggedList(args, tz)}
+</section>
+<section><h2>Bad taps</h2>
+${badTaps(args, settings, tz)}
+</section>
+<section><h2>Settings in force</h2>
+${settingsSection(args, settings)}
+</section>
+<section><h2>Cp distributions</h2>
+${cpPages(args, common)}
+</section>
+<section><h2>Runs</h2>
+${runTable(args, settings, tz, stale)}
 </section>
 <footer>Rakeline${args.appVersion ? ` ${escapeHtml(args.appVersion)}` : ''}, reduction core ${escapeHtml(CORE_VERSION)}. ${escapeHtml(setup.facility.name)} · ${escapeHtml(setup.model.name)} · ${escapeHtml(setup.session.date)}</footer>
 </body>

@@ -102,6 +102,19 @@ async function printPdf(html: string, paper: Paper, target?: string, suggestedNa
   }
 }
 
+/** Save an exported plot where the user says (a real save dialog); null when cancelled. */
+async function saveFile(suggestedName: string, kind: 'svg' | 'png', bytes: Buffer): Promise<string | null> {
+  const opts: Electron.SaveDialogOptions = {
+    title: kind === 'svg' ? 'Save the plot as SVG' : 'Save the plot as PNG',
+    defaultPath: path.join(app.getPath('documents'), suggestedName),
+    filters: [kind === 'svg' ? { name: 'SVG image', extensions: ['svg'] } : { name: 'PNG image', extensions: ['png'] }],
+  };
+  const r = win ? await dialog.showSaveDialog(win, opts) : await dialog.showSaveDialog(opts);
+  if (r.canceled || !r.filePath) return null;
+  await writeFile(r.filePath, bytes);
+  return r.filePath;
+}
+
 const emit: Emit = (event, data) => {
   if (win && !win.isDestroyed()) win.webContents.send(`${SCHEME}:event:${event}`, data);
 };
@@ -168,7 +181,7 @@ async function boot(): Promise<void> {
     console.error('rakeline: could not import the demo session:', e);
   }
   handlers = createHandlers({
-    store, mode: 'electron', emit, demoSessionId, actor, pickFolder, printPdf,
+    store, mode: 'electron', emit, demoSessionId, actor, pickFolder, printPdf, saveFile,
     onChange: () => void refreshMenu(),
   });
 

@@ -13,6 +13,7 @@ export const RESULT_CSV_COLUMNS = [
   'cl_pressure', 'cl_momentum', 'cl_wall', 'cd_wake', 'cd_pressure', 'cm_c4',
   'gamma_pressure_m2_s', 'gamma_momentum_m2_s', 'gamma_wall_m2_s',
   'cl_pressure_lo95', 'cl_pressure_hi95', 'cd_wake_lo95', 'cd_wake_hi95',
+  'correction_method', 'eps', 'eps_classical', 'eps_wall_signature', 'eps_maskell', 'wall_fit_residual_cp',
   'baro_Pa', 'temperature_C', 'humidity_pct', 'flag_codes', 'flags', 'review', 'source_file',
 ] as const;
 
@@ -27,6 +28,12 @@ export function csvText(s: string): string {
   let t = s;
   if (/^[=+\-@\t\r]/.test(t)) t = `'${t}`;
   return /[",\r\n]/.test(t) ? `"${t.replace(/"/g, '""')}"` : t;
+}
+
+/** ε of one wall-correction method of a result (undefined when not applied or not stored). */
+function epsOf(f: RunResult | undefined, method: string): number | undefined {
+  const m = f?.corrections?.methods.find((x) => x.method === method);
+  return m?.available ? m.eps : undefined;
 }
 
 /** One row per run (zero runs included, their coefficient cells empty). `results` (optional, the
@@ -48,6 +55,11 @@ export function exportResultsCsv(runs: RunRow[], setup: Setup, results?: RunResu
       num(r?.cl), num(r?.clMom), num(r?.clWall), num(r?.cd), num(r?.cdp), num(r?.cmc4),
       num(r?.gammaPressure), num(r?.gammaMomentum), num(gammaWall),
       num(f?.uncertainty.cl?.lo), num(f?.uncertainty.cl?.hi), num(f?.uncertainty.cd?.lo), num(f?.uncertainty.cd?.hi),
+      // Wall corrections (docs/WALL-CORRECTIONS.md): the method applied, its ε, and each method's ε
+      // (empty where a method could not be applied or the result predates the comparison).
+      csvText(f ? f.corrections?.applied ?? f.correction.method : ''), num(f?.correction.eps),
+      num(epsOf(f, 'barlow-rae-pope')), num(epsOf(f, 'wall-signature')), num(epsOf(f, 'maskell')),
+      num(f?.corrections?.signature?.residualCp),
       num(row.baro), num(row.temperatureC), num(row.humidity),
       csvText(flags.map((x) => x.code).join(';')),
       csvText(flags.map((x) => flagLine(x, 'reason')).join(' | ')),

@@ -22,7 +22,7 @@ import type { Store, RunRow, ImportProgress, ImportReport } from './store';
 import { folderSource, importSession, importSessionFolder, type SessionSource } from './import';
 import { reduceStoredSessionAsync, sessionSummary } from './reduceService';
 import { zeroRunsFor } from '../app/samples';
-import { daySheetHtml } from './daysheet';
+import { storedDaySheet } from './daysheetData';
 import { FLAG_CODES, flagLine } from '../app/flags';
 import { exportResultsCsv, exportResultsJson } from './export';
 
@@ -39,8 +39,11 @@ export interface HandlerContext {
   pickFolder?: (purpose?: 'import' | 'watch') => Promise<string | null>;
   /** Print HTML to a PDF file (Electron only); asks for a path when none is given; null = cancelled. */
   printPdf?: (html: string, paper: Paper, path?: string, suggestedName?: string) => Promise<string | null>;
-  /** Audit actor; default: the OS user name in Electron, 'browser' in browser mode. */
+  /** Audit actor; default: the OS user name in Electron, 'browser' in browser mode until the
+   *  page tells the reviewer's name ('reviewer.set'). */
   actor?: string;
+  /** Save bytes through a save dialog (Electron only); null = cancelled. */
+  saveFile?: (suggestedName: string, kind: 'svg' | 'png', bytes: Buffer) => Promise<string | null>;
   /** Called after anything that changes the session list or the watch state (menu refresh). */
   onChange?: (what: 'sessions' | 'watch') => void;
   /** Least time between two progress events of one task and phase, ms (default 100). */
@@ -197,7 +200,7 @@ const resultSchema = z.looseObject({
   wake: z.looseObject({ cd: num, captured: z.boolean() }).nullable(),
   walls: z.looseObject({ clMom: num, gammaWall: num, clWall: num }).nullable(),
   circulation: z.looseObject({ pressure: num, momentum: num, wall: num }),
-  correction: z.looseObject({ method: z.enum(['barlow-rae-pope', 'allen-vincenti', 'none']), sigma: num, eps: num }),
+  correction: z.looseObject({ method: z.enum(['barlow-rae-pope', 'allen-vincenti', 'maskell', 'wall-signature', 'none']), sigma: num, eps: num }),
   uncorrected: coefficientsSchema,
   corrected: coefficientsSchema,
   clMomentum: num,
@@ -399,7 +402,8 @@ export async function disposeHandlers(handlers: Handlers): Promise<void> {
 
 export function createHandlers(ctx: HandlerContext): Handlers {
   const { store, emit } = ctx;
-  const actor = ctx.actor ?? (ctx.mode === 'electron' ? osActor() : 'browser');
+  let actor = ctx.actor ?? (ctx.mode === 'electron' ? osActor() : 'browser');
+  let named = ctx.actor !== undefined || ctx.mode === 'electron';
   const interval = ctx.progressIntervalMs ?? 100;
   const changed = (what: 'sessions' | 'watch') => ctx.onChange?.(what);
   let live: LiveState | null = null;
@@ -488,7 +492,17 @@ export function createHandlers(ctx: HandlerContext): Handlers {
   const handlers: Handlers = {
     'app.info': async () => ({
       version: pkg.version, coreVersion: CORE_VERSION, mode: ctx.mode, demoSessionId: ctx.demoSessionId, dbFile: store.file,
+      reviewer: named ? actor : null,
     }),
+    'reviewer.set': async ({ name }) => {
+      actor = name.trim();
+      named = true;
+      return { reviewer: actor };
+    },
+    'file.save': async ({ suggestedName, kind, base64 }) => {
+      if (!ctx.saveFile) return { path: null, supported: false };
+      return { path: await ctx.saveFile(suggestedName, kind, Buffer.from(base64, 'base64')), supported: true };
+    },
     'sessions.list': async () => store.listSessions(),
     'sessions.get': async ({ sessionId }) => ({
       session: store.getSession(sessionId), setup: store.getSetup(sessionId), settings: store.getSettings(sessionId),
@@ -573,13 +587,13 @@ export function createHandlers(ctx: HandlerContext): Handlers {
       store.getSession(sessionId);
       return store.auditTrail(sessionId);
     },
-    'daysheet.html': async ({ sessionId, paper }) => ({ html: sheetHtml(store, sessionId, paper) }),
-    'daysheet.pdf': async ({ sessionId, paper, path: target }) => {
+    'daysheet.html': async ({ sessionId, paper, cpRuns }) => ({ html: sheetHtml(store, sessionId, paper, cpRuns) }),
+    'daysheet.pdf': async ({ sessionId, paper, cpRuns, path: target }) => {
       if (!ctx.printPdf) return { path: null, supported: false };
       if (target !== undefined && (!path.isAbsolute(target) || !/\.pdf$/i.test(target))) {
         fail('validation', `Invalid payload for "daysheet.pdf": path: must be an absolute path ending in .pdf`);
       }
-      const html = sheetHtml(store, sessionId, paper);
+      const html = sheetHtml(store, sessionId, paper, cpRuns);
       const out = await ctx.printPdf(html, paper, target, `${sessionTitleSlug(sessionId)}-day-sheet.pdf`);
       return { path: out, supported: true };
     },
@@ -627,17 +641,6 @@ export function createHandlers(ctx: HandlerContext): Handlers {
   return handlers;
 }
 
-function sheetHtml(store: Store, sessionId: number, paper: Paper): string {
-  const runs = store.listRuns(sessionId);
-  return daySheetHtml({
-    session: store.getSession(sessionId),
-    setup: store.getSetup(sessionId),
-    runs,
-    summary: sessionSummary(store, sessionId),
-    paper,
-    generatedAt: new Date().toISOString(),
-    results: store.latestResults(sessionId),
-    settings: store.getSettings(sessionId),
-    appVersion: pkg.version,
-  });
+function sheetHtml(store: Store, sessionId: number, paper: Paper, cpRuns?: number[]): string {
+  return storedDaySheet(store, sessionId, { paper, appVersion: pkg.version, ...(cpRuns ? { cpRuns } : {}) });
 }

@@ -690,6 +690,12 @@ export class Store {
     );
   }
 
+  /** (import) The source row of a file name with these bytes, if stored before. */
+  sourceWithHash(sessionId: number, name: string, sha256: string): number | undefined {
+    const r = this.db.prepare('SELECT id FROM source_files WHERE session_id = ? AND name = ? AND sha256 = ?').get(sessionId, name, sha256) as { id: number } | undefined;
+    return r?.id;
+  }
+
   /** (import) Latest source row of a file name. */
   latestSource(sessionId: number, name: string): { id: number; sha256: string; bytes: number } | undefined {
     return this.db.prepare('SELECT id, sha256, bytes FROM source_files WHERE session_id = ? AND name = ? ORDER BY id DESC LIMIT 1').get(sessionId, name) as
@@ -930,8 +936,13 @@ export class ImportWriter {
           return;
         }
         if (prev && fresh.length === 0) this.report.unchangedFiles.push(f.name); // same samples, other bytes (e.g. line endings)
-        sourceId = store.addSource(sid, f, 'runs', this.at);
-        this.newSources++;
+        // Bytes stored once before under this name (A → B → A again): that source row serves.
+        const earlier = store.sourceWithHash(sid, f.name, f.sha256);
+        if (earlier !== undefined) sourceId = earlier;
+        else {
+          sourceId = store.addSource(sid, f, 'runs', this.at);
+          this.newSources++;
+        }
       }
       take = fresh;
     }

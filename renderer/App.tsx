@@ -13,9 +13,11 @@ import { Polars } from './screens/Polars';
 import { Intake } from './screens/Intake';
 import { SessionSettings } from './screens/SessionSettings';
 import { DaySheet } from './screens/DaySheet';
+import { SideBySide } from './screens/SideBySide';
+import { ReviewerPrompt } from './components/ReviewerPrompt';
 import { ErrorBoundary } from './components/ErrorBoundary';
 
-export type Screen = 'daylog' | 'inspector' | 'polars' | 'settings' | 'sheet' | 'intake';
+export type Screen = 'daylog' | 'inspector' | 'polars' | 'compare' | 'settings' | 'sheet' | 'intake';
 
 export const SCREENS: { id: Screen; title: string; needsSession: boolean }[] = [
   { id: 'daylog', title: 'Day log', needsSession: true },
@@ -23,6 +25,7 @@ export const SCREENS: { id: Screen; title: string; needsSession: boolean }[] = [
   { id: 'polars', title: 'Polars', needsSession: true },
   { id: 'settings', title: 'Session settings', needsSession: true },
   { id: 'sheet', title: 'Day sheet', needsSession: true },
+  { id: 'compare', title: 'Side by side', needsSession: false },
   { id: 'intake', title: 'Intake', needsSession: false },
 ];
 
@@ -179,7 +182,9 @@ function Shell() {
             </div>
           ) : null}
           <ErrorBoundary resetKey={`${screen}:${sessionId}:${run}`}>
-          {screen === 'intake' ? (
+          {screen === 'compare' ? (
+            <SideBySide sessions={sessions} currentSessionId={sessionId} />
+          ) : screen === 'intake' ? (
             <Intake
               mode={info?.mode ?? 'browser'}
               live={live}
@@ -202,6 +207,9 @@ function Shell() {
         </main>
       </div>
 
+      {info && info.mode === 'browser' && info.reviewer === null ? (
+        <ReviewerPrompt onNamed={(reviewer) => setInfo((i) => (i ? { ...i, reviewer } : i))} />
+      ) : null}
       <footer className="app-foot">
         <p className="caution"><span aria-hidden="true">⚠</span> {CAUTION}</p>
         <p className="foot-meta">{info ? `Rakeline ${info.version} · core ${info.coreVersion} · ${info.mode === 'electron' ? 'desktop' : 'browser mode'} · ${info.dbFile}` : 'connecting…'}</p>

@@ -14,7 +14,7 @@ export interface PlotConfig { data: ChartData<'scatter', Pts>; options: ChartOpt
 
 const FONT = { family: 'system-ui, "Segoe UI", Roboto, sans-serif', size: 12 };
 
-function base(xTitle: string, yTitle: string, opts: { reverseY?: boolean; xMin?: number; xMax?: number } = {}): ChartOptions<'scatter'> {
+export function base(xTitle: string, yTitle: string, opts: { reverseY?: boolean; xMin?: number; xMax?: number } = {}): ChartOptions<'scatter'> {
   return {
     animation: false,
     responsive: true,
@@ -44,7 +44,7 @@ function base(xTitle: string, yTitle: string, opts: { reverseY?: boolean; xMin?:
   };
 }
 
-function points(
+export function points(
   label: string, data: Pts, color: string, style: PointStyle, extra: Record<string, unknown> = {},
 ): ChartData<'scatter', Pts>['datasets'][number] {
   return {
@@ -201,6 +201,17 @@ export function wakeChartConfig(result: RunResult): PlotConfig | null {
 }
 
 /** Floor and ceiling Cp signatures against x (m from the quarter chord). */
+function signatureFit(result: RunResult): ChartData<'scatter', Pts>['datasets'] {
+  const f = result.corrections?.signature?.fitted;
+  if (!f) return [];
+  const line = { showLine: true, borderWidth: 1.5, pointRadius: 0, pointHoverRadius: 0, borderDash: [2, 2] };
+  const xy = (a: { x: number; cp: number }[]) => a.map((p) => ({ x: p.x, y: p.cp }));
+  return [
+    points('wall-signature fit, floor', xy(f.floor), SERIES.floor.color, SERIES.floor.marker, line),
+    points('wall-signature fit, ceiling', xy(f.ceiling), SERIES.ceiling.color, SERIES.ceiling.marker, line),
+  ];
+}
+
 export function wallChartConfig(result: RunResult): PlotConfig | null {
   const w = result.walls;
   if (!w) return null;
@@ -211,6 +222,9 @@ export function wallChartConfig(result: RunResult): PlotConfig | null {
       datasets: [
         points(SERIES.floor.label, pts(w.floor), SERIES.floor.color, SERIES.floor.marker, { showLine: true, borderWidth: 1 }),
         points(SERIES.ceiling.label, pts(w.ceiling), SERIES.ceiling.color, SERIES.ceiling.marker, { showLine: true, borderWidth: 1, borderDash: [5, 3] }),
+        // The wall-signature fit (vortex, source, doublet between the walls; docs/WALL-CORRECTIONS.md)
+        // as thin lines without markers, so the residual is seen against the taps.
+        ...signatureFit(result),
       ],
     },
     options,
@@ -219,6 +233,9 @@ export function wallChartConfig(result: RunResult): PlotConfig | null {
 
 // ---------------------------------------------------------------------------------------------
 // Polars
+
+export { sweepDirections, type Sweep } from '../app/sweeps';
+import { sweepDirections, type Sweep } from '../app/sweeps';
 
 /** 95 % error bars as one line dataset: a segment per point, gaps between them. `seg` gives the two
  *  ends of a point's bar, or null for none. */
@@ -233,21 +250,6 @@ export function errorBars(label: string, pts: readonly PolarPoint[], color: stri
 }
 
 const BARS = '95 % interval (error bars, corrected)';
-
-export type Sweep = 'up' | 'down';
-
-/** Sweep direction of each point (time order): the sign of the α step from the previous point;
- *  a repeat at the same α keeps the previous direction; the first point takes the next step's. */
-export function sweepDirections(pts: readonly PolarPoint[]): Sweep[] {
-  const dirs: (Sweep | null)[] = pts.map((p, i) => {
-    if (i === 0) return null;
-    const d = p.alphaDeg - pts[i - 1].alphaDeg;
-    return Math.abs(d) < 1e-9 ? null : d > 0 ? 'up' : 'down';
-  });
-  const firstKnown = dirs.find((d) => d !== null) ?? 'up';
-  let prev: Sweep = firstKnown;
-  return dirs.map((d) => (prev = d ?? prev));
-}
 
 /** Series of one sweep direction in time order, broken (a NaN gap) where the other sweep runs. */
 function sweepSeries(pts: readonly PolarPoint[], dirs: Sweep[], want: Sweep, xy: (p: PolarPoint) => XY | null): Pts {

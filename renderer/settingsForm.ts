@@ -13,7 +13,7 @@ export interface NumField {
   unit: string;
   integer?: boolean;
   help: string;
-  group: 'checks' | 'samples' | 'uncertainty';
+  group: 'checks' | 'samples' | 'uncertainty' | 'walls';
 }
 
 export const NUM_FIELDS: NumField[] = [
@@ -27,14 +27,22 @@ export const NUM_FIELDS: NumField[] = [
   { key: 'tapOutlierCp', label: 'Tap outlier limit', scale: 1, unit: 'ΔCp', help: 'A tap departing from a fit of its neighbours by more than this is bad.', group: 'checks' },
   { key: 'machLimit', label: 'Mach limit', scale: 1, unit: 'M', help: 'Flag runs faster than this as compressible.', group: 'checks' },
   { key: 'spanSpreadTol', label: 'Spanwise spread limit', scale: 1, unit: 'in cl', help: 'Spread of row cl across the span that flags poor two-dimensionality.', group: 'checks' },
+  { key: 'wallFitResidualCp', label: 'Wall-signature residual limit', scale: 1, unit: 'rms Cp', help: 'Automatic choice uses the wall signature only when its fit leaves at most this rms residual.', group: 'walls' },
+  { key: 'stallTeCp', label: 'Past-stall trailing-edge Cp', scale: 1, unit: 'Cp', help: 'Where the walls cannot say, a run whose rearmost upper tap (aft of 0.85c) reads at or below this gets Maskell’s blockage.', group: 'walls' },
+  { key: 'maskellTheta', label: 'Maskell blockage factor θ', scale: 1, unit: '', help: 'Δq/q = θ·cd·c/h; 0.96 after Maskell (R&M 3400), 1.03 fitted better in one published comparison.', group: 'walls' },
+  { key: 'correctionTolEps', label: 'Correction disagreement, ε', scale: 1, unit: 'in ε', help: 'Flag when the applied and the classical corrections differ in ε by more than this…', group: 'walls' },
+  { key: 'correctionTolAlphaDeg', label: 'Correction disagreement, Δα', scale: 1, unit: '°', help: '…or in Δα by more than this.', group: 'walls' },
   { key: 'spikeK', label: 'Spike threshold', scale: 1, unit: '× robust σ', help: 'Samples beyond median ± k·MAD-σ are dropped before averaging.', group: 'samples' },
   { key: 'mcDraws', label: 'Monte Carlo draws', scale: 1, unit: 'draws', integer: true, help: '0 skips the 95 % intervals.', group: 'uncertainty' },
   { key: 'mcSeed', label: 'Monte Carlo seed', scale: 1, unit: '', integer: true, help: 'Same seed, same intervals.', group: 'uncertainty' },
 ];
 
 export const CORRECTIONS: { value: CorrectionMethod; label: string }[] = [
-  { value: 'barlow-rae-pope', label: 'Solid + wake blockage (c/2h)·cd and streamline curvature (Barlow, Rae & Pope)' },
-  { value: 'allen-vincenti', label: 'As Barlow, Rae & Pope but Thom’s wake blockage (c/4h)·cd (Allen & Vincenti, NACA Report 782)' },
+  { value: 'auto', label: 'Automatic per run: wall signature where the walls can say, else Maskell past stall, else classical' },
+  { value: 'wall-signature', label: 'Wall signature: vortex, source and doublet fitted to the floor and ceiling Cp (falls back if the walls cannot say)' },
+  { value: 'maskell', label: 'Maskell’s separated-flow blockage θ·cd·c/h, classical solid blockage and curvature (ARC R&M 3400)' },
+  { value: 'barlow-rae-pope', label: 'Classical: solid + wake blockage (c/4h)·cd and streamline curvature (Barlow, Rae & Pope)' },
+  { value: 'allen-vincenti', label: 'Classical, Allen & Vincenti (NACA Report 782): same numbers here (Λσ not implemented)' },
   { value: 'none', label: 'None (uncorrected)' },
 ];
 

@@ -48,6 +48,13 @@ const bad: Record<Channel, [unknown, string][]> = {
   'daysheet.html': [[{ ...good, paper: 'A3' }, 'paper']],
   'daysheet.pdf': [[{ ...good, paper: 'A4', path: 17 }, 'path'], [good, 'paper']],
   'export.results': [[{ ...good, format: 'xlsx' }, 'format']],
+  'file.save': [
+    [{ suggestedName: '../../etc/x.svg', kind: 'svg', base64: '' }, 'suggestedName'],
+    [{ suggestedName: 'lift.exe', kind: 'svg', base64: '' }, 'suggestedName'],
+    [{ suggestedName: 'lift.png', kind: 'gif', base64: '' }, 'kind'],
+    [{ suggestedName: 'lift.png', kind: 'png', base64: 'not base64!' }, 'base64'],
+  ],
+  'reviewer.set': [[{ name: '   ' }, 'name'], [{}, 'name']],
   'watch.start': [[{ folder: '' }, 'folder'], [{}, 'folder']],
   'watch.stop': [[{ now: true }, 'now']],
   'watch.status': [[{ verbose: 1 }, 'verbose']],

@@ -13,17 +13,19 @@ import type { Coefficients } from '../app/types';
 //   V_model = A c² b = 0.0817 × 0.0625 × 0.60 = 0.00306375 m³
 //   C = h × width = 0.90 × 0.60 = 0.54 m²;  √0.54 = 0.7348469;  C^1.5 = 0.54 × 0.7348469 = 0.3968173
 //   ε_sb = 0.74 × 0.00306375 / 0.3968173 = 0.002267175 / 0.3968173 = 0.005713397
-//   ε_wb = (c/2h) cd_u = 0.1388889 × 0.0100 = 0.001388889
-//   ε = 0.005713397 + 0.001388889 = 0.007102286;  2ε = 0.01420457
+//   ε_wb = (c/4h) cd_u = 0.06944444 × 0.0100 = 0.0006944444  (core 0.3.0: the source between walls,
+//      docs/WALL-CORRECTIONS.md and test/wall-signature.test.ts; the (c/2h) of REDUCTION.md §8 was
+//      from memory and is twice the source-image value)
+//   ε = 0.005713397 + 0.0006944444 = 0.006407841;  2ε = 0.01281568
 //   α: 57.3σ/(2π) with 57.3 → 180/π is (180/π)(π²/48)(c/h)²/(2π) = (15/8)(c/h)² = 1.875 × 0.07716049
 //      = 0.1446759;  cl_u + 4cm_u = 0.80 − 0.36 = 0.44;  Δα = 0.1446759 × 0.44 = 0.06365741°
 //      α = 4.00 + 0.06365741 = 4.063657°
-//   cl = 0.80 × (1 − 0.01586549 − 0.01420457) = 0.80 × 0.9699299 = 0.7759440
-//   cm = −0.090 × (1 − 0.01420457) + 0.01586549 × 0.7759440/4
-//      = −0.08872159 + 0.003077683 = −0.08564391
-//   drag factor 1 − 3ε_sb − 2ε_wb = 1 − 0.01714019 − 0.002777778 = 0.9800820
-//   cd = 0.0100 × 0.9800820 = 0.009800820;  cd_p = 0.0060 × 0.9800820 = 0.005880492
-//   q = 600 × 1.014205 = 608.5227 Pa;  V = 31.60 × 1.007102 = 31.82443 m/s;  Re = 5.30e5 × 1.007102 = 533764
+//   cl = 0.80 × (1 − 0.01586549 − 0.01281568) = 0.80 × 0.9713188 = 0.7770551
+//   cm = −0.090 × (1 − 0.01281568) + 0.01586549 × 0.7770551/4
+//      = −0.08884659 + 0.003082090 = −0.08576450
+//   drag factor 1 − 3ε_sb − 2ε_wb = 1 − 0.01714019 − 0.001388889 = 0.9814709
+//   cd = 0.0100 × 0.9814709 = 0.009814709;  cd_p = 0.0060 × 0.9814709 = 0.005888825
+//   q = 600 × 1.012816 = 607.6894 Pa;  V = 31.60 × 1.006408 = 31.80249 m/s;  Re = 5.30e5 × 1.006408 = 533396
 const uncorrected: Coefficients = {
   cl: 0.8,
   cd: 0.01,
@@ -42,20 +44,20 @@ describe('wallCorrections: worked example (Barlow, Rae & Pope ch. 9, by hand abo
     expect(c.method).toBe('barlow-rae-pope');
     expect(c.sigma).toBeCloseTo(0.01586549, 7);
     expect(c.epsSb).toBeCloseTo(0.005713397, 8);
-    expect(c.epsWb).toBeCloseTo(0.001388889, 9);
-    expect(c.eps).toBeCloseTo(0.007102286, 8);
+    expect(c.epsWb).toBeCloseTo(0.0006944444, 9);
+    expect(c.eps).toBeCloseTo(0.006407841, 8);
   });
 
   it('applyCorrections gives the hand-computed corrected coefficients', () => {
     const k = applyCorrections(uncorrected, c, uncorrected.cmc4);
     expect(k.alphaDeg).toBeCloseTo(4.063657, 5);
-    expect(k.cl).toBeCloseTo(0.775944, 6);
-    expect(k.cmc4).toBeCloseTo(-0.08564391, 7);
-    expect(k.cd).toBeCloseTo(0.00980082, 8);
-    expect(k.cdp).toBeCloseTo(0.005880492, 8);
-    expect(k.q).toBeCloseTo(608.5227, 3);
-    expect(k.V).toBeCloseTo(31.82443, 4);
-    expect(Math.abs(k.Re - 533764)).toBeLessThan(1);
+    expect(k.cl).toBeCloseTo(0.7770551, 6);
+    expect(k.cmc4).toBeCloseTo(-0.0857645, 7);
+    expect(k.cd).toBeCloseTo(0.009814709, 8);
+    expect(k.cdp).toBeCloseTo(0.005888825, 8);
+    expect(k.q).toBeCloseTo(607.6894, 3);
+    expect(k.V).toBeCloseTo(31.80249, 4);
+    expect(Math.abs(k.Re - 533396)).toBeLessThan(1);
   });
 
   it('cm_c/4 used for α is the argument, not u.cmc4', () => {
@@ -67,7 +69,7 @@ describe('wallCorrections: worked example (Barlow, Rae & Pope ch. 9, by hand abo
   it('a wake drag of NaN stays NaN', () => {
     const k = applyCorrections({ ...uncorrected, cd: Number.NaN }, c, uncorrected.cmc4);
     expect(Number.isNaN(k.cd)).toBe(true);
-    expect(k.cl).toBeCloseTo(0.775944, 6);
+    expect(k.cl).toBeCloseTo(0.7770551, 6);
   });
 });
 
@@ -78,13 +80,13 @@ describe("'none' and 'allen-vincenti'", () => {
     expect(applyCorrections(uncorrected, c, uncorrected.cmc4)).toEqual(uncorrected);
   });
 
-  it("'allen-vincenti': the same σ and ε_sb as Barlow (Λσ not implemented), Thom's wake blockage (c/4h)·cd_u", () => {
+  it("'allen-vincenti': the same σ and ε_sb as Barlow (Λσ not implemented) and the same wake blockage (c/4h)·cd_u", () => {
     // Allen & Vincenti, NACA R-782 (memory): ε_wb = (c/4h)·cd_u = 0.06944444 × 0.0100 = 0.0006944444
     // for the example above; ε = 0.005713397 + 0.0006944444 = 0.006407841.
     const a = wallCorrections({ ...geometry, method: 'allen-vincenti' });
     const b = wallCorrections({ ...geometry, method: 'barlow-rae-pope' });
     expect(a.method).toBe('allen-vincenti');
-    expect([a.sigma, a.epsSb]).toEqual([b.sigma, b.epsSb]);
+    expect([a.sigma, a.epsSb, a.epsWb]).toEqual([b.sigma, b.epsSb, b.epsWb]);
     expect(a.epsWb).toBeCloseTo(0.0006944444, 9);
     expect(a.eps).toBeCloseTo(0.006407841, 8);
   });
@@ -118,5 +120,36 @@ describe('sectionArea', () => {
       y.push(0.06 * Math.sin(th));
     }
     expect(sectionArea({ kind: 'coordinates', x, y })).toBeCloseTo(Math.PI * 0.5 * 0.06, 4);
+  });
+});
+
+describe("Maskell's separated-flow blockage (E. C. Maskell, ARC R&M 3400, 1965 — from memory, as the issue quotes it)", () => {
+  // Δq/q = θ·c_D·S/C; in 2-D S/C = (c·b)/(h·b) = c/h. Worked by hand for the geometry above with a
+  // stalled section: cd_u = 0.1200, θ = 0.96 (the default, app/corrections.ts):
+  //   Δq/q = 0.96 × 0.1200 × 0.2777778 = 0.03200000;  ε_wb = Δq/2q = 0.01600000
+  //   ε_sb = 0.005713397 (classical, as above);  ε = 0.02171340;  2ε = 0.04342679
+  //   cl_u = 1.10: cl = 1.10 × (1 − 0.01586549 − 0.04342679) = 1.10 × 0.9407077 = 1.034778
+  //   q = 600 × 1.043427 = 626.0561 Pa
+  //   drag factor 1 − 3 × 0.005713397 − 2 × 0.016 = 1 − 0.01714019 − 0.032 = 0.9508598
+  //   cd = 0.1200 × 0.9508598 = 0.1141032
+  // With θ = 1.03 (the value the TU Delft comparison found to fit better): ε_wb = ½ × 1.03 × 0.12 ×
+  // 0.2777778 = 0.01716667.
+  const stalled = { ...geometry, cdU: 0.12 };
+  it('θ = 0.96: ε_wb, ε and the corrected coefficients by hand', () => {
+    const m = wallCorrections({ ...stalled, method: 'maskell' });
+    expect(m.method).toBe('maskell');
+    expect(m.epsWb).toBeCloseTo(0.016, 9);
+    expect(m.eps).toBeCloseTo(0.0217134, 7);
+    const k = applyCorrections({ ...uncorrected, cl: 1.1, cd: 0.12 }, m, uncorrected.cmc4);
+    expect(k.cl).toBeCloseTo(1.034778, 6);
+    expect(k.q).toBeCloseTo(626.0561, 3);
+    expect(k.cd).toBeCloseTo(0.1141032, 7);
+  });
+  it('θ = 1.03 by setting; twice the classical wake blockage for the same drag when θ = 1', () => {
+    expect(wallCorrections({ ...stalled, method: 'maskell', maskellTheta: 1.03 }).epsWb).toBeCloseTo(0.01716667, 8);
+    const one = wallCorrections({ ...stalled, method: 'maskell', maskellTheta: 1 }).epsWb;
+    const classical = wallCorrections({ ...stalled, method: 'barlow-rae-pope' }).epsWb;
+    expect(one / classical).toBeCloseTo(2, 12);
+    expect(() => wallCorrections({ ...stalled, method: 'maskell', maskellTheta: 0 })).toThrow(/θ/);
   });
 });

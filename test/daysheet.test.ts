@@ -2,7 +2,7 @@
 // Parsed with happy-dom so the checks look at the document structure, not at substrings only.
 import { describe, expect, it } from 'vitest';
 import { Window } from 'happy-dom';
-import { daySheetHtml, fmt, runRanges } from '../main/daysheet';
+import { daySheetHtml, dragAxis, fmt, localTime, personName, runRanges, runsWord, settingsDifferences } from '../main/daysheet';
 import { escapeHtml, niceStep, niceTicks, svgPlot } from '../main/svgplot';
 import { fixtureRuns, fixtureSession, fixtureSetup, fixtureSummary, LIFT_FLAG, UNSTEADY_FLAG } from './helpers/sheetFixture';
 
@@ -10,7 +10,7 @@ function sheet(over: { title?: string; operators?: string[]; paper?: 'A4' | 'Let
   const setup = fixtureSetup({ ...(over.operators ? { operators: over.operators } : {}), ...(over.notes ? { notes: over.notes } : {}) });
   const html = daySheetHtml({
     session: fixtureSession(over.title), setup, runs, summary: fixtureSummary(runs), paper: over.paper ?? 'A4',
-    generatedAt: '2026-11-18T18:00:00Z',
+    generatedAt: '2026-11-18T18:00:00Z', timeZone: 'UTC',
   });
   const win = new Window();
   win.document.write(html);
@@ -47,7 +47,7 @@ describe('day sheet', () => {
   it('run table has one row per run with both lift methods, both drags, cm, Γ and flags in words', () => {
     const { doc } = sheet();
     const table = doc.querySelector('table.runs')!;
-    const heads = [...table.querySelectorAll('thead th')].map((th) => th.textContent);
+    const heads = [...table.querySelectorAll('thead th')].map((th) => th.textContent!.replace(/\u00ad/g, ''));
     expect(heads.join('|')).toMatch(/cl\s*pressure.*cl\s*momentum.*cd\s*wake.*cd\s*pressure.*cm\s*c\/4.*Γ\s*pressure.*Γ\s*momentum/);
     const rows = [...table.querySelectorAll('tbody tr')];
     expect(rows.length).toBe(4);
@@ -58,7 +58,7 @@ describe('day sheet', () => {
     expect(r4).toContain('0.01633');
     expect(r4).toContain('\u22120.0744'); // typographic minus
     expect(r4).toContain('hold: lift mismatch');
-    expect(r4).toContain('rejected (T. Lindqvist)');
+    expect(r4).toContain('rejected by T. Lindqvist');
     expect(byRun(3).textContent).toContain('check: unsteady q');
     expect(byRun(2).textContent).toContain('no flags');
     expect(byRun(1).textContent).toContain('wind-off zero');
@@ -92,14 +92,17 @@ describe('day sheet', () => {
     }
   });
 
-  it('draws three polars as inline SVG; flagged points are marked by shape, with legend entries', () => {
+  it('draws four polars as inline SVG; flagged points are marked by shape, with legend entries', () => {
     const { doc } = sheet();
     const svgs = [...doc.querySelectorAll('.plots svg')];
-    expect(svgs.map((s) => s.querySelector('title')!.textContent)).toEqual(['Lift curve cl(α)', 'Drag polar cd(cl)', 'Pitching moment cm(α)']);
+    expect(svgs.map((s) => s.querySelector('title')!.textContent)).toEqual(['Lift curve cl(α)', 'Drag polar cd(cl)', 'Pitching moment cm(α)', 'Wake drag cd(α)']);
     const lift = svgs[0];
-    // 3 data runs → 3 filled circles (pressure) and 3 open squares (momentum) in the series groups
+    // 3 data runs, all on the up-sweep → 3 filled circles (pressure) and 3 filled, larger squares
+    // (momentum, drawn first so the circles stay on top)
     expect(lift.querySelectorAll('g.series-circle circle').length).toBe(3);
-    expect(lift.querySelectorAll('g.series-square rect[fill="white"]').length).toBe(3);
+    expect(lift.querySelectorAll('g.series-square rect:not([fill="white"])').length).toBe(3);
+    const order = [...lift.querySelectorAll('g[class^="series-"]')].map((g) => g.getAttribute('class'));
+    expect(order).toEqual(['series-square', 'series-circle']);
     // run 4 has a hold flag: a × on each of the two series, labelled once
     expect(lift.querySelectorAll('g.flag-reject path').length).toBe(2);
     expect([...lift.querySelectorAll('g.flag-reject text')].map((t) => t.textContent)).toEqual(['r4']);
@@ -109,7 +112,7 @@ describe('day sheet', () => {
     expect(legend).toContain('cl from surface pressures');
     expect(legend).toContain('cl from wall momentum');
     expect(legend).toContain('hold flag');
-    expect(legend).toContain('check flags only');
+    expect(legend).toContain('check flag of its own');
   });
 
   it('lists a flag raised identically on several runs once, with its runs', () => {

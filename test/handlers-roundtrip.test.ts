@@ -206,6 +206,35 @@ describe('handlers on a real store', () => {
     expect(info.mode).toBe('browser');
     expect(info.dbFile).toBe(h.store.file);
     expect(await h.call('dialog.pickFolder', { purpose: 'import' })).toEqual({ folder: null, supported: false });
+    expect(await h.call('file.save', { suggestedName: 'lift.svg', kind: 'svg', base64: 'PHN2Zy8+' })).toEqual({ path: null, supported: false });
+  });
+
+  it('browser mode records reviews under the name the page gives, not "browser"', async () => {
+    const h2 = open('reviewer');
+    expect((await h2.call('app.info', {})).reviewer).toBeNull();
+    const { report } = await h2.call('sessions.importFolder', { folder });
+    const run = mini.index.find((i) => i.kind === 'data')!.run;
+    expect((await h2.call('reviewer.set', { name: '  T. Lindqvist ' })).reviewer).toBe('T. Lindqvist');
+    expect((await h2.call('app.info', {})).reviewer).toBe('T. Lindqvist');
+    await h2.call('runs.review', { sessionId: report.sessionId, run, verdict: 'rejected', comment: 'tufts' });
+    expect((await h2.call('runs.get', { sessionId: report.sessionId, run })).row.review!.actor).toBe('T. Lindqvist');
+    const trail = await h2.call('audit.list', { sessionId: report.sessionId });
+    expect(trail.at(-1)).toMatchObject({ actor: 'T. Lindqvist', action: 'review.rejected' });
+    expect(trail[0].actor).toBe('browser'); // the import came before the name was given
+    await disposeHandlers(h2.handlers);
+    h2.store.close();
+  });
+
+  it('the desktop app saves an exported plot through its save dialog', async () => {
+    const saved: { name: string; kind: string; bytes: Buffer }[] = [];
+    const h3 = open('save', { mode: 'electron', saveFile: async (name, kind, bytes) => { saved.push({ name, kind, bytes }); return `/home/mo/${name}`; } });
+    const png = Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]);
+    expect(await h3.call('file.save', { suggestedName: 'drag-polar.png', kind: 'png', base64: png.toString('base64') }))
+      .toEqual({ path: '/home/mo/drag-polar.png', supported: true });
+    expect(saved[0].name).toBe('drag-polar.png');
+    expect(saved[0].bytes.equals(png)).toBe(true);
+    await disposeHandlers(h3.handlers);
+    h3.store.close();
   });
 
   it('maps an unknown session to not-found and a missing folder to input', async () => {

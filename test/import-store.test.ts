@@ -162,6 +162,27 @@ describe('re-import', () => {
     store.close();
   });
 
+  it('a run file back to bytes stored before (LF → CRLF → LF) re-imports cleanly', async () => {
+    // Found by test/import-fuzz.test.ts (seed 692876779): the third import tried to store the first
+    // bytes' source row a second time and failed on the UNIQUE (session, name, sha256) key.
+    const dir = tempDir();
+    const f = miniFolder(join(dir, 's'));
+    const store = freshStore(dir);
+    await importSessionFolder(store, f.dir);
+    const path = join(f.dir, 'runs/run-0002.csv');
+    const lf = readFileSync(path, 'utf8');
+    editFile(path, (t) => t.replace(/\n/g, '\r\n'));
+    await importSessionFolder(store, f.dir);
+    editFile(path, () => lf);
+    const before = dbSnapshot(store);
+    const rep = await importSessionFolder(store, f.dir);
+    expect(rep.changedFiles).toEqual([]);
+    expect(rep.importedRuns).toEqual([]);
+    expect(rep.unchangedFiles).toContain('runs/run-0002.csv');
+    expect(dbSnapshot(store)).toBe(before);
+    store.close();
+  });
+
   it('live acquisition: an index that only grew imports the new runs', async () => {
     const dir = tempDir();
     const f = miniFolder(join(dir, 's'), { runs: { dataRuns: 2 } });

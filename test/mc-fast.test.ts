@@ -125,6 +125,16 @@ describe('Monte Carlo plan = runCore, draw by draw', () => {
     expect(plan).toBe(total);
   });
 
+  it('demo day, every wall-correction method: the plan corrects as runCore does', () => {
+    // auto (the default) applies the wall signature on the demo day; Maskell and classical by setting.
+    for (const correction of ['auto', 'maskell', 'barlow-rae-pope', 'none'] as const) {
+      const c = { ...demo, settings: { ...demo.settings, correction } };
+      for (const [i, run] of someRuns(c, 3).entries()) {
+        expect(compareDraws(c, run, 30, 1, 700 + i).plan, correction).toBe(30);
+      }
+    }
+  });
+
   it('demo day with flow-angle probes (rake-plane control volume)', () => {
     const m = uncertaintyModel(demoAngle.setup, demoAngle.runs[0], demoAngle.settings);
     // The angle term is present: cl_mom changes when the angle readings change.

@@ -36,7 +36,12 @@ export const settingsSchema = z
     spanSpreadTol: z.number().min(0).max(2),
     mcDraws: z.number().int().min(0).max(20000),
     mcSeed: z.number().int(),
-    correction: z.enum(['barlow-rae-pope', 'allen-vincenti', 'none']),
+    correction: z.enum(['auto', 'wall-signature', 'maskell', 'barlow-rae-pope', 'allen-vincenti', 'none']),
+    maskellTheta: z.number().min(0.5).max(2),
+    wallFitResidualCp: z.number().min(0).max(1),
+    stallTeCp: z.number().min(-5).max(1),
+    correctionTolEps: z.number().min(0).max(1),
+    correctionTolAlphaDeg: z.number().min(0).max(10),
     badTaps: z.array(id()).max(10000),
   })
   .strict();

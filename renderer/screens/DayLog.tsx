@@ -19,7 +19,7 @@ export interface DayLogProps {
   live: { watching: boolean; folder: string | null; lastRun: number | null };
 }
 
-export function download(text: string, name: string, mime: string): void {
+export function download(text: string | Blob, name: string, mime: string): void {
   const url = URL.createObjectURL(new Blob([text], { type: mime }));
   const a = document.createElement('a');
   a.href = url;

@@ -13,6 +13,7 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
   const pts = summary?.polar ?? [];
   const stats = summary?.stats ?? null;
   const held = useMemo(() => new Set(data.runs.filter((r) => r.result?.flags.some((f) => f.severity === 'reject')).map((r) => r.run)), [data.runs]);
+  const flagsOf = useMemo(() => new Map(data.runs.map((r) => [r.run, r.result?.flags ?? []])), [data.runs]);
   const cla = useMemo(() => clAlphaConfig(pts, stats, held), [pts, stats, held]);
   const drag = useMemo(() => dragPolarConfig(pts, held), [pts, held]);
   const cm = useMemo(() => cmAlphaConfig(pts, held), [pts, held]);
@@ -86,7 +87,7 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
         <h3>Points</h3>
         <div className="table-scroll short">
           <table className="runs compact">
-            <thead><tr><th scope="col">run</th><th scope="col">sweep</th><th scope="col" className="num">α<sub>c</sub> [°]</th><th scope="col" className="num">c<sub>l</sub> p</th><th scope="col" className="num">c<sub>l</sub> mom</th><th scope="col" className="num">c<sub>d</sub> wake</th><th scope="col" className="num">c<sub>d</sub> p</th><th scope="col" className="num">c<sub>m c/4</sub></th><th scope="col">flag</th></tr></thead>
+            <thead><tr><th scope="col">run</th><th scope="col">sweep</th><th scope="col" className="num">α<sub>c</sub> [°]</th><th scope="col" className="num">c<sub>l</sub> p</th><th scope="col" className="num">c<sub>l</sub> mom</th><th scope="col" className="num">c<sub>d</sub> wake</th><th scope="col" className="num">c<sub>d</sub> p</th><th scope="col" className="num">c<sub>m c/4</sub></th><th scope="col">flags and reasons</th></tr></thead>
             <tbody>
               {pts.map((p, i) => (
                 <tr key={p.run} className={held.has(p.run) ? 'row-reject' : p.flagged ? 'row-warn' : undefined}>
@@ -94,7 +95,9 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
                   <td>{dirs[i] === 'up' ? '↗ up' : '↘ down'}</td>
                   <td className="num">{fix(p.alphaDeg, 2)}</td><td className="num">{fix(p.cl, 4)}</td><td className="num">{fix(p.clMom, 4)}</td>
                   <td className="num">{fix(p.cd, 5)}</td><td className="num">{fix(p.cdp, 5)}</td><td className="num">{fix(p.cmc4, 4)}</td>
-                  <td>{held.has(p.run) ? `${SEVERITY.reject.glyph} ${SEVERITY.reject.word}` : p.flagged ? `${SEVERITY.warn.glyph} ${SEVERITY.warn.word}` : ''}</td>
+                  <td className="flag-reasons">{(flagsOf.get(p.run) ?? []).map((f, k) => (
+                    <div key={k}><b>{SEVERITY[f.severity].glyph} {SEVERITY[f.severity].word}:</b> {f.reason}</div>
+                  ))}</td>
                 </tr>
               ))}
             </tbody>

@@ -17,6 +17,7 @@ import { Plot } from '../components/Plot';
 import { FlagReasons } from '../components/FlagBadge';
 import { ReviewPanel } from '../components/ReviewPanel';
 import { BudgetTable } from '../components/BudgetTable';
+import { CorrectionCompare } from '../components/CorrectionCompare';
 import { fix, isNum, reMillions, sig, when } from '../format';
 
 export interface TapChange {
@@ -223,10 +224,8 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
               <tr><th scope="row">Re [×10⁶]</th><td className="num">{reMillions(u.Re)}</td><td className="num">{reMillions(k.Re)}</td><td></td></tr>
             </tbody>
           </table>
-          <p className="small muted">
-            Wall correction: {result.correction.method}; σ = {sig(result.correction.sigma, 3)}, ε<sub>sb</sub> = {sig(result.correction.epsSb, 3)}, ε<sub>wb</sub> = {sig(result.correction.epsWb, 3)}.
-            {' '}Intervals: Monte Carlo, {result.settings.mcDraws} draws, on the corrected values; the budget below gives the analytic interval beside it.
-          </p>
+          <p className="small muted">Intervals: Monte Carlo, {result.settings.mcDraws} draws, on the corrected values; the budget below gives the analytic interval beside it.</p>
+          <CorrectionCompare result={result} />
 
           <h3>Circulation (Kutta–Joukowski)</h3>
           <table className="coef">

@@ -13,6 +13,7 @@ const GROUPS: { id: NumField['group']; title: string }[] = [
   { id: 'checks', title: 'Checks and flags' },
   { id: 'samples', title: 'Samples' },
   { id: 'uncertainty', title: 'Uncertainty' },
+  { id: 'walls', title: 'Wall corrections: limits' },
 ];
 
 export function SessionSettings({ data, reload }: { data: SessionData; reload(): Promise<void> }) {

@@ -15,10 +15,12 @@
 // - Walls (REDUCTION.md §5): the wall speed is u/V = 1 + e(x) + b(x) ± g(x) and Cp = 1 − (u/V)²
 //   (exact Bernoulli). g(x) = (Γ/2hV)·sech(πx/h) is the bound vortex and its images (Milne-Thomson,
 //   Theoretical Hydrodynamics, method of images; complex potential −(iΓ/2π) ln tanh(πz/2h)),
-//   + on the ceiling, − on the floor (clockwise Γ speeds the ceiling). b(x) is symmetric on both
+//   + on the ceiling, − on the floor (clockwise Γ speeds the ceiling), plus the shift of that vortex to
+//   the centre of pressure (δ = −cm_c/4·c/cl). b(x) is symmetric on both
 //   walls: a solid-blockage doublet m = V·A(1 + t/c)/2π (far-field doublet of an ellipse of the same
 //   area and thickness ratio, Milne-Thomson, from memory) whose images give (m/V)(π/h)²sech²(πx/h),
 //   plus a wake-blockage source Q = ½Vc·cd at the trailing edge giving (Q/2hV)(1 + tanh(πx/h))
+//   (past stall the separated wake's Q = θVc·cd_p, Maskell's blockage with θ = 0.96)
 //   (channel source, derived here by images: velocity (Q/2h)coth(πz/h) plus the uniform Q/2h that
 //   keeps the upstream speed fixed). e(x) is an invented empty-tunnel speed gradient.
 //   Γ = ½V c cl/(1 + b̄), b̄ the sech-weighted mean of e + b on the walls: with Cp_f − Cp_c =
@@ -149,6 +151,8 @@ const WIDTH = 0.6;
 const KQ = 1.038;
 const NACA = '4412';
 const RAKE_X = 0.75;
+/** Maskell's 2-D blockage factor of the separated wake the walls see past stall (app/corrections.ts). */
+const MASKELL_THETA_DEMO = 0.96;
 const RAKE_HALF = 0.12;
 const WALL_X1 = -1.8;
 const WALL_X2 = 1.8;
@@ -871,7 +875,12 @@ function computeAero(C: Contour, L: Layout, alpha: number, stalled: boolean, fau
   // --- walls: wall speed u/V = 1 + e + b ± g.
   const e = (x: number) => 0.0012 * (x / H);
   const bsb = (x: number) => mOverV * (Math.PI / H) ** 2 * sech((Math.PI * (x - xd)) / H) ** 2;
-  const bwb = (x: number) => ((0.5 * CHORD * cdWake) / (2 * H)) * (1 + Math.tanh((Math.PI * (x - xTE)) / H));
+  // Wake source at the trailing edge. Attached: Q = ½Vc·cd (Thom), wall step ε_wb = (c/4h)·cd. Past
+  // stall: the separated wake's, Q = θ·V·c·cd_p with Maskell's θ (R&M 3400; app/corrections.ts), so
+  // the walls carry the larger separated-flow blockage ε_wb = θ(c/2h)·cd_p for the wall-signature
+  // method to measure (docs/WALL-CORRECTIONS.md §6).
+  const epsWbWall = stalled ? (MASKELL_THETA_DEMO * CHORD * cdpT) / (2 * H) : (0.5 * CHORD * cdWake) / (2 * H);
+  const bwb = (x: number) => epsWbWall * (1 + Math.tanh((Math.PI * (x - xTE)) / H));
   const bSym = (x: number) => e(x) + bsb(x) + bwb(x);
   // b̄ = ∫ b sech(πx/h) dx / ∫ sech(πx/h) dx (∫ sech = h), fine trapezoid over ±8h.
   let num = 0;
@@ -883,7 +892,14 @@ function computeAero(C: Contour, L: Layout, alpha: number, stalled: boolean, fau
   }
   const bBar = (num * dxq) / H;
   const gammaOverV = (0.5 * CHORD * clWalls) / (1 + bBar);
-  const g = (x: number) => (gammaOverV / (2 * H)) * sech((Math.PI * x) / H);
+  // The lift acts behind the quarter chord by δ = −cm_c/4·c/cl: the vortex displaced by δ adds, at the
+  // walls, δ·∂/∂x0 of its signature, (πΓδ/2h²V)·sech·tanh (docs/WALL-CORRECTIONS.md §3), with
+  // Γδ = −cm_c/4·½Vc². Odd in x: it leaves the momentum and circulation integrals unchanged.
+  const gdOverV = -cmT * 0.5 * CHORD * CHORD / (1 + bBar);
+  const g = (x: number) => {
+    const w = (Math.PI * x) / H;
+    return (gammaOverV / (2 * H)) * sech(w) + ((Math.PI * gdOverV) / (2 * H * H)) * sech(w) * Math.tanh(w);
+  };
 
   const cp = new Map<string, number>();
   const turb = new Map<string, number>();

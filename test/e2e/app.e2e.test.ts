@@ -3,7 +3,7 @@
 // override a tap, look at the polars and print the day sheet to PDF. Screenshots and the PDF go to
 // test-output/ (git-ignored) for a human to look at.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { existsSync, mkdirSync, mkdtempSync, readdirSync, rmSync, statSync } from 'node:fs';
+import { cpSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { execFileSync } from 'node:child_process';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
@@ -78,21 +78,28 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
     if (tmp) rmSync(tmp, { recursive: true, force: true });
   });
 
-  it('imports the demo day, reviews the stall run, overrides a tap, shows polars and prints the day sheet', async () => {
+  /** Run a flow with screenshots; on failure a screenshot and the page's problems. */
+  async function guarded(failureShot: string, run: (shot: (name: string) => Promise<unknown>) => Promise<void>): Promise<void> {
     const shot = (name: string) => page.screenshot({ path: path.join(out, `${name}.png`), fullPage: false });
     try {
-      await flow(shot);
+      await run(shot);
     } catch (e) {
-      await shot('failure').catch(() => undefined);
+      await shot(failureShot).catch(() => undefined);
       const problems = (page as unknown as { problems: string[] }).problems;
       if (problems.length) console.error(`[e2e] page problems:\n${problems.join('\n')}`);
       throw e;
     }
-  }, 150_000);
+  }
+
+  it('imports the demo day, reviews the stall run, overrides a tap, shows polars and prints the day sheet', () => guarded('failure', flow), 150_000);
 
   async function flow(shot: (name: string) => Promise<unknown>): Promise<void> {
 
-    // Fresh database: the window opens on Intake.
+    // Browser mode asks once for the reviewer's name; then the window opens on Intake (fresh database).
+    await page.getByRole('dialog', { name: 'Who is reviewing?' }).waitFor();
+    await page.getByLabel('Reviewer name').fill('M. Okonkwo');
+    await page.getByRole('button', { name: 'Use this name' }).click();
+    await page.getByRole('dialog').waitFor({ state: 'detached' });
     await page.getByRole('heading', { name: 'Intake' }).waitFor();
     expect(await page.locator('.caution').innerText()).toContain('qualified engineer');
 
@@ -193,6 +200,139 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
     expect(pdfText).toMatch(/Lift methods disagree/);
     execFileSync('pdftoppm', ['-png', '-r', '60', '-f', '1', '-l', '1', pdfPath, path.join(out, 'daysheet-pdf')]);
     expect(readdirSync(out).some((n) => n.startsWith('daysheet-pdf') && n.endsWith('.png'))).toBe(true);
+
+    const problems = (page as unknown as { problems: string[] }).problems;
+    expect(problems, problems.join('\n')).toEqual([]);
+  }
+
+  it('overlays runs of two sessions, saves a plot as SVG and PNG, and prints run 11 rejected with its flag on A4 and Letter',
+    () => guarded('failure-2', sideBySideAndSheet), 240_000);
+
+  async function sideBySideAndSheet(shot: (name: string) => Promise<unknown>): Promise<void> {
+    // A second day: the demo folder again with another date and title (a new setup, so a new session).
+    const day2 = path.join(tmp, 'day-2');
+    cpSync(demoDir, day2, { recursive: true });
+    const setupFile = path.join(day2, 'setup.json');
+    const setup = JSON.parse(readFileSync(setupFile, 'utf8'));
+    setup.session.date = '2026-11-19';
+    setup.session.title = `${setup.session.title}, repeat day`;
+    writeFileSync(setupFile, JSON.stringify(setup, null, 2));
+    await page.getByRole('button', { name: 'Intake', exact: true }).click();
+    await page.getByTestId('files-input').setInputFiles(listFiles(day2));
+    await page.waitForFunction(
+      () => /runs imported/.test(document.querySelector('.done-line')?.textContent ?? '') && document.querySelector('[role="progressbar"][aria-label="Import progress"]')?.getAttribute('aria-valuenow') === '100'
+        || document.querySelector('.errors') !== null,
+      null, { timeout: 120_000 },
+    );
+    if (await page.locator('.errors').count()) throw new Error(`The second import failed: ${await page.locator('.errors').innerText()}`);
+    await expect.poll(() => page.locator('.sessions li').count(), { timeout: 30_000 }).toBe(2);
+
+    // Side by side: run 9 of each day on one Cp plot.
+    await page.getByRole('button', { name: 'Side by side', exact: true }).click();
+    const pickFrom = page.getByLabel('Session to pick runs from');
+    const options = await pickFrom.locator('option').allInnerTexts();
+    expect(options.length).toBe(2);
+    for (const label of options) {
+      await pickFrom.selectOption({ label });
+      await page.getByLabel('Lowest corrected α').fill('−0.5');
+      await page.getByLabel('Highest corrected α').fill('0.5');
+      const list = page.getByRole('table', { name: 'Runs matching the filters' });
+      // α within ±0.5°: run 9 on the up-sweep and run 46 on the way down
+      await expect.poll(async () => (await list.locator('tbody tr').evaluateAll((trs) => trs.map((t) => t.getAttribute('data-run')))).join(','), { timeout: 20_000 }).toBe('9,46');
+      await list.getByRole('button', { name: /^Add run 9 of / }).click();
+    }
+    const picked = page.getByRole('list', { name: 'Runs on the plots' }).locator('li');
+    await expect.poll(() => picked.count()).toBe(2);
+    expect((await picked.allInnerTexts()).map((t) => t.replace(/\s+/g, ' ')).join(' | ')).toMatch(/^2026-11-18 .*run 9.*\| 2026-11-19 .*run 9/);
+    // the flag filter: a hold flag only lists runs on hold (the demo's run 11 has one)
+    await page.getByLabel('Lowest corrected α').fill('');
+    await page.getByLabel('Highest corrected α').fill('');
+    await page.getByLabel('Filter by flag').selectOption('wake-not-captured');
+    const list = page.getByRole('table', { name: 'Runs matching the filters' });
+    await expect.poll(() => list.locator('tbody tr').count()).toBeGreaterThan(0);
+    for (const t of await list.locator('tbody tr').allInnerTexts()) expect(t).toContain('wake not captured');
+    await page.waitForTimeout(300); // chart.js lays out its canvas
+    await shot('side-by-side');
+
+    // Save the Cp overlay as SVG and as PNG (browser mode: downloads).
+    const [svgDl] = await Promise.all([page.waitForEvent('download'), page.getByRole('button', { name: 'Save Cp side by side as SVG' }).click()]);
+    expect(svgDl.suggestedFilename()).toBe('cp-side-by-side.svg');
+    const svgPath = path.join(out, 'cp-side-by-side.svg');
+    await svgDl.saveAs(svgPath);
+    const svg = readFileSync(svgPath, 'utf8');
+    expect(svg).toMatch(/^<\?xml[^>]*>\s*<svg xmlns="http:\/\/www\.w3\.org\/2000\/svg"/);
+    expect(svg).toContain('2026-11-18');
+    expect(svg).toContain('2026-11-19');
+    expect(svg).toContain('x/c');
+    expect((svg.match(/<circle /g) ?? []).length).toBeGreaterThan(10); // tap markers of the first run
+    const [pngDl] = await Promise.all([page.waitForEvent('download'), page.getByRole('button', { name: 'Save Cp side by side as PNG' }).click()]);
+    expect(pngDl.suggestedFilename()).toBe('cp-side-by-side.png');
+    const pngPath = path.join(out, 'cp-side-by-side.png');
+    await pngDl.saveAs(pngPath);
+    const png = readFileSync(pngPath);
+    expect([...png.subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]);
+    expect(png.readUInt32BE(16)).toBe(1280); // IHDR width: the 640-px plot drawn at twice its size
+    expect(png.length).toBeGreaterThan(20_000);
+
+    // Reject run 11 of the first day in the Day log.
+    const day1 = page.locator('.sessions li button', { hasText: '2026-11-18' });
+    await day1.click();
+    await page.getByRole('grid').waitFor();
+    await page.locator('tr[data-run="11"]').click();
+    const review = page.getByRole('region', { name: 'Review of run 11' });
+    await review.getByLabel('Comment').fill('wake off the rake; traverse the rake and repeat');
+    await review.getByRole('button', { name: '✖ Reject' }).click();
+    await review.getByText('rejected', { exact: false }).first().waitFor();
+
+    // The day sheet, printed on A4 and Letter.
+    await page.getByRole('button', { name: 'Day sheet', exact: true }).click();
+    const sessionTitle = (await day1.locator('.session-name').innerText()).trim();
+    // run 9 carries only the day-long leaking-tap flag, so its Cp plot is there only when picked
+    const srcdoc = () => page.locator('iframe.sheet-frame').getAttribute('srcdoc').catch(() => null).then((h) => h ?? '');
+    await expect.poll(srcdoc, { timeout: 30_000 }).toContain('<h2>Cp distributions</h2>');
+    expect(await srcdoc()).not.toContain('<title>Run 9: α');
+    await page.getByLabel('Cp plots also of runs').fill('9');
+    await expect.poll(srcdoc, { timeout: 30_000 }).toContain('<title>Run 9: α');
+    for (const paper of ['A4', 'Letter'] as const) {
+      await page.getByRole('radio', { name: paper }).check();
+      await expect.poll(async () => (await page.locator('iframe.sheet-frame').getAttribute('srcdoc').catch(() => null)) ?? '', { timeout: 30_000 })
+        .toContain(paper === 'A4' ? 'size: A4' : 'size: letter');
+      const html = (await page.locator('iframe.sheet-frame').getAttribute('srcdoc'))!;
+      const sheet = await browser!.newPage();
+      await sheet.setContent(html, { waitUntil: 'load' });
+      const pdfPath = path.join(out, `daysheet-${paper}.pdf`);
+      await sheet.pdf({ path: pdfPath, preferCSSPageSize: true, printBackground: true });
+      await sheet.close();
+      const info = execFileSync('pdfinfo', [pdfPath], { encoding: 'utf8' });
+      const pages = Number(/Pages:\s+(\d+)/.exec(info)![1]);
+      expect(pages).toBeGreaterThanOrEqual(3);
+      expect(pages).toBeLessThanOrEqual(8);
+      expect(info).toMatch(paper === 'A4' ? /Page size:\s+59[45](\.\d+)? x 84[12]/ : /Page size:\s+612 x 792/);
+      for (let i = 1; i <= pages; i++) {
+        const text = execFileSync('pdftotext', ['-f', String(i), '-l', String(i), '-layout', pdfPath, '-'], { encoding: 'utf8' });
+        const head = text.split('\n').find((l) => l.trim())!.replace(/\s+/g, ' ');
+        expect(head, `running header of page ${i}`).toContain(`Test-day summary · ${sessionTitle.slice(0, 30)}`);
+        expect(head).toContain('· model HAL-S4412 · 2026-11-18');
+        expect(head).toContain(`page ${i} of ${pages}`);
+      }
+      const all = execFileSync('pdftotext', ['-layout', pdfPath, '-'], { encoding: 'utf8' });
+      expect(all).not.toMatch(/\d{2}:\d{2}:\d{2}\.\d{3}/); // no milliseconds
+      expect(all).not.toMatch(/\d{4}-\d{2}-\d{2}T\d{2}:\d{2}/); // no ISO stamps
+      expect(all).not.toContain(tmp);
+      expect(all).not.toContain(tmpdir());
+      expect(all).not.toContain(root);
+      expect(all).not.toMatch(/\bbrowser\b(?! mode)/);
+      const flat = all.replace(/\s+/g, ' ');
+      // run 11: its flag and the verdict, side by side
+      const r11 = /Run 11 \(α[^)]*\)[^]*?(?=\d+\. Run \d|Bad taps)/.exec(flat)?.[0] ?? '';
+      expect(r11, 'run 11 in the flagged list').toMatch(/hold/);
+      expect(r11.toLowerCase()).toContain('wake not captured');
+      expect(r11).toContain('Reviewer M. Okonkwo rejected this run: wake off the rake; traverse the rake and repeat');
+      expect(flat).not.toContain('Run 11 (no flags)');
+      expect(flat).toMatch(/Run 9: α 0\.01° corr\./); // the picked run's Cp plot
+      execFileSync('pdftoppm', ['-png', '-r', '60', pdfPath, path.join(out, `daysheet-${paper}`)]);
+      expect(readdirSync(out).filter((n) => n.startsWith(`daysheet-${paper}-`) && n.endsWith('.png')).length).toBe(pages);
+    }
 
     const problems = (page as unknown as { problems: string[] }).problems;
     expect(problems, problems.join('\n')).toEqual([]);

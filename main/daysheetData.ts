@@ -1,0 +1,50 @@
+// What the day sheet prints, gathered from the store: one place for the desktop app, browser
+// mode and the command line, so the three print the same sheet.
+import type { Store } from './store';
+import { sessionSummary } from './reduceService';
+import { daySheetHtml, type DaySheetArgs, type TapNote } from './daysheet';
+
+/** Tap overrides with the reasons given, oldest first, from the audit trail. */
+export function tapNotes(store: Store, sessionId: number): TapNote[] {
+  return store.auditTrail(sessionId)
+    .filter((a) => a.action === 'tap.bad' || a.action === 'tap.good')
+    .map((a) => {
+      const d = (a.detail ?? {}) as { tapId?: unknown; bad?: unknown; comment?: unknown };
+      return {
+        tapId: String(d.tapId ?? ''), bad: a.action === 'tap.bad', comment: typeof d.comment === 'string' ? d.comment : '',
+        actor: a.actor, at: a.at,
+      };
+    })
+    .filter((n) => n.tapId !== '');
+}
+
+export interface SheetOptions {
+  paper: 'A4' | 'Letter';
+  cpRuns?: number[];
+  appVersion?: string;
+  timeZone?: string;
+  generatedAt?: string;
+}
+
+/** The arguments of the day sheet of one stored session. */
+export function daySheetArgs(store: Store, sessionId: number, o: SheetOptions): DaySheetArgs {
+  return {
+    session: store.getSession(sessionId),
+    setup: store.getSetup(sessionId),
+    runs: store.listRuns(sessionId),
+    summary: sessionSummary(store, sessionId),
+    paper: o.paper,
+    generatedAt: o.generatedAt ?? new Date().toISOString(),
+    results: store.latestResults(sessionId),
+    settings: store.getSettings(sessionId),
+    tapNotes: tapNotes(store, sessionId),
+    ...(o.cpRuns ? { cpRuns: o.cpRuns } : {}),
+    ...(o.appVersion ? { appVersion: o.appVersion } : {}),
+    ...(o.timeZone ? { timeZone: o.timeZone } : {}),
+  };
+}
+
+/** The day sheet of one stored session as HTML. */
+export function storedDaySheet(store: Store, sessionId: number, o: SheetOptions): string {
+  return daySheetHtml(daySheetArgs(store, sessionId, o));
+}
