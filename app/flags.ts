@@ -56,7 +56,7 @@ const plural = (n: number, one: string, many = `${one}s`) => (n === 1 ? one : ma
 /** Words for why a tap was dropped (the reason codes of app/surface.ts detectBadTaps). */
 export const BAD_TAP_WORDS: Record<string, string> = {
   marked: 'marked bad by the user',
-  stagnation: 'Cp above stagnation',
+  stagnation: 'Cp above stagnation (core < 0.3.0)',
   outlier: 'outlier against its neighbours',
   leak: 'leak at wind-off',
 };
@@ -105,13 +105,28 @@ export const FLAGS = {
       `Leaking ${plural(p.taps.length, 'tap')} ${p.taps.join(', ')}: the wind-off zero sits more than ${p.leakPa} Pa from the other taps'; dropped and bridged.`,
     example: { taps: ['U07'], leakPa: 3 },
   }),
-  'bad-tap': entry<{ taps: { id: string; reason: string }[] }>({
+  'bad-tap': entry<{ taps: { id: string; reason: string; predicted?: number; residual?: number; u?: number; score?: number }[] }>({
     label: 'bad tap dropped and bridged',
     short: 'bad tap',
     severity: 'warn',
     reason: (p) =>
-      `Bad ${plural(p.taps.length, 'tap')} dropped and bridged: ${p.taps.map((t) => `${t.id} (${badTapWords(t.reason)})`).join(', ')}.`,
-    example: { taps: [{ id: 'L12', reason: 'outlier' }] },
+      `Bad ${plural(p.taps.length, 'tap')} dropped and bridged (a suggestion to confirm or keep): ${p.taps.map((t) => `${t.id} (${
+        t.reason === 'outlier' && t.predicted !== undefined && t.residual !== undefined && t.u !== undefined && t.score !== undefined
+          ? `Cp ${f(t.predicted + t.residual, 3)} against ${f(t.predicted, 3)} predicted from its neighbours: off by ${f(t.residual, 3)}, ${f(t.score, 1)} × the combined uncertainty ${f(t.u, 3)}`
+          : badTapWords(t.reason)
+      })`).join(', ')}.`,
+    example: { taps: [{ id: 'L12', reason: 'outlier', predicted: -0.412, residual: 0.187, u: 0.011, score: 17 }] },
+  }),
+  reference: entry<{ found: { row: string; id: string; cp: number; cpStag: number; M: number; u: number }[]; qLowPct: number; staticLowPa: number }>({
+    label: 'highest Cp above stagnation: q or static reference suspect',
+    short: 'q/p∞ suspect',
+    severity: 'warn',
+    reason: (p) =>
+      `${p.found.map((x) => `Cp ${f(x.cp, 3)} at ${x.id} (row ${x.row}) is above the stagnation value ${f(x.cpStag, 4)} at M ${f(x.M, 3)} ` +
+        `by ${f(x.cp - x.cpStag, 3)}, ${f((x.cp - x.cpStag) / x.u, 1)}× its uncertainty ${f(x.u, 3)}`).join('; ')}: ` +
+      `q about ${f(p.qLowPct, 1)} % low, or the static reference about ${f(p.staticLowPa, 0)} Pa low. ` +
+      `No tap can read above stagnation, so this points at the references, not the ${plural(p.found.length, 'tap')}; kept.`,
+    example: { found: [{ row: 'C', id: 'U01', cp: 1.05, cpStag: 1.0025, M: 0.1, u: 0.008 }], qLowPct: 4.5, staticLowPa: 57 },
   }),
   'no-zero': entry<Record<string, never>>({
     label: 'no wind-off zero',

@@ -31,7 +31,7 @@ import { correctionOf, type CorrectionPlan } from './correctionChoice';
 import type { SignaturePlan } from './wallSignature';
 import { ADJ, adjustedCorrection, correctedLift } from './reductionErrors';
 import { applyStencil, linearStencil, trapezoid } from './quadrature';
-import { compareUpper, contourIntegrals } from './surface';
+import { compareUpper, contourIntegrals, type ContourRule } from './surface';
 import type { Coefficients, RunInfo, Setup, Surface } from './types';
 import { jonesIntegral, jonesTerm } from './wake';
 import { angleFluxIntegral, angleFluxTerm, momentumCl, speedRatio, wallGrid } from './walls';
@@ -60,6 +60,8 @@ export interface PlanNominal {
   mainRow: string;
   /** Capture fractions of the nominal wall result (depend on the geometry only), or null. */
   walls: { F: number; FMom?: number } | null;
+  /** Contour rule of the surface integration (Settings.contourRule; default 'linear'). */
+  rule?: ContourRule;
 }
 
 /** The outputs of one draw. */
@@ -88,6 +90,7 @@ export interface McPlan {
   /** The correction as the nominal pass resolved it (app/correctionChoice.ts). */
   correct: CorrectionPlan;
   signature: SignaturePlan | null;
+  rule: ContourRule;
   baro: number;
   T: number;
   rh: number;
@@ -269,6 +272,7 @@ export function buildMcPlan(
     areaC2: L.areaC2,
     correct: correction,
     signature: L.signature,
+    rule: nominal.rule ?? 'linear',
     baro: info.baro,
     T: info.temperatureC + 273.15,
     rh: info.humidity,
@@ -383,7 +387,7 @@ export function evalMcPlan(
     oy[k] = slotY[s];
     ocp[k] = cp[s];
   }
-  const main = contourIntegrals(ox, oy, ocp, n, nU, alphaDeg);
+  const main = contourIntegrals(ox, oy, ocp, n, nU, alphaDeg, P.rule);
 
   // Wake.
   let cdU = NaN;

@@ -13,7 +13,8 @@ import {
 } from './types';
 import { freeStream } from './air';
 import { averageRun, applyZeros, unsteadiness } from './samples';
-import { detectBadTaps, reduceSurface, type BadTapReason } from './surface';
+import { detectBadTaps, reduceSurface, type BadTap } from './surface';
+import { referenceCheck, type ReferenceFinding } from './tapCheck';
 import { inviscidCp } from './panel';
 import { spanLoading, completeRow } from './spanwise';
 import { jonesDrag, interpolateStatic } from './wake';
@@ -218,7 +219,7 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     const rt = row === L.mainRow ? own : completeRow(own, mainTaps);
     // A row needs both surfaces to be integrated; short rows that cover one side only are skipped.
     if (!rt.some((t) => t.surface === 'upper') || !rt.some((t) => t.surface === 'lower')) continue;
-    const loads = reduceSurface(rt, inp.alphaDeg, inp.bad);
+    const loads = reduceSurface(rt, inp.alphaDeg, inp.bad, settings.contourRule);
     const z = setup.taps.find((t) => t.row === row)?.z ?? 0;
     rows.push({ ...loads, row, z });
   }
@@ -321,7 +322,7 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
  *  pass (when there are any) drops and bridges them. */
 function nominalPass(
   setup: Setup, L: Layout, run: ZeroedRun, settings: Settings,
-): { bad: { id: string; reason: BadTapReason }[]; nominal: CoreOutput; choice: ReturnType<typeof correctionSet> } {
+): { bad: BadTap[]; nominal: CoreOutput; reference: ReferenceFinding[]; choice: ReturnType<typeof correctionSet> } {
   const info = run.info;
   const provisional: CorrectionPlan = {
     method: settings.correction === 'none' ? 'none' : 'barlow-rae-pope',
@@ -339,10 +340,43 @@ function nominalPass(
   const zeroByTap: Record<string, number> | undefined = run.zeroRaw
     ? Object.fromEntries(L.taps.map(({ tap, ch }) => [tap.id, run.zeroRaw![ch.name]]).filter(([, z]) => Number.isFinite(z as number)))
     : undefined;
-  const bad = detectBadTaps(first.taps, settings, zeroByTap, settings.leakPa);
+  // Standard uncertainty of each tap's own Cp (instrument and standard error of its channel), and
+  // of a Cp from the references (p∞ channel, q through k_q and Δp_ref): JCGM 100:2008 eq. (10).
+  const q = first.fs.qu;
+  const chStd = (ch: Channel): number => {
+    const x = run.values[ch.name] ?? 0;
+    const ui = instrumentStd(ch.uncertainty, x, L.scale.get(ch.name) ?? 1);
+    const se = run.stats[ch.name]?.stdErr ?? 0;
+    return Math.hypot(ui, se);
+  };
+  const uCp: Record<string, number> = {};
+  for (const { tap, ch } of L.taps) uCp[tap.id] = chStd(ch) / q;
+  const uPinfCp = chStd(L.pStatic) / q;
+  const dp = run.values[L.dpRef.name];
+  const uqRel = Math.hypot(
+    Number.isFinite(dp) && dp !== 0 ? chStd(L.dpRef) / Math.abs(dp) : 0,
+    (setup.facility.qCalibrationUncertainty ?? 0) / setup.facility.qCalibration,
+  );
+  const bad = detectBadTaps(first.taps, settings, zeroByTap, settings.leakPa, {
+    uCp,
+    positionU: setup.model.tapPositionUncertainty,
+  });
   const nominal = bad.length
     ? runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad, correct: provisional })
     : first;
+  // The references, row by row, from the taps kept (app/tapCheck.ts referenceCheck).
+  const badIds = new Set(bad.map((b) => b.id));
+  const reference: ReferenceFinding[] = [];
+  const rowsSeen = [...new Set(nominal.taps.map((t) => t.row))];
+  for (const row of rowsSeen) {
+    const kept = nominal.taps.filter((t) => t.row === row && !badIds.has(t.id));
+    const f = referenceCheck(
+      row, kept,
+      (id, cp) => Math.sqrt(Math.max(settings.tapCheckMinU, uCp[id] ?? 0) ** 2 + uPinfCp ** 2 + (cp * uqRel) ** 2),
+      first.fs.M, q, settings.stagnationK,
+    );
+    if (f) reference.push(f);
+  }
   // Every correction method side by side, and the one applied ('auto' resolved here, once: the
   // Monte Carlo draws use the same method).
   const choice = correctionSet(
@@ -352,7 +386,7 @@ function nominalPass(
   );
   nominal.correction = choice.correction;
   nominal.corrected = choice.corrected;
-  return { bad, nominal, choice };
+  return { bad, nominal, reference, choice };
 }
 
 /** Standard uncertainty of one wall Cp from the wall channels' stated uncertainty (rms over the
@@ -380,7 +414,7 @@ export interface ReduceOptions {
 export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, options: ReduceOptions = {}): RunResult {
   const L = layoutOf(setup);
   const info = run.info;
-  const { bad, nominal, choice } = nominalPass(setup, L, run, settings);
+  const { bad, nominal, reference, choice } = nominalPass(setup, L, run, settings);
 
   // Flags.
   const flags: Flag[] = [];
@@ -413,8 +447,9 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
   // Taps the user marked are bridged without a flag: the user already knows about them.
   const others = bad.filter((b) => b.reason !== 'leak' && b.reason !== 'marked');
   if (others.length) {
-    flags.push(makeFlag('bad-tap', { taps: others }));
+    flags.push(makeFlag('bad-tap', { taps: others.map((b) => ({ id: b.id, reason: b.reason, ...(b.verdict ?? {}) })) }));
   }
+  if (reference.length) flags.push(referenceFlag(reference));
   if (!run.zeroRuns.length) {
     flags.push(makeFlag('no-zero', {}));
   } else {
@@ -467,6 +502,12 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
     air: nominal.fs.air,
     M,
     taps: nominal.taps,
+    dropped: bad.map((b) => ({
+      id: b.id,
+      reason: b.reason,
+      by: b.reason === 'marked' ? ('hand' as const) : ('auto' as const),
+      ...(b.verdict ?? {}),
+    })),
     rows: nominal.rows,
     surface: nominal.main,
     wake: nominal.wake,
@@ -518,6 +559,17 @@ function peakY(w: WakeResult): number {
   return best ? best.y : NaN;
 }
 
+
+/** The reference flag (app/tapCheck.ts referenceCheck): Cp on the uncorrected basis (q_u) of
+ *  every tap Cp, the same numbers as the tap table. */
+function referenceFlag(found: readonly ReferenceFinding[]): Flag {
+  const w = found.reduce((a, b) => (b.cp > a.cp ? b : a));
+  return makeFlag('reference', {
+    found: found.map((f) => ({ row: f.row, id: f.id, cp: f.cp, cpStag: f.cpStag, M: f.M, u: f.u })),
+    qLowPct: w.qLow * 100,
+    staticLowPa: w.staticLowPa,
+  });
+}
 
 type UKey = UncertaintyKey;
 
@@ -601,6 +653,7 @@ function mcModel(
     ? buildMcPlan(setup, planLayout(L), run.info, correct, bad, {
         mainRow: nominal.main.row,
         walls: nominal.walls,
+        rule: settings.contourRule,
       }, index)
     : null;
   const o: McValues = { cl: NaN, cd: NaN, cdp: NaN, cmc4: NaN, clMom: NaN, gammaPressure: NaN, gammaMomentum: NaN, gammaWall: NaN };

@@ -6,10 +6,12 @@
 //   cl = cn cos α − ca sin α,  cd_p = cn sin α + ca cos α.
 // Anderson, Fundamentals of Aerodynamics, ch. 1 §1.5, eqs. 1.7–1.22 (memory). The trailing edge is
 // closed by extrapolating each surface linearly to x/c = 1 and taking the mean (common practice,
-// no source). Bad-tap detection (stagnation margin, robust local fit of neighbours, wind-off leak)
-// is common practice, no source.
+// no source). The 'spline' contour rule is app/contourSpline.ts; bad-tap detection (leave-one-out
+// prediction test, app/tapCheck.ts; wind-off leak) is common practice, no source.
 
 import { DEFAULT_SETTINGS } from './types';
+import { splineIntegrals } from './contourSpline';
+import { findRowOutliers, type TapVerdict } from './tapCheck';
 import type { Settings, Surface, SurfaceLoads, TapCp } from './types';
 
 /** A point of the contour: what integrateContour needs of a tap. */
@@ -94,9 +96,25 @@ export type ContourIntegrals = Pick<SurfaceLoads, 'cn' | 'ca' | 'cl' | 'cdp' | '
   teLower: TeSurfaceMethod;
 };
 
+/** How Cp (and the contour between taps) is interpolated for the integrals: 'linear' — straight
+ *  segments between taps, Cp linear along each; 'spline' — cubic splines of x/c, y/c and Cp in
+ *  chord length through the taps (app/contourSpline.ts). */
+export type ContourRule = 'spline' | 'linear';
+
+/** The words a result uses for each rule. */
+export const CONTOUR_RULE_TEXT: Record<ContourRule, string> = {
+  spline: 'cubic spline of Cp, x/c and y/c in arc length (not-a-knot, trailing edge at both ends)',
+  linear: 'Cp linear between taps on straight segments',
+};
+
+let nodeX = new Float64Array(256);
+let nodeY = new Float64Array(256);
+let nodeCp = new Float64Array(256);
+
 /** See ContourIntegrals. */
 export function contourIntegrals(
   x: ArrayLike<number>, y: ArrayLike<number>, cp: ArrayLike<number>, n: number, nUpper: number, alphaDeg: number,
+  rule: ContourRule = 'linear',
 ): ContourIntegrals {
   // Trailing-edge value of each surface at x/c = 1: linear through the tap nearest the trailing
   // edge and the next one with a distinct x (by more than 1e-9), else the nearest tap.
@@ -138,28 +156,53 @@ export function contourIntegrals(
   const teY = 0.5 * (teUy + teLy);
   const teCp = 0.5 * (teUcp + teLcp);
 
-  // Polygon te → points → te; linear Cp along straight segments: exact integrals of the
-  // piecewise-linear integrands.
   let sCpDx = 0;
   let sCpDy = 0;
   let sMom = 0;
-  let px = teX;
-  let py = teY;
-  let pcp = teCp;
-  for (let k = 0; k <= n; k++) {
-    const qx = k < n ? x[k] : teX;
-    const qy = k < n ? y[k] : teY;
-    const qcp = k < n ? cp[k] : teCp;
-    const dx = qx - px;
-    const dy = qy - py;
-    sCpDx += 0.5 * (pcp + qcp) * dx;
-    sCpDy += 0.5 * (pcp + qcp) * dy;
-    // ∫ Cp x dx with Cp and x linear in the segment parameter = dx/6 [Cp_p(2x_p + x_q) + Cp_q(x_p + 2x_q)].
-    sMom += (dx / 6) * (pcp * (2 * px + qx) + qcp * (px + 2 * qx));
-    sMom += (dy / 6) * (pcp * (2 * py + qy) + qcp * (py + 2 * qy));
-    px = qx;
-    py = qy;
-    pcp = qcp;
+  if (rule === 'spline' && n >= 2) {
+    // Nodes te → points → te for the splines of app/contourSpline.ts.
+    const m = n + 2;
+    if (nodeX.length < m) {
+      nodeX = new Float64Array(2 * m);
+      nodeY = new Float64Array(2 * m);
+      nodeCp = new Float64Array(2 * m);
+    }
+    nodeX[0] = teX;
+    nodeY[0] = teY;
+    nodeCp[0] = teCp;
+    for (let k = 0; k < n; k++) {
+      nodeX[k + 1] = x[k];
+      nodeY[k + 1] = y[k];
+      nodeCp[k + 1] = cp[k];
+    }
+    nodeX[n + 1] = teX;
+    nodeY[n + 1] = teY;
+    nodeCp[n + 1] = teCp;
+    const r = splineIntegrals(nodeX, nodeY, nodeCp, m);
+    sCpDx = r.sCpDx;
+    sCpDy = r.sCpDy;
+    sMom = r.sMom;
+  } else {
+    // Polygon te → points → te; linear Cp along straight segments: exact integrals of the
+    // piecewise-linear integrands.
+    let px = teX;
+    let py = teY;
+    let pcp = teCp;
+    for (let k = 0; k <= n; k++) {
+      const qx = k < n ? x[k] : teX;
+      const qy = k < n ? y[k] : teY;
+      const qcp = k < n ? cp[k] : teCp;
+      const dx = qx - px;
+      const dy = qy - py;
+      sCpDx += 0.5 * (pcp + qcp) * dx;
+      sCpDy += 0.5 * (pcp + qcp) * dy;
+      // ∫ Cp x dx with Cp and x linear in the segment parameter = dx/6 [Cp_p(2x_p + x_q) + Cp_q(x_p + 2x_q)].
+      sMom += (dx / 6) * (pcp * (2 * px + qx) + qcp * (px + 2 * qx));
+      sMom += (dy / 6) * (pcp * (2 * py + qy) + qcp * (py + 2 * qy));
+      px = qx;
+      py = qy;
+      pcp = qcp;
+    }
   }
   // Outward normal of the counter-clockwise contour is (dy, −dx)/ds; force = −∮ Cp n ds.
   const cn = sCpDx;
@@ -182,7 +225,7 @@ export function contourIntegrals(
 /** Integrates Cp around the closed contour of one row (see the module comment). The points are
  *  ordered here, so the result does not depend on their order. Needs at least one tap on each
  *  surface. `bridged` is always empty: the caller passes only good taps (see reduceSurface). */
-export function integrateContour(points: readonly ContourPoint[], alphaDeg: number): SurfaceLoads {
+export function integrateContour(points: readonly ContourPoint[], alphaDeg: number, rule: ContourRule = 'linear'): SurfaceLoads {
   validatePoints(points, 'integrateContour');
   if (!Number.isFinite(alphaDeg)) throw new Error(`integrateContour: angle of attack is not finite (${alphaDeg})`);
   const ordered = orderContour(points);
@@ -202,8 +245,9 @@ export function integrateContour(points: readonly ContourPoint[], alphaDeg: numb
     y[k] = ordered[k].y;
     cp[k] = ordered[k].cp;
   }
-  const r = contourIntegrals(x, y, cp, n, nUpper, alphaDeg);
+  const r = contourIntegrals(x, y, cp, n, nUpper, alphaDeg, rule);
   return {
+    rule,
     cn: r.cn,
     ca: r.ca,
     cl: r.cl,
@@ -216,12 +260,7 @@ export function integrateContour(points: readonly ContourPoint[], alphaDeg: numb
   };
 }
 
-export type BadTapReason = 'marked' | 'stagnation' | 'outlier' | 'leak';
-
-/** Rows with fewer taps than this are not searched for outliers. */
-export const OUTLIER_MIN_ROW_TAPS = 16;
-/** Taps with x/c below this (the leading-edge region) are never called outliers. */
-export const OUTLIER_LE_REGION = 0.02;
+export type BadTapReason = 'marked' | 'outlier' | 'leak';
 
 function median(values: number[]): number {
   const s = [...values].sort((a, b) => a - b);
@@ -229,124 +268,41 @@ function median(values: number[]): number {
   return n % 2 ? s[(n - 1) >> 1] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
 }
 
-/** Lagrange interpolation/extrapolation at s through the given (s, cp) nodes (distinct s). */
-function lagrange(nodes: readonly { s: number; cp: number }[], s: number): number {
-  let sum = 0;
-  for (let i = 0; i < nodes.length; i++) {
-    let w = 1;
-    for (let j = 0; j < nodes.length; j++) {
-      if (j !== i) w *= (s - nodes[j].s) / (nodes[i].s - nodes[j].s);
-    }
-    sum += w * nodes[i].cp;
-  }
-  return sum;
+/** A bad tap found by detectBadTaps; outliers carry the verdict of the test that found them. */
+export interface BadTap {
+  id: string;
+  reason: BadTapReason;
+  /** Outliers: Cp predicted from the neighbours, residual Cp − prediction, combined standard
+   *  uncertainty and |residual|/u (app/tapCheck.ts). */
+  verdict?: Pick<TapVerdict, 'predicted' | 'residual' | 'u' | 'score'>;
 }
 
-/** Predictions of the Cp at chain position k from its neighbours only (never from k itself):
- *  Lagrange polynomials (linear and quadratic) through every subset of 2 or 3 of the two nearest
- *  neighbours on each side that has a neighbour on both sides; at an end of the chain, linear and
- *  quadratic extrapolation through subsets of the three nearest. Sets that skip the nearest
- *  neighbour keep a bad neighbour from making a good tap look wrong. */
-type ChainNode = { s: number; cp: number };
-
-/** [chain[i]] when i is inside the chain, else []. */
-function nodeAt(chain: readonly ChainNode[], i: number): ChainNode[] {
-  return i >= 0 && i < chain.length ? [chain[i]] : [];
-}
-
-/** The set has a node on each side. */
-function spansBothSides(set: readonly ChainNode[], left: readonly ChainNode[], right: readonly ChainNode[]): boolean {
-  return set.some((p) => left.includes(p)) && set.some((p) => right.includes(p));
-}
-
-function neighbourPredictions(chain: readonly ChainNode[], k: number): number[] {
-  const left = [...nodeAt(chain, k - 1), ...nodeAt(chain, k - 2)];
-  const right = [...nodeAt(chain, k + 1), ...nodeAt(chain, k + 2)];
-  const sets: ChainNode[][] = [];
-  if (left.length && right.length) {
-    const window = [...left, ...right];
-    for (let i = 0; i < window.length; i++) {
-      for (let j = i + 1; j < window.length; j++) {
-        const pair = [window[i], window[j]];
-        if (spansBothSides(pair, left, right)) sets.push(pair);
-        for (let l = j + 1; l < window.length; l++) {
-          const triple = [window[i], window[j], window[l]];
-          if (spansBothSides(triple, left, right)) sets.push(triple);
-        }
-      }
-    }
-  } else {
-    const side = left.length ? [...left, ...nodeAt(chain, k - 3)] : [...right, ...nodeAt(chain, k + 3)];
-    if (side.length === 3) sets.push([side[0], side[1]], [side[0], side[2]], [side[1], side[2]], side);
-    else if (side.length === 2) sets.push(side);
-  }
-  const s = chain[k].s;
-  const out: number[] = [];
-  for (const nodes of sets) {
-    let distinct = true;
-    for (let i = 0; i < nodes.length; i++) {
-      for (let j = i + 1; j < nodes.length; j++) if (Math.abs(nodes[i].s - nodes[j].s) < 1e-9) distinct = false;
-    }
-    if (distinct) out.push(lagrange(nodes, s));
-  }
-  return out;
-}
-
-/** Outlier scores of every tap of a chain (contour order, upper TE → LE → lower TE), by arc
- *  length along the polygon through the taps: |Cp − median of the neighbour predictions| divided
- *  by the local scale max(tol, spread of the predictions, ½|ΔCp| between the two neighbours).
- *  The spread and the neighbours' difference measure how fast Cp changes there, so a clean
- *  suction peak or stagnation point sampled by few taps does not score as an outlier. */
-function outlierScores(chain: readonly ContourPoint[], tol: number): number[] {
-  const pts: { s: number; cp: number }[] = [];
-  let s = 0;
-  for (let i = 0; i < chain.length; i++) {
-    if (i > 0) s += Math.hypot(chain[i].x - chain[i - 1].x, chain[i].y - chain[i - 1].y);
-    pts.push({ s, cp: chain[i].cp });
-  }
-  const last = pts.length - 1;
-  return pts.map((p, k) => {
-    const preds = neighbourPredictions(pts, k);
-    if (preds.length < 2) return 0;
-    const spread = Math.max(...preds) - Math.min(...preds);
-    const step =
-      k === 0 ? pts[2].cp - pts[1].cp : k === last ? pts[k - 2].cp - pts[k - 1].cp : pts[k + 1].cp - pts[k - 1].cp;
-    return Math.abs(p.cp - median(preds)) / Math.max(tol, spread, 0.5 * Math.abs(step));
-  });
-}
-
-/** Outlier search on one chain: a tap whose score exceeds 1 is an outlier. The worst is removed
- *  and the search repeated, so one bad tap does not condemn its neighbours, whose predictions it
- *  drags. Where Cp changes by much more than tol between neighbouring taps (the leading edge at
- *  high α), a bad tap cannot be told from the real peak and is not searched for. */
-function findOutliers(chain: readonly ContourPoint[], tol: number): string[] {
-  const active = [...chain];
-  const found: string[] = [];
-  while (active.length >= 5) {
-    const scores = outlierScores(active, tol);
-    let worst = -1;
-    for (let k = 0; k < scores.length; k++) if (scores[k] > 1 && (worst < 0 || scores[k] > scores[worst])) worst = k;
-    if (worst < 0) break;
-    found.push(active[worst].id);
-    active.splice(worst, 1);
-  }
-  return found;
+/** What the bad-tap test knows of the taps beyond their Cp. */
+export interface TapCheckContext {
+  /** Standard uncertainty of each tap's own Cp (its channel), by id; below settings.tapCheckMinU
+   *  (or missing) the floor is used. */
+  uCp?: Record<string, number>;
+  /** Standard uncertainty of the tap positions along the contour, in chords. */
+  positionU?: number;
 }
 
 /** Finds bad taps in any number of rows. Each tap gets at most one reason, in this order:
  *  'marked' (in settings.badTaps), 'leak' (its wind-off zero departs from the median zero of all
  *  taps with a zero by more than leakPa, default DEFAULT_SETTINGS.leakPa; only when zeroRaw is
- *  given), 'stagnation' (Cp > 1 + stagnationMargin), 'outlier' (against a robust local fit of its
- *  neighbours on the same row along the contour, see findOutliers; taps already found bad are
- *  left out of the fits). The `bad` field of the input taps is not read. Result in input order. */
+ *  given), 'outlier' (the leave-one-out prediction test of app/tapCheck.ts on its own row, rows of
+ *  TAP_CHECK_MIN_ROW taps or more, taps already found bad left out). A tap above stagnation is not
+ *  bad for that alone (see referenceCheck in app/tapCheck.ts). The `bad` field of the input taps is
+ *  not read. Result in input order. */
 export function detectBadTaps(
   taps: readonly TapCp[],
-  settings: Pick<Settings, 'stagnationMargin' | 'tapOutlierCp' | 'badTaps'>,
+  settings: Pick<Settings, 'tapCheckK' | 'tapCheckMinU' | 'badTaps'>,
   zeroRaw?: Record<string, number>,
   leakPa?: number,
-): { id: string; reason: BadTapReason }[] {
+  context: TapCheckContext = {},
+): BadTap[] {
   validatePoints(taps, 'detectBadTaps');
   const reason = new Map<string, BadTapReason>();
+  const verdicts = new Map<string, BadTap['verdict']>();
   const marked = new Set(settings.badTaps);
   for (const t of taps) if (marked.has(t.id)) reason.set(t.id, 'marked');
 
@@ -360,9 +316,6 @@ export function detectBadTaps(
       }
     }
   }
-  for (const t of taps) {
-    if (!reason.has(t.id) && t.cp > 1 + settings.stagnationMargin) reason.set(t.id, 'stagnation');
-  }
   const rows = new Map<string, TapCp[]>();
   for (const t of taps) {
     if (reason.has(t.id)) continue;
@@ -370,17 +323,22 @@ export function detectBadTaps(
     list.push(t);
     rows.set(t.row, list);
   }
-  // Only rows dense enough to predict a tap from its neighbours are searched, and taps in the
-  // leading-edge region, where the stagnation point and the suction peak move faster than the
-  // taps resolve them, are never called outliers (common practice, no source).
+  const floor = settings.tapCheckMinU;
   for (const list of rows.values()) {
-    if (list.length < OUTLIER_MIN_ROW_TAPS) continue;
-    for (const id of findOutliers(orderContour(list), settings.tapOutlierCp)) {
-      const tap = list.find((t) => t.id === id);
-      if (tap && tap.x >= OUTLIER_LE_REGION) reason.set(id, 'outlier');
+    const chain = orderContour(list).map((t) => ({
+      id: t.id, x: t.x, y: t.y, cp: t.cp, u: Math.max(floor, context.uCp?.[t.id] ?? 0),
+    }));
+    for (const v of findRowOutliers(chain, { k: settings.tapCheckK, positionU: context.positionU })) {
+      reason.set(v.id, 'outlier');
+      verdicts.set(v.id, { predicted: v.predicted, residual: v.residual, u: v.u, score: v.score });
     }
   }
-  return taps.filter((t) => reason.has(t.id)).map((t) => ({ id: t.id, reason: reason.get(t.id)! }));
+  return taps
+    .filter((t) => reason.has(t.id))
+    .map((t) => {
+      const v = verdicts.get(t.id);
+      return v ? { id: t.id, reason: reason.get(t.id)!, verdict: v } : { id: t.id, reason: reason.get(t.id)! };
+    });
 }
 
 /** Loads of one row: drops the taps listed in `bad` (and any tap whose `bad` field is set),
@@ -389,6 +347,7 @@ export function reduceSurface(
   taps: readonly TapCp[],
   alphaDeg: number,
   bad: readonly { id: string; reason?: string }[],
+  rule: ContourRule = 'linear',
 ): SurfaceLoads {
   const rowNames = [...new Set(taps.map((t) => t.row))];
   if (rowNames.length > 1) {
@@ -404,6 +363,6 @@ export function reduceSurface(
       );
     }
   }
-  const loads = integrateContour(good, alphaDeg);
+  const loads = integrateContour(good, alphaDeg, rule);
   return { ...loads, bridged: orderContour(taps.filter(isBad)).map((t) => t.id) };
 }

@@ -7,10 +7,12 @@
  *  Barlow, Rae & Pope wake blockage is (c/2h)·cd_u as REDUCTION.md §8 gives it, not (c/4h)·cd_u;
  *  the Monte Carlo normal deviates come from the polar Box–Muller method, so other draws; 0.3.0:
  *  the classical wake blockage is (c/4h)·cd_u for both classical methods — the source between
- *  walls, docs/WALL-CORRECTIONS.md — and the default correction is 'auto'; 0.4.0: the reduction's
- *  own errors and the transducer groups in the uncertainty, every interval on the corrected basis,
- *  corrected Γ, the per-run budget, the wake's q∞ = H∞ − p∞ when H∞ is measured). */
-export const CORE_VERSION = '0.4.0';
+ *  walls, docs/WALL-CORRECTIONS.md — and the default correction is 'auto'; 0.4.0: the
+ *  bad-tap test by prediction uncertainty and the stagnation reference check of app/tapCheck.ts,
+ *  the contour rule named in each row's loads; 0.5.0: the reduction's own errors and the
+ *  transducer groups in the uncertainty, every interval on the corrected basis, corrected Γ, the
+ *  per-run budget, the wake's q∞ = H∞ − p∞ when H∞ is measured). */
+export const CORE_VERSION = '0.5.0';
 
 export type PressureUnit =
   | 'Pa' | 'kPa' | 'hPa' | 'mbar' | 'psi' | 'inH2O' | 'mmH2O' | 'mmHg' | 'torr';
@@ -177,10 +179,19 @@ export interface Settings {
   unsteadyThreshold: number;
   /** Wake captured when both rake edges have (H_w − p∞)/q∞ within this of 1. */
   wakeEdgeTol: number;
-  /** A tap is bad if Cp > 1 + stagnationMargin. */
-  stagnationMargin: number;
-  /** A tap is bad if it departs from a robust local fit of its neighbours by more than this (Cp). */
-  tapOutlierCp: number;
+  /** Bad-tap test (app/tapCheck.ts, docs/TAP-JUDGEMENT.md): a tap is an outlier when it departs
+   *  from the leave-one-out prediction of its neighbours by more than tapCheckK times the combined
+   *  standard uncertainty (tap channel and prediction). */
+  tapCheckK: number;
+  /** Smallest standard uncertainty of a tap's Cp the test assumes (unmodelled effects: tap hole,
+   *  position), in Cp. */
+  tapCheckMinU: number;
+  /** Stagnation check: the row's highest Cp above the isentropic Cp_stag by more than stagnationK
+   *  standard uncertainties gives a reference flag (the tap is kept). */
+  stagnationK: number;
+  /** Contour rule of the surface integration: 'linear' (Cp linear between taps) or 'spline'
+   *  (cubic splines in arc length with the stagnation region resolved, app/contourSpline.ts). */
+  contourRule: 'linear' | 'spline';
   /** Wind-off leak: a tap whose wind-off zero departs from the median zero of the taps by more
    *  than this many Pa is flagged as leaking. */
   leakPa: number;
@@ -216,8 +227,10 @@ export const DEFAULT_SETTINGS: Settings = {
   spikeK: 5,
   unsteadyThreshold: 0.02,
   wakeEdgeTol: 0.01,
-  stagnationMargin: 0.05,
-  tapOutlierCp: 0.25,
+  tapCheckK: 4,
+  tapCheckMinU: 0.005,
+  stagnationK: 2,
+  contourRule: 'linear',
   leakPa: 15,
   zeroDriftFraction: 0.01,
   machLimit: 0.3,
@@ -349,8 +362,23 @@ export interface TapCp {
   row: string;
   cp: number;
   bad: boolean;
-  /** Why the tap is bad ('marked', 'stagnation', 'outlier', 'leak'). */
+  /** Why the tap is bad ('marked', 'outlier', 'leak'; 'stagnation' in results of core < 0.3.0). */
   badReason?: string;
+}
+
+/** A tap left out of the integration, and who left it out: 'hand' — marked bad by the engineer
+ *  (Settings.badTaps); 'auto' — found by the core (a leak at wind-off, or an outlier of the
+ *  leave-one-out test, with its verdict), a suggestion for the engineer to confirm or keep. */
+export interface DroppedTap {
+  id: string;
+  reason: string;
+  by: 'hand' | 'auto';
+  /** Outliers: Cp predicted from the neighbours, Cp − prediction, combined standard uncertainty,
+   *  |residual|/u. */
+  predicted?: number;
+  residual?: number;
+  u?: number;
+  score?: number;
 }
 
 /** Surface-pressure integration of one row (app/surface.ts). */
@@ -364,6 +392,9 @@ export interface SurfaceLoads {
   /** Trailing-edge Cp used to close the contour, and how. */
   teCp: number;
   teMethod: string;
+  /** The contour rule used (app/surface.ts ContourRule); absent in results of core < 0.3.0, which
+   *  were all 'linear'. */
+  rule?: 'spline' | 'linear';
   /** Ids of taps dropped and bridged. */
   bridged: string[];
 }
@@ -485,6 +516,8 @@ export interface RunResult {
   M: number;
   /** Cp of every tap, all rows. */
   taps: TapCp[];
+  /** Taps dropped, by hand or automatically (absent in results of core < 0.3.0). */
+  dropped?: DroppedTap[];
   /** Section loads of each spanwise row (main row first). */
   rows: RowLoads[];
   /** Loads of the main row (uncorrected). */

@@ -1,7 +1,7 @@
 // The `rakeline` command line: a thin layer over the store, the importer, the reduction service,
 // the day sheet and the exports. Exit codes: 0 ok, 1 bad input (log errors name file, line and
 // channel), 2 usage errors (unknown command or option, bad option value, ambiguous session).
-import { existsSync, writeFileSync } from 'node:fs';
+import { existsSync, rmSync, writeFileSync } from 'node:fs';
 import { relative, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { Command, CommanderError, InvalidArgumentError, Option } from 'commander';
@@ -89,12 +89,16 @@ function dbPath(g: GlobalOpts): string {
   return resolve(g.db ?? process.env.RAKELINE_DB ?? DEFAULT_DB);
 }
 
-function openStore(g: GlobalOpts, create: boolean): Store {
+/** How a command uses the database: 'read' opens it read-only (nothing written, also on a
+ *  read-only disk), 'write' needs it to exist and be writable, 'create' may make it. */
+type Access = 'read' | 'write' | 'create';
+
+function openStore(g: GlobalOpts, access: Access): Store {
   const file = dbPath(g);
-  if (!create && !existsSync(file)) {
+  if (access !== 'create' && !existsSync(file)) {
     throw new InputError(`no database at ${file} (import a session first with: rakeline ingest <folder>, or pass --db)`);
   }
-  return D().Store.open(file);
+  return D().Store.open(file, { readOnly: access === 'read' });
 }
 
 /** The session named by --session, or the only one in the database. */
@@ -120,8 +124,8 @@ function actorOf(g: GlobalOpts): string {
   return g.actor ?? process.env.RAKELINE_ACTOR ?? `cli:${process.env.USER ?? process.env.USERNAME ?? 'user'}`;
 }
 
-async function withStore<T>(g: GlobalOpts, create: boolean, fn: (store: Store) => Promise<T> | T): Promise<T> {
-  const store = openStore(g, create);
+async function withStore<T>(g: GlobalOpts, access: Access, fn: (store: Store) => Promise<T> | T): Promise<T> {
+  const store = openStore(g, access);
   try {
     return await fn(store);
   } finally {
@@ -231,7 +235,7 @@ async function reduceAndTell(store: Store, sessionId: number, g: GlobalOpts, opt
 async function follow(folder: string, g: GlobalOpts, settleMs: number, reduce: boolean): Promise<void> {
   const dir = resolve(folder);
   if (!existsSync(dir)) throw new InputError(`no folder ${dir}`);
-  const store = openStore(g, true);
+  const store = openStore(g, 'create');
   const actor = actorOf(g);
   let busy = false;
   let again = false;
@@ -338,7 +342,7 @@ Examples:
     .description('list the sessions in the database')
     .addOption(new Option('--format <format>', 'output format').choices(['table', 'json']).default('table'))
     .action(async (o: { format: string }) => {
-      await withStore(g(), false, (store) => {
+      await withStore(g(), 'read', (store) => {
         const all = store.listSessions();
         if (o.format === 'json') return out(JSON.stringify(all, null, 2));
         if (!all.length) return out('no sessions');
@@ -357,21 +361,39 @@ Examples:
     .action(async (folder: string, o: { reduce: boolean }) => {
       const dir = resolve(folder);
       if (!existsSync(dir)) throw new InputError(`no folder ${dir}`);
-      await withStore(g(), true, async (store) => {
-        const bar = progress();
-        const t0 = performance.now();
-        let rep;
-        try {
-          rep = await D().importSessionFolder(store, dir, { actor: actorOf(g()), onProgress: bar.onProgress });
-        } finally {
-          bar.stop();
-        }
-        out(`session ${rep.sessionId} (${rep.created ? 'new' : 'existing'}): ${rep.importedRuns.length} run(s) imported, ${rep.changedFiles.length} changed file(s), ${rep.unchangedFiles.length} unchanged, ${rep.skippedRuns.length} skipped in ${((performance.now() - t0) / 1000).toFixed(2)} s`);
-        if (o.reduce && rep.importedRuns.length) await reduceAndTell(store, rep.sessionId, g(), {});
-        if (rep.changedFiles.length) {
-          throw new InputError(`${rep.changedFiles.length} file(s) differ from what session ${rep.sessionId} holds and were not merged: ${rep.changedFiles.join(', ')} (the stored data are kept; import a changed session from a new folder)`);
-        }
-      });
+      const file = dbPath(g());
+      const existed = existsSync(file);
+      let stored = false;
+      try {
+        await withStore(g(), 'create', async (store) => {
+          const bar = progress();
+          const t0 = performance.now();
+          let rep;
+          try {
+            rep = await D().importSessionFolder(store, dir, { actor: actorOf(g()), onProgress: bar.onProgress });
+          } finally {
+            bar.stop();
+          }
+          stored = true;
+          out(`session ${rep.sessionId} (${rep.created ? 'new' : 'existing'}): ${rep.importedRuns.length} run(s) imported, ${rep.changedFiles.length} changed file(s), ${rep.unchangedFiles.length} unchanged, ${rep.skippedRuns.length} skipped in ${((performance.now() - t0) / 1000).toFixed(2)} s`);
+          for (const w of rep.warnings ?? []) note(`warning: ${w}`);
+          if (o.reduce) {
+            // Every data run without a current result, not only this import's: a reduction that an
+            // earlier ingest could not finish (killed, disk full) is done now (main/repair.ts).
+            const todo = D().runsNeedingReduction(store, rep.sessionId);
+            const earlier = todo.filter((r) => !rep.importedRuns.includes(r)).length;
+            if (earlier) note(`session ${rep.sessionId}: ${earlier} data run(s) stored earlier had no current result; reducing them now`);
+            if (todo.length) await reduceAndTell(store, rep.sessionId, g(), { runs: todo });
+          }
+          if (rep.changedFiles.length) {
+            throw new InputError(`${rep.changedFiles.length} file(s) differ from what session ${rep.sessionId} holds and were not merged: ${rep.changedFiles.join(', ')} (the stored data are kept; import a changed session from a new folder)`);
+          }
+        });
+      } catch (e) {
+        // A first ingest that stored nothing leaves no (empty) database behind.
+        if (!existed && !stored) for (const f of [file, `${file}-wal`, `${file}-shm`, `${file}-journal`]) rmSync(f, { force: true });
+        throw e;
+      }
     });
 
   program
@@ -381,7 +403,7 @@ Examples:
     .option('--set <key=value>', 'reduction setting for this reduction, repeatable (e.g. liftTolAbs=0.03, mcDraws=200, badTaps=C3,C4)', parseSetting)
     .option('--save', 'keep the --set values as the session settings (audited)')
     .action(async (o: { runs?: number[]; set?: Partial<Settings>; save?: boolean }) => {
-      await withStore(g(), false, async (store) => {
+      await withStore(g(), 'write', async (store) => {
         const sid = pickSession(store, g());
         let settings = o.set;
         if (o.save && settings) {
@@ -417,7 +439,7 @@ Examples:
         opts.session = first;
         tapId = second;
       }
-      await withStore(opts, false, async (store) => {
+      await withStore(opts, 'write', async (store) => {
         const sid = pickSession(store, opts);
         const setup = store.getSetup(sid);
         if (!setup.taps.some((t) => t.id === tapId)) {
@@ -440,7 +462,7 @@ Examples:
     .action(async (run: number, o: { accept?: boolean; reject?: boolean; clear?: boolean; note: string }) => {
       const picked = [o.accept, o.reject, o.clear].filter(Boolean).length;
       if (picked !== 1) throw new UsageError('review: give exactly one of --accept, --reject or --clear');
-      await withStore(g(), false, (store) => {
+      await withStore(g(), 'write', (store) => {
         const sid = pickSession(store, g());
         if (!store.listRuns(sid).some((r) => r.run === run)) throw new InputError(`session ${sid} has no run ${run}`);
         store.setReview(sid, run, o.accept ? 'accepted' : o.reject ? 'rejected' : null, o.note, actorOf(g()));
@@ -454,7 +476,7 @@ Examples:
     .addOption(new Option('--format <format>', 'output format').choices(['table', 'csv', 'json']).default('table'))
     .option('--flagged', 'only runs with flags')
     .action(async (o: { format: string; flagged?: boolean }) => {
-      await withStore(g(), false, (store) => {
+      await withStore(g(), 'read', (store) => {
         const sid = pickSession(store, g());
         let rows = store.listRuns(sid);
         if (o.flagged) rows = rows.filter((r) => r.result && r.result.flags.length);
@@ -468,7 +490,7 @@ Examples:
     .command('settings')
     .description('show the session reduction settings (change them with reduce --set … --save)')
     .action(async () => {
-      await withStore(g(), false, (store) => out(JSON.stringify(store.getSettings(pickSession(store, g())), null, 2)));
+      await withStore(g(), 'read', (store) => out(JSON.stringify(store.getSettings(pickSession(store, g())), null, 2)));
     });
 
   program
@@ -477,7 +499,7 @@ Examples:
     .addOption(new Option('--format <format>', 'file format').choices(['csv', 'json']).default('csv'))
     .option('--out <file>', 'output file (default: standard output)')
     .action(async (o: { format: string; out?: string }) => {
-      await withStore(g(), false, (store) => {
+      await withStore(g(), 'read', (store) => {
         const sid = pickSession(store, g());
         const text = o.format === 'json'
           ? D().exportResultsJson(store, sid)
@@ -493,7 +515,7 @@ Examples:
     .addOption(new Option('--paper <size>', 'paper size').choices(['A4', 'Letter']).default('A4'))
     .option('--cp-runs <list>', 'also plot the Cp distributions of these runs, e.g. 3,5-9 (flagged runs always are)', parseRunList)
     .action(async (o: { out?: string; paper: 'A4' | 'Letter'; cpRuns?: number[] }) => {
-      await withStore(g(), false, (store) => {
+      await withStore(g(), 'read', (store) => {
         const sid = pickSession(store, g());
         const html = D().storedDaySheet(store, sid, { paper: o.paper, appVersion: pkg.version, ...(o.cpRuns ? { cpRuns: o.cpRuns } : {}) });
         writeOut(html, o.out, 'day sheet');
@@ -542,7 +564,8 @@ export async function main(argv: string[] = process.argv): Promise<number> {
       note(`rakeline: input error: ${e.message}`);
       return 1;
     }
-    const msg = e instanceof Error ? e.message : String(e);
+    let msg = e instanceof Error ? e.message : String(e);
+    if (deps && deps.isDiskFull(e) && !(e instanceof deps.StoreFullError)) msg = new deps.StoreFullError(dbPath(program.opts<GlobalOpts>()), msg).message;
     note(`rakeline: ${msg}`);
     if (process.env.RAKELINE_DEBUG && e instanceof Error && e.stack) note(e.stack);
     return 1;

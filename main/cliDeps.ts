@@ -2,7 +2,8 @@
 // exports, the progress bar and the folder watcher — loaded by main/cli.ts on first need
 // (`loadCliDeps`), so that `rakeline --version` and `--help` start without compiling the store,
 // the reduction core and zod (about half of the command line's start-up time).
-export { Store } from './store';
+export { Store, StoreFullError, isDiskFull } from './store';
+export { runsNeedingReduction } from './repair';
 export { importSessionFolder } from './import';
 export { reduceStoredSession, reduceStoredSessionAsync, sessionSummary } from './reduceService';
 export { storedDaySheet } from './daysheetData';

@@ -91,6 +91,8 @@ export interface AuditRowLike {
 export interface ImportReportLike {
   sessionId: number; created: boolean; importedRuns: number[]; unchangedFiles: string[];
   changedFiles: string[]; skippedRuns: number[];
+  /** What the import accepted but ignored or changed (extra columns, underflowed values, …). */
+  warnings: string[];
 }
 
 /** Result type of each channel. */

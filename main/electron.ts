@@ -13,12 +13,16 @@ import {
   createHandlers, dispatch, disposeHandlers, ensureDemoSession, osActor, progressEmitter,
   type Emit, type Handlers, type Paper,
 } from './handlers';
+import { repairOnStart } from './repair';
+import { isOurs, mainWindowPreferences, ORIGIN, printWindowPreferences, requestAllowed, SCHEME } from './windowOptions';
 import { installMenu, type MenuCommand } from './menu';
 import { MIME, SECURITY_HEADERS, resolveStatic } from './static';
 
-const SCHEME = 'rakeline';
-const ORIGIN = `${SCHEME}://app`;
 const APP_URL = `${ORIGIN}/index.html`;
+/** A development build (npm start from the sources): DevTools allowed. Never in a packaged app. */
+const DEV = !app.isPackaged;
+/** webContents ids of the print windows: the only ones allowed to load file:// URLs. */
+const printWindows = new Set<number>();
 
 protocol.registerSchemesAsPrivileged([
   { scheme: SCHEME, privileges: { standard: true, secure: true, supportFetchAPI: true, corsEnabled: true, stream: true, codeCache: true } },
@@ -35,10 +39,6 @@ const demoFolder = app.isPackaged
 let win: BrowserWindow | null = null;
 let store: Store | null = null;
 let handlers: Handlers | null = null;
-
-function isOurs(url: string): boolean {
-  return url === ORIGIN || url.startsWith(`${ORIGIN}/`);
-}
 
 function lockDown(contents: WebContents): void {
   contents.on('will-navigate', (e, url) => {
@@ -86,10 +86,9 @@ async function printPdf(html: string, paper: Paper, target?: string, suggestedNa
   }
   const dir = await mkdtemp(path.join(tmpdir(), 'rakeline-sheet-'));
   const htmlFile = path.join(dir, 'day-sheet.html');
-  const printer = new BrowserWindow({
-    show: false,
-    webPreferences: { javascript: false, sandbox: true, contextIsolation: true, nodeIntegration: false, webSecurity: true },
-  });
+  const printer = new BrowserWindow({ show: false, webPreferences: printWindowPreferences() });
+  const printerId = printer.webContents.id;
+  printWindows.add(printerId);
   try {
     await writeFile(htmlFile, html, 'utf8');
     await printer.loadFile(htmlFile);
@@ -97,6 +96,7 @@ async function printPdf(html: string, paper: Paper, target?: string, suggestedNa
     await writeFile(out, pdf);
     return out;
   } finally {
+    printWindows.delete(printerId);
     printer.destroy();
     await rm(dir, { recursive: true, force: true });
   }
@@ -129,6 +129,7 @@ async function refreshMenu(): Promise<void> {
     watchFolder: status.folder,
     isMac: process.platform === 'darwin',
     appName: app.name,
+    devTools: DEV,
   });
 }
 
@@ -141,17 +142,7 @@ function createWindow(): void {
     show: false,
     title: 'Rakeline',
     backgroundColor: '#f4f6f8',
-    webPreferences: {
-      preload: preloadFile,
-      contextIsolation: true,
-      sandbox: true,
-      nodeIntegration: false,
-      nodeIntegrationInWorker: false,
-      webSecurity: true,
-      allowRunningInsecureContent: false,
-      webviewTag: false,
-      spellcheck: false,
-    },
+    webPreferences: mainWindowPreferences(preloadFile, DEV),
   });
   win.once('ready-to-show', () => win?.show());
   win.on('closed', () => {
@@ -166,9 +157,10 @@ async function boot(): Promise<void> {
   ses.setPermissionRequestHandler((_wc, _permission, callback) => callback(false));
   ses.setPermissionCheckHandler(() => false);
   ses.webRequest.onBeforeRequest((details, callback) => {
-    // No remote content: only our scheme, devtools and local files (the print window).
-    const ok = isOurs(details.url) || details.url.startsWith('devtools://') || details.url.startsWith('file://') || details.url.startsWith('data:') || details.url.startsWith('blob:');
-    callback({ cancel: !ok });
+    // No remote content: our scheme everywhere, file:// for the print window only, devtools://
+    // in a development build only (main/windowOptions.ts).
+    const fromPrintWindow = details.webContentsId !== undefined && printWindows.has(details.webContentsId);
+    callback({ cancel: !requestAllowed(details.url, { fromPrintWindow, dev: DEV }) });
   });
   protocol.handle(SCHEME, serveAppFile);
 
@@ -180,6 +172,7 @@ async function boot(): Promise<void> {
   } catch (e) {
     console.error('rakeline: could not import the demo session:', e);
   }
+  await repairOnStart(store, actor);
   handlers = createHandlers({
     store, mode: 'electron', emit, demoSessionId, actor, pickFolder, printPdf, saveFile,
     onChange: () => void refreshMenu(),

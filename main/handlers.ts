@@ -21,6 +21,7 @@ import { parseRunIndexDetailed } from '../app/log/runIndex';
 import type { Store, RunRow, ImportProgress, ImportReport } from './store';
 import { folderSource, importSession, importSessionFolder, type SessionSource } from './import';
 import { reduceStoredSessionAsync, sessionSummary } from './reduceService';
+import { runsNeedingReduction } from './repair';
 import { zeroRunsFor } from '../app/samples';
 import { storedDaySheet } from './daysheetData';
 import { FLAG_CODES, flagLine } from '../app/flags';
@@ -304,8 +305,10 @@ async function requireDirectory(folder: string): Promise<string> {
 async function reduceAfterImport(
   store: Store, report: ImportReport, actor: string, onProgress?: (p: ImportProgress) => void,
 ): Promise<number> {
-  if (report.importedRuns.length === 0) return 0;
-  const runs = runsAffectedBy(store.listRuns(report.sessionId), report.importedRuns);
+  // This import's runs and the runs they bracket, and any data run an earlier import left without a
+  // current result (its reduction interrupted: main/repair.ts).
+  const affected = report.importedRuns.length ? runsAffectedBy(store.listRuns(report.sessionId), report.importedRuns) : [];
+  const runs = [...new Set([...affected, ...runsNeedingReduction(store, report.sessionId)])].sort((a, b) => a - b);
   if (runs.length === 0) return 0;
   return (await reduceStoredSessionAsync(store, report.sessionId, { runs, actor, onProgress })).results.length;
 }
@@ -339,6 +342,7 @@ export async function readySource(folder: string): Promise<{ source: SessionSour
   const base = folderSource(folder);
   if ((await base.size(SETUP_FILE)) === null || (await base.size(INDEX_FILE)) === null) return null;
   const text = await readFile(path.join(folder, INDEX_FILE), 'utf8');
+  if (text.split('\n').filter((l) => l.trim() !== '').length < 2) return null; // no run line yet
   const idx = parseRunIndexDetailed(text, INDEX_FILE);
   const sizes = new Map<string, number | null>();
   let cut = -1;

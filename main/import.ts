@@ -6,9 +6,9 @@
 // imports read, parse, average and pack the logs on worker threads (main/importPool.ts) while this
 // thread stores them. readSession keeps a whole parsed session in memory (tests, small sources).
 import { createReadStream } from 'node:fs';
-import { stat } from 'node:fs/promises';
+import { realpath, stat } from 'node:fs/promises';
 import { createHash } from 'node:crypto';
-import { join, resolve } from 'node:path';
+import { join, resolve, sep } from 'node:path';
 import type { RawRun, RunInfo, Setup } from '../app/types';
 import { LogError, isLogError } from '../app/log/errors';
 import { parseSetup } from '../app/log/setup';
@@ -16,7 +16,7 @@ import { parseRunIndexDetailed } from '../app/log/runIndex';
 import {
   INDEX_FILE, SETUP_FILE, missingFileError, parseSessionTexts, planRunFiles, type RunFilePlan,
 } from '../app/log/session';
-import type { ImportProgress, ImportReport, ParsedSession, SourceInfo, Store } from './store';
+import { isDiskFull, StoreFullError, type ImportProgress, type ImportReport, type ParsedSession, type SourceInfo, type Store } from './store';
 import { RunFileReader, type PreparedFile } from './runFile';
 import { ImportPool, workersFor } from './importPool';
 import { BufferPool } from '../app/bufferPool';
@@ -33,25 +33,59 @@ export interface SessionSource {
   path?(name: string): string | null;
 }
 
-/** Files of a folder on disk, read in chunks of `chunkSize` bytes. */
+/** A session file that cannot be read where it is named: a symbolic link loop, or a link whose
+ *  target lies outside the session folder. readHead turns it into a LogError naming the index
+ *  line (or the file itself for setup.json and runs.csv). */
+export class SourcePathError extends Error {
+  override name = 'SourcePathError';
+  constructor(readonly file: string, readonly why: string) {
+    super(`${file} ${why}`);
+  }
+}
+
+/** Files of a folder on disk, read in chunks of `chunkSize` bytes. Each name is followed to its
+ *  real path first: a symbolic link loop, or a link that leads out of the folder (to /etc, say),
+ *  is refused (SourcePathError) before anything is read; links inside the folder are followed. */
 export function folderSource(folder: string, chunkSize = 1 << 20): SessionSource {
   const root = resolve(folder);
+  let rootReal: string | null = null;
+  const inside = async (name: string): Promise<string | null> => {
+    rootReal ??= await realpath(root);
+    let real: string;
+    try {
+      real = await realpath(join(root, name));
+    } catch (e) {
+      const code = (e as NodeJS.ErrnoException).code;
+      if (code === 'ENOENT' || code === 'ENOTDIR') return null;
+      if (code === 'ELOOP') throw new SourcePathError(name, 'is a symbolic link loop (a link that leads back to itself)');
+      throw e;
+    }
+    if (real !== rootReal && !real.startsWith(rootReal.endsWith(sep) ? rootReal : rootReal + sep)) {
+      throw new SourcePathError(name, `is a link to ${real}, outside the session folder`);
+    }
+    return real;
+  };
+  const reals = new Map<string, string>();
   return {
     folder: root,
     async size(name) {
+      const real = await inside(name);
+      if (real === null) return null;
       try {
-        const s = await stat(join(root, name));
-        return s.isFile() ? s.size : null;
+        const s = await stat(real);
+        if (!s.isFile()) return null;
+        reals.set(name, real);
+        return s.size;
       } catch (e) {
         if ((e as NodeJS.ErrnoException).code === 'ENOENT' || (e as NodeJS.ErrnoException).code === 'ENOTDIR') return null;
         throw e;
       }
     },
     open(name) {
-      return createReadStream(join(root, name), { highWaterMark: chunkSize });
+      return createReadStream(reals.get(name) ?? join(root, name), { highWaterMark: chunkSize });
     },
     path(name) {
-      return join(root, name);
+      return reals.get(name) ?? join(root, name);
     },
   };
 }
@@ -81,10 +115,24 @@ interface SessionHead {
   warnings: string[];
 }
 
+/** src.size(name), a SourcePathError told as a LogError at `where()`'s place (file, line, column). */
+async function sizeOf(src: SessionSource, name: string, where: () => LogError): Promise<number | null> {
+  try {
+    return await src.size(name);
+  } catch (e) {
+    if (!(e instanceof SourcePathError)) throw e;
+    const at = where();
+    throw new LogError({
+      file: at.file, line: at.line, column: at.column,
+      reason: at.file === name ? `${e.why}; expected a file inside the session folder` : `the file "${name}" ${e.why}; expected a file inside the session folder`,
+    });
+  }
+}
+
 async function readHead(src: SessionSource, onProgress?: (p: ImportProgress) => void): Promise<SessionHead> {
   const sources: SourceInfo[] = [];
   const readText = async (name: string, what: string): Promise<string> => {
-    const size = await src.size(name);
+    const size = await sizeOf(src, name, () => new LogError({ file: name, reason: '' }));
     if (size === null) throw new LogError({ file: name, reason: `the session folder has no ${what} (${name})` });
     if (size > TEXT_LIMIT) throw new LogError({ file: name, reason: `${size} bytes is too large for a ${what} (limit ${TEXT_LIMIT})` });
     const h = createHash('sha256');
@@ -110,7 +158,7 @@ async function readHead(src: SessionSource, onProgress?: (p: ImportProgress) => 
   const plans = planRunFiles(idx.runs, idx.lines);
   const sizes = new Map<string, number>();
   for (const plan of plans) {
-    const s = await src.size(plan.file);
+    const s = await sizeOf(src, plan.file, () => missingFileError(plan));
     if (s === null) throw missingFileError(plan);
     sizes.set(plan.file, s);
   }
@@ -227,6 +275,7 @@ export async function importSession(store: Store, src: SessionSource, opts: Impo
     return report;
   } catch (e) {
     writer.abort();
+    if (isDiskFull(e) && !(e instanceof StoreFullError)) throw new StoreFullError(store.file, e instanceof Error ? e.message : String(e), 'import');
     throw e;
   } finally {
     if (pool) void pool.close();
@@ -287,13 +336,16 @@ async function readOnWorkers(
   };
   let k = 0;
   let broken: { error: unknown } | null = null;
+  let storing = false;
   try {
     const window = 2 * workers + 2;
     for (let j = 0; j < Math.min(window, head.plans.length); j++) start(j);
     for (; k < head.plans.length; k++) {
       const f = await started[k];
       delete started[k];
-      onFile(f);
+      storing = true;
+      onFile(f); // a failure to store (disk full, …) is the import's answer, not the threads'
+      storing = false;
       pool.recycle(packedBuffers(f)); // stored: back to a thread, to pack its next runs into
       if (k + window < head.plans.length) start(k + window);
     }
@@ -301,7 +353,7 @@ async function readOnWorkers(
     await pool.close();
     // Bad input is the import's answer; a worker that could not start or died is not: the rest
     // of the run logs are then read on this thread (progress counted again from there).
-    if (isLogError(e) || k >= head.plans.length) throw e;
+    if (isLogError(e) || storing || k >= head.plans.length) throw e;
     broken = { error: e };
   }
   if (broken === null) return pool;

@@ -41,10 +41,17 @@ type Pending = {
   reject: (e: Error) => void;
 };
 
-function errorOf(e: { name: string; message: string; detail?: Record<string, unknown> }): Error {
-  if (e.name === 'LogError' && e.detail && typeof e.detail.file === 'string') return new LogError(e.detail as unknown as LogErrorDetail);
+/** The error a thread reported, rebuilt whole: a LogError with every field (its reason too) and
+ *  the very message it had there; any other error with its name, message and code. */
+export function errorOf(e: { name: string; message: string; code?: string; detail?: Record<string, unknown> }): Error {
+  if (e.name === 'LogError' && e.detail && typeof e.detail.file === 'string') {
+    const le = new LogError(e.detail as unknown as LogErrorDetail);
+    if (e.message && le.message !== e.message) Object.defineProperty(le, 'message', { value: e.message, enumerable: false, writable: true, configurable: true });
+    return le;
+  }
   const err = new Error(e.message);
   err.name = e.name;
+  if (e.code !== undefined) (err as { code?: string }).code = e.code;
   return err;
 }
 

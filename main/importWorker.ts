@@ -54,7 +54,7 @@ export type WorkerReply =
   | { id: number; kind: 'checkpointed'; report: CheckpointReport }
   | { id: number; kind: 'progress'; bytes: number }
   | { id: number; kind: 'done'; file: import('./runFile').PreparedFile }
-  | { id: number; kind: 'error'; error: { name: string; message: string; detail?: Record<string, unknown> } };
+  | { id: number; kind: 'error'; error: { name: string; message: string; code?: string; detail?: Record<string, unknown> } };
 
 /** Sample buffers reused from one run log to the next, and buffers to pack runs into. */
 const arena = new BufferPool();
@@ -125,6 +125,7 @@ parentPort?.on('message', (job: WorkerJob | CheckpointJob | ReduceJob) => {
     const detail = typeof (err as { toJSON?: () => unknown }).toJSON === 'function'
       ? ((err as unknown as { toJSON: () => Record<string, unknown> }).toJSON())
       : undefined;
-    parentPort!.postMessage({ id: job.id, kind: 'error', error: { name: err.name, message: err.message, detail } } satisfies WorkerReply);
+    const code = typeof (err as { code?: unknown }).code === 'string' ? (err as unknown as { code: string }).code : undefined;
+    parentPort!.postMessage({ id: job.id, kind: 'error', error: { name: err.name, message: err.message, code, detail } } satisfies WorkerReply);
   }
 });

@@ -12,6 +12,8 @@ export interface MenuState {
   watchFolder: string | null;
   isMac: boolean;
   appName: string;
+  /** A development build: the View menu offers DevTools (never in a packaged app). */
+  devTools?: boolean;
 }
 
 /** The menu template (no Electron calls: testable with a mocked electron module). */
@@ -61,7 +63,7 @@ export function menuTemplate(s: MenuState): MenuItemConstructorOptions[] {
     {
       label: 'View',
       submenu: [
-        { role: 'reload' }, { role: 'toggleDevTools' }, { type: 'separator' },
+        { role: 'reload' }, ...(s.devTools ? [{ role: 'toggleDevTools' } as const] : []), { type: 'separator' },
         { role: 'resetZoom' }, { role: 'zoomIn' }, { role: 'zoomOut' }, { type: 'separator' }, { role: 'togglefullscreen' },
       ],
     },

@@ -4,7 +4,7 @@ import { availableParallelism } from 'node:os';
 import type { RunResult, SessionSummary, Settings, Setup, ZeroedRun } from '../app/types';
 import { averageRuns, prepareRuns, reduceRun, summariseSession } from '../app/reduce';
 import { zeroRunsFor } from '../app/samples';
-import type { ImportProgress, Store } from './store';
+import { isDiskFull, StoreFullError, type ImportProgress, type Store } from './store';
 import { ImportPool } from './importPool';
 
 type ReduceOpts = { runs?: number[]; settings?: Partial<Settings>; actor?: string; onProgress?: (p: ImportProgress) => void };
@@ -34,7 +34,15 @@ function reductionInputs(store: Store, sessionId: number, opts: ReduceOpts): { s
 }
 
 function storeResults(store: Store, sessionId: number, results: RunResult[], opts: ReduceOpts): { results: RunResult[]; summary: SessionSummary } {
-  if (results.length) store.saveResults(sessionId, results, opts.actor ?? 'reduce');
+  if (results.length) {
+    try {
+      store.saveResults(sessionId, results, opts.actor ?? 'reduce');
+    } catch (e) {
+      // Nothing of the reduction was stored; the next ingest (or start of the app) redoes it.
+      if (isDiskFull(e)) throw new StoreFullError(store.file, e instanceof Error ? e.message : String(e), 'saving the results');
+      throw e;
+    }
+  }
   return { results, summary: sessionSummary(store, sessionId) };
 }
 

@@ -15,6 +15,7 @@ import { fileURLToPath } from 'node:url';
 import { Store } from './store';
 import { createHandlers, dispatch, disposeHandlers, ensureDemoSession, progressEmitter, type Emit, type Handlers } from './handlers';
 import { encodeWire, decodeWire } from './wire';
+import { repairOnStart } from './repair';
 import { CONTENT_SECURITY_POLICY, SECURITY_HEADERS, MIME, resolveStatic } from './static';
 
 export { CONTENT_SECURITY_POLICY };
@@ -116,6 +117,7 @@ export async function startBrowserServer(opts: BrowserServerOptions): Promise<Br
       actor: 'rakeline', onProgress: progressEmitter(emit, 'demo', opts.progressIntervalMs),
     });
   }
+  await repairOnStart(store, 'rakeline');
   const handlers = createHandlers({
     store, mode: 'browser', emit, demoSessionId,
     progressIntervalMs: opts.progressIntervalMs, watchStabilityMs: opts.watchStabilityMs,

@@ -15,8 +15,9 @@
 // same files is a no-op (SHA-256 of each source file). A run file whose bytes and samples changed is
 // reported in changedFiles and not merged; a runs.csv that only grew by appended lines (live
 // acquisition) is accepted and its new runs are imported.
-import { mkdirSync } from 'node:fs';
-import { dirname, resolve } from 'node:path';
+import { accessSync, constants as fsConstants, copyFileSync, existsSync, mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { basename, dirname, join, resolve } from 'node:path';
 import Database from 'better-sqlite3';
 import {
   CORE_VERSION,
@@ -58,6 +59,9 @@ export interface ImportReport {
   changedFiles: string[];
   /** Runs of the input not stored by this import (already stored, or in a changed file). */
   skippedRuns: number[];
+  /** What the import accepted but ignored or changed: columns not in the setup or the index,
+   *  values too small for a double, samples of runs the index does not place in a file. */
+  warnings: string[];
 }
 export interface ImportProgress {
   phase: 'scan' | 'parse' | 'store' | 'reduce';
@@ -281,6 +285,75 @@ function configure(db: Database.Database): void {
   db.pragma('journal_size_limit = 67108864');
 }
 
+/** Why `path` (a file or folder) cannot be written, or null. Root passes a chmod check, but not a
+ *  read-only mount (EROFS). */
+function notWritable(path: string): string | null {
+  try {
+    accessSync(path, fsConstants.W_OK);
+    return null;
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    if (code === 'EROFS') return 'is on a read-only file system';
+    if (code === 'EACCES' || code === 'EPERM') return 'is not writable (permissions)';
+    return null;
+  }
+}
+
+/** Refuse a database of a newer schema (before anything is written) or one that is not ours. */
+function checkVersion(path: string, db: Database.Database, readOnly = false): void {
+  const v = db.pragma('user_version', { simple: true }) as number;
+  if (v > SCHEMA_VERSION) {
+    throw new StoreVersionError(`${path}: database schema version ${v} is newer than this Rakeline understands (${SCHEMA_VERSION}); use a newer Rakeline (the file was not changed)`);
+  }
+  if (readOnly && v < SCHEMA_VERSION) {
+    throw new StoreVersionError(`${path}: database schema version ${v} is older than this Rakeline's (${SCHEMA_VERSION}); a reading command does not upgrade it: run a writing command (e.g. rakeline ingest) on a writable copy first`);
+  }
+}
+
+/** An error of opening the database, naming the file and what SQLite or the disk said. */
+function storeOpenError(path: string, e: unknown): Error {
+  if (e instanceof StoreVersionError || e instanceof StoreReadOnlyError || e instanceof StoreFullError) return e;
+  const code = (e as { code?: unknown }).code;
+  const msg = e instanceof Error ? e.message : String(e);
+  if (code === 'SQLITE_NOTADB') return new Error(`${path}: not an SQLite database (${msg})`);
+  if (typeof code === 'string' && code.startsWith('SQLITE_READONLY')) return new StoreReadOnlyError(path, `cannot be written (${msg})`);
+  if (isDiskFull(e)) return new StoreFullError(path, msg);
+  if (msg.includes(path)) return e as Error;
+  const out = new Error(`${path}: ${msg}`);
+  (out as { code?: unknown }).code = code;
+  return out;
+}
+
+/** SQLITE_FULL or ENOSPC, however it was wrapped. */
+export function isDiskFull(e: unknown): boolean {
+  const code = (e as { code?: unknown } | null)?.code;
+  if (code === 'SQLITE_FULL' || code === 'ENOSPC') return true;
+  const msg = e instanceof Error ? e.message : String(e);
+  return /database or disk is full|ENOSPC|no space left on device/i.test(msg);
+}
+
+/** A database newer than this program, or older than a reading command can use. */
+export class StoreVersionError extends Error {
+  override name = 'StoreVersionError';
+}
+
+/** A write refused because the database cannot be written (read-only file, folder or medium, or
+ *  a store opened for reading). */
+export class StoreReadOnlyError extends Error {
+  override name = 'StoreReadOnlyError';
+  constructor(readonly file: string, why: string, what?: string) {
+    super(`${what ? `${what}: ` : ''}the database ${file} ${why}; commands that write (ingest, reduce, tap, review, follow) cannot use it, reading ones (sessions, runs, settings, export, sheet) can`);
+  }
+}
+
+/** The disk (or the database's size limit) is full: nothing of the write was kept. */
+export class StoreFullError extends Error {
+  override name = 'StoreFullError';
+  constructor(readonly file: string, detail: string, what?: string) {
+    super(`${what ? `${what}: ` : ''}the disk holding the database ${file} is full (${detail}); nothing of this write was kept — free some space and run the command again`);
+  }
+}
+
 // ---------------------------------------------------------------------------------------------
 
 export class Store {
@@ -292,24 +365,103 @@ export class Store {
     this.db = db;
   }
 
-  /** Open (creating and migrating as needed) the store file. */
-  static open(file: string): Store {
+  /** Opened read-only (reading commands; no write is ever attempted, see open()). */
+  readonly readOnly: boolean = false;
+  /** A private copy read instead of a database on a read-only medium (removed by close()). */
+  private copyDir: string | null = null;
+
+  /**
+   * Open the store file. Writing (the default): created if missing and migrated; a database that
+   * cannot be written is refused at once, naming the file (StoreReadOnlyError). `readOnly`: the
+   * file must exist, nothing is written (no WAL switch, no migration, no statistics cache); a
+   * WAL database on a read-only medium is read from a private copy. Either way a database of a
+   * newer schema is refused before anything is written to it, and a file that is not an SQLite
+   * database is named as such.
+   */
+  static open(file: string, opts: { readOnly?: boolean } = {}): Store {
     const path = resolve(file);
-    mkdirSync(dirname(path), { recursive: true });
-    const db = new Database(path);
+    if (opts.readOnly) return Store.openReadOnly(path);
+    const existed = existsSync(path);
+    if (existed) {
+      const why = notWritable(path);
+      if (why) throw new StoreReadOnlyError(path, why);
+    } else {
+      mkdirSync(dirname(path), { recursive: true });
+      const why = notWritable(dirname(path));
+      if (why) throw new StoreReadOnlyError(path, `its folder ${why}`);
+    }
+    let db: Database.Database;
     try {
+      db = new Database(path);
+    } catch (e) {
+      throw storeOpenError(path, e);
+    }
+    try {
+      checkVersion(path, db);
       configure(db);
       const s = new Store(path, db);
       s.migrate();
       return s;
     } catch (e) {
       db.close();
-      throw e;
+      throw storeOpenError(path, e);
     }
+  }
+
+  private static openReadOnly(path: string): Store {
+    if (!existsSync(path)) throw new Error(`no database at ${path}`);
+    // On a writable folder a read-write connection that never writes: a read-only one would
+    // leave its -wal and -shm files behind when it closes.
+    const writable = !notWritable(path) && !notWritable(dirname(path));
+    const connect = (f: string, readonly = !writable) => {
+      const db = new Database(f, { readonly, fileMustExist: true });
+      try {
+        checkVersion(path, db, true);
+        db.pragma('foreign_keys = ON');
+        db.pragma('busy_timeout = 5000');
+        return db;
+      } catch (e) {
+        db.close();
+        throw e;
+      }
+    };
+    let db: Database.Database;
+    let copyDir: string | null = null;
+    try {
+      try {
+        db = connect(path);
+      } catch (e) {
+        // An older schema on a writable file is upgraded first, as a writing open would.
+        if (!(e instanceof StoreVersionError) || !/is older/.test(e.message) || !writable) throw e;
+        Store.open(path).close();
+        db = connect(path);
+      }
+    } catch (e) {
+      const code = (e as { code?: unknown }).code;
+      // A WAL database needs its -shm index file, which a read-only folder cannot hold: read a
+      // private copy of the database (and its -wal) instead.
+      if (!(typeof code === 'string' && /^SQLITE_(CANTOPEN|IOERR|READONLY)/.test(code) && notWritable(dirname(path)))) throw storeOpenError(path, e);
+      copyDir = mkdtempSync(join(tmpdir(), 'rakeline-readonly-'));
+      try {
+        const copy = join(copyDir, basename(path));
+        copyFileSync(path, copy);
+        if (existsSync(`${path}-wal`)) copyFileSync(`${path}-wal`, `${copy}-wal`);
+        db = connect(copy, true);
+      } catch (e2) {
+        rmSync(copyDir, { recursive: true, force: true });
+        throw storeOpenError(path, e2);
+      }
+    }
+    const s = new Store(path, db);
+    (s as { readOnly: boolean }).readOnly = true;
+    s.copyDir = copyDir;
+    return s;
   }
 
   close(): void {
     if (this.db.open) this.db.close();
+    if (this.copyDir) rmSync(this.copyDir, { recursive: true, force: true });
+    this.copyDir = null;
   }
 
   /** Schema version of the open file (PRAGMA user_version). */
@@ -319,9 +471,7 @@ export class Store {
 
   private migrate(): void {
     const current = this.schemaVersion();
-    if (current > SCHEMA_VERSION) {
-      throw new Error(`${this.file}: database schema version ${current} is newer than this Rakeline understands (${SCHEMA_VERSION}); use a newer Rakeline`);
-    }
+    checkVersion(this.file, this.db);
     this.db.exec('CREATE TABLE IF NOT EXISTS schema_migrations (version INTEGER PRIMARY KEY, name TEXT NOT NULL, applied_at TEXT NOT NULL)');
     for (const m of MIGRATIONS) {
       if (m.version <= current) continue;
@@ -532,7 +682,7 @@ export class Store {
     if (stale.length) {
       const fresh = new Map(stale.map((raw) => [raw.info.run, averageRun(raw, spikeK)]));
       // The cache is refreshed unless an import holds the database (then only computed).
-      if (!this.importing) {
+      if (!this.importing && !this.readOnly) {
         this.db.transaction(() => {
           for (const a of fresh.values()) this.putStats(sessionId, a, spikeK, true);
         }).immediate();
@@ -661,6 +811,7 @@ export class Store {
 
   /** Writes are refused while an import holds the database (they would wait for it, blocking). */
   assertWritable(what: string): void {
+    if (this.readOnly) throw new StoreReadOnlyError(this.file, 'was opened for reading only', what);
     if (this.importing) {
       throw new StoreBusyError(`${what}: an import into this database is in progress; try again when it has finished`);
     }
@@ -828,7 +979,7 @@ export class ImportWriter {
   /** Bytes read so far and in all (kept up to date by the caller, for progress). */
   readonly bytes = { done: 0, total: 0 };
 
-  private readonly report: ImportReport = { sessionId: 0, created: false, importedRuns: [], unchangedFiles: [], changedFiles: [], skippedRuns: [] };
+  private readonly report: ImportReport = { sessionId: 0, created: false, importedRuns: [], unchangedFiles: [], changedFiles: [], skippedRuns: [], warnings: [] };
   private readonly sid: number;
   private readonly at = now();
   private readonly pos: Map<number, number>;
@@ -911,6 +1062,9 @@ export class ImportWriter {
   addFile(f: PreparedFile): void {
     if (this.ended) throw new Error('ImportWriter: addFile() after the import ended');
     if (this.refused) return;
+    // SQLite ends a transaction itself on some errors (a full disk): nothing may then be written
+    // outside it, one statement at a time.
+    if (!this.store.db.inTransaction) throw new Error(`import into ${this.store.file}: the import transaction ended before ${f.name} could be stored; nothing of this import was kept`);
     const { store, sid } = this;
     this.sources.push({ name: f.name, sha256: f.sha256, bytes: f.bytes });
     this.warnings.push(...f.warnings);
@@ -972,6 +1126,7 @@ export class ImportWriter {
     if (this.ended) throw new Error('ImportWriter: finish() after the import ended');
     const r = this.report;
     const index = this.start.index;
+    r.warnings = [...new Set([...warnings, ...this.warnings])];
     try {
       if (this.refused) {
         this.rollback();
@@ -993,7 +1148,7 @@ export class ImportWriter {
         runs: r.importedRuns,
         files: this.sources.filter((s) => !r.changedFiles.includes(s.name)),
         changedFiles: r.changedFiles,
-        warnings: [...warnings, ...this.warnings],
+        warnings: r.warnings,
       });
       this.store.db.exec('COMMIT');
       this.committed = true;

@@ -3,7 +3,7 @@
 import { settingsPatchSchema } from '../main/contract';
 import type { CorrectionMethod, Settings } from '../app/types';
 
-export type NumKey = Exclude<keyof Settings, 'correction' | 'badTaps'>;
+export type NumKey = Exclude<keyof Settings, 'correction' | 'badTaps' | 'contourRule'>;
 
 export interface NumField {
   key: NumKey;
@@ -23,8 +23,9 @@ export const NUM_FIELDS: NumField[] = [
   { key: 'unsteadyThreshold', label: 'Unsteadiness limit', scale: 100, unit: '% std(q)/q', help: 'Flag the run when the dynamic pressure fluctuates more than this.', group: 'checks' },
   { key: 'zeroDriftFraction', label: 'Zero drift limit', scale: 100, unit: '% of q', help: 'Change of a wind-off zero between the runs bracketing a data run.', group: 'checks' },
   { key: 'leakPa', label: 'Leak limit', scale: 1, unit: 'Pa', help: 'A tap whose wind-off zero departs from the median of the taps by more than this is leaking.', group: 'checks' },
-  { key: 'stagnationMargin', label: 'Stagnation margin', scale: 1, unit: 'Cp above 1', help: 'A tap reading Cp > 1 + margin is bad.', group: 'checks' },
-  { key: 'tapOutlierCp', label: 'Tap outlier limit', scale: 1, unit: 'ΔCp', help: 'A tap departing from a fit of its neighbours by more than this is bad.', group: 'checks' },
+  { key: 'tapCheckK', label: 'Tap test factor k', scale: 1, unit: '× combined σ', help: 'A tap is an outlier when it departs from the prediction of its neighbours by more than k times the combined uncertainty of tap and prediction.', group: 'checks' },
+  { key: 'tapCheckMinU', label: 'Tap Cp uncertainty, least', scale: 1, unit: 'in Cp (1σ)', help: 'The tap test never assumes a tap reads Cp better than this (tap hole and position effects).', group: 'checks' },
+  { key: 'stagnationK', label: 'Stagnation check factor', scale: 1, unit: '× σ of the Cp', help: 'The highest Cp of a row above the isentropic stagnation value by more than this many standard uncertainties flags the references (q or p∞); the tap is kept.', group: 'checks' },
   { key: 'machLimit', label: 'Mach limit', scale: 1, unit: 'M', help: 'Flag runs faster than this as compressible.', group: 'checks' },
   { key: 'spanSpreadTol', label: 'Spanwise spread limit', scale: 1, unit: 'in cl', help: 'Spread of row cl across the span that flags poor two-dimensionality.', group: 'checks' },
   { key: 'wallFitResidualCp', label: 'Wall-signature residual limit', scale: 1, unit: 'rms Cp', help: 'Automatic choice uses the wall signature only when its fit leaves at most this rms residual.', group: 'walls' },

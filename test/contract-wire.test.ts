@@ -56,5 +56,9 @@ describe('native menu', () => {
     click(recent[0]);
     expect(sent.pop()).toEqual(['open-recent', '2']);
     for (const role of ['editMenu', 'windowMenu', 'quit']) expect(items.some((i) => i.role === role)).toBe(true);
+    // DevTools only in a development build (issue 12): not without devTools, there with it.
+    expect(items.some((i) => i.role === 'toggleDevTools')).toBe(false);
+    const dev = flat(menuTemplate({ send: () => undefined, recent: [], watching: false, watchFolder: null, isMac: false, appName: 'Rakeline', devTools: true }));
+    expect(dev.some((i) => i.role === 'toggleDevTools')).toBe(true);
   });
 });

@@ -36,8 +36,11 @@ const ours = { senderFrame: { url: 'rakeline://app/index.html' } };
   rec.permissionRequest(wc, 'media', (g) => { granted = g; });
   out.permission = granted;
   out.permissionCheck = rec.permissionCheck(wc, 'notifications');
-  const br = (url) => new Promise((r) => rec.beforeRequest({ url }, (res) => r(res.cancel)));
-  out.cancel = { remote: await br('https://cdn.example/x.js'), ours: await br('rakeline://app/assets/a.js') };
+  const br = (url, webContentsId) => new Promise((r) => rec.beforeRequest({ url, webContentsId }, (res) => r(res.cancel)));
+  out.cancel = {
+    remote: await br('https://cdn.example/x.js'), ours: await br('rakeline://app/assets/a.js'),
+    fileFromMain: await br('file:///etc/passwd', wc.id), fileFromNone: await br('file:///etc/passwd'),
+  };
   const h = rec.protocolHandlers.rakeline;
   const idx = await h(new Request('rakeline://app/index.html'));
   out.index = { status: idx.status, csp: idx.headers.get('content-security-policy'), type: idx.headers.get('content-type'), body: await idx.text() };
@@ -54,7 +57,7 @@ const ours = { senderFrame: { url: 'rakeline://app/index.html' } };
   out.audit = await call(ours, 'audit.list', { sessionId: sid });
   out.pdf = await call(ours, 'daysheet.pdf', { sessionId: sid, paper: 'Letter' });
   const printer = rec.windows[1];
-  out.printer = printer && { webPreferences: printer.opts.webPreferences, printed: printer.webContents.printed, destroyed: printer.destroyed, html: (printer.fileText || '').slice(0, 200) };
+  out.printer = printer && { fileCancelled: printer.fileCancelled, webPreferences: printer.opts.webPreferences, printed: printer.webContents.printed, destroyed: printer.destroyed, html: (printer.fileText || '').slice(0, 200) };
   out.menus = rec.menus;
   out.menuLabels = rec.menu.template.map((m) => m.label || m.role);
   process.stdout.write('\\n@@' + JSON.stringify(out));
@@ -106,7 +109,8 @@ describe('Electron main process glue', () => {
     expect(out.open).toEqual({ action: 'deny' });
     expect(out.permission).toBe(false);
     expect(out.permissionCheck).toBe(false);
-    expect(out.cancel).toEqual({ remote: true, ours: false });
+    // file:// only for the print window (its load below went through), never for the main window
+    expect(out.cancel).toEqual({ remote: true, ours: false, fileFromMain: true, fileFromNone: true });
   });
 
   it('serves the renderer on its scheme with the CSP header, and nothing outside it', () => {
@@ -138,7 +142,8 @@ describe('Electron main process glue', () => {
   it('prints the day sheet to PDF in a hidden script-less window, asking where to save', () => {
     expect(out.pdf.result).toEqual({ path: path.join(dir, 'saved.pdf'), supported: true });
     expect(readFileSync(path.join(dir, 'saved.pdf'), 'utf8')).toMatch(/^%PDF/);
-    expect(out.printer.webPreferences).toMatchObject({ javascript: false, sandbox: true, contextIsolation: true, nodeIntegration: false });
+    expect(out.printer.webPreferences).toMatchObject({ javascript: false, sandbox: true, contextIsolation: true, nodeIntegration: false, devTools: false });
+    expect(out.printer.fileCancelled).toBe(false);
     expect(out.printer.printed).toEqual({ pageSize: 'Letter', printBackground: true });
     expect(out.printer.destroyed).toBe(true);
     expect(out.printer.html).toMatch(/^<!doctype html>/i);

@@ -23,7 +23,7 @@ describe('first import', () => {
     const store = freshStore(dir);
     const parsed = await readSessionFolder(f.dir);
     const rep = store.importParsed(parsed, 'M. Okonkwo');
-    expect(rep).toEqual({ sessionId: 1, created: true, importedRuns: f.index.map((i) => i.run), unchangedFiles: [], changedFiles: [], skippedRuns: [] });
+    expect(rep).toEqual({ sessionId: 1, created: true, importedRuns: f.index.map((i) => i.run), unchangedFiles: [], changedFiles: [], skippedRuns: [], warnings: [] });
     const s = store.getSession(1);
     expect([s.title, s.date, s.model, s.runCount, s.dataRunCount, s.folder]).toEqual(['HAL-S4412 mini test', '2026-11-18', 'HAL-S4412', f.index.length, 4, f.dir]);
     expect(store.getSetup(1)).toEqual(f.setup);

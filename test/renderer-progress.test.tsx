@@ -73,7 +73,7 @@ describe('Intake import', () => {
     let release: (() => void) | null = null;
     let sent: Payload<'sessions.importFiles'> | null = null;
     const report: Results['sessions.importFiles'] = {
-      report: { sessionId: 7, created: true, importedRuns: folder.index.map((r) => r.run), unchangedFiles: [], changedFiles: [], skippedRuns: [] },
+      report: { sessionId: 7, created: true, importedRuns: folder.index.map((r) => r.run), unchangedFiles: [], changedFiles: [], skippedRuns: [], warnings: [] },
       reduced: 3,
     };
     const m = mockApi({

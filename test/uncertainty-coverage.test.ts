@@ -4,7 +4,7 @@
 // stated size, reduced by the app's own reduceRun; the count of runs whose interval holds the exact
 // value is binomial. Each replicate draws its section, angle and tap phase from a pool, so the
 // reduction's own errors (tap resolution, trailing-edge closure) differ from run to run as they do
-// between real models and tap layouts. The bad-tap search is switched off (tapOutlierCp = 10): tap
+// between real models and tap layouts. The bad-tap search is switched off (tapCheckK = 100): tap
 // judgement is tested in test/surface.test.ts; on these sparse exact rows it drops good
 // leading-edge taps, which is a different question from the width of the intervals.
 // Also: JCGM 101:2008 §8 validation of the analytic budget (JCGM 100) against the Monte Carlo
@@ -27,7 +27,7 @@ function coverage(taps: number, alphaAndKq: boolean): Record<'cl' | 'cmc4' | 'cd
   const hits = { cl: 0, cmc4: 0, cd: 0 };
   for (let i = 0; i < REPLICATES; i++) {
     const c = exactCase({ taps, sections, uniform: rng, normal: () => gaussian(rng), alphaAndKq });
-    const settings = resolveSettings(c.setup, { mcDraws: 200, mcSeed: 1000 + i, tapOutlierCp: 10 });
+    const settings = resolveSettings(c.setup, { mcDraws: 200, mcSeed: 1000 + i, tapCheckK: 100 });
     const r = reduceRun(c.setup, c.run, settings);
     for (const k of ['cl', 'cmc4', 'cd'] as const) {
       const iv = r.uncertainty[k]!;
@@ -83,7 +83,7 @@ describe('JCGM 101:2008 §8: the GUM (JCGM 100) interval against the Monte Carlo
     // standard error, √(p(1 − p)/M)/φ(1.96)·u ≈ 0.019·u, is well below δ ≈ 0.05…0.5·u).
     const rng = createRng(4242);
     const c = exactCase({ taps: 48, sections: exactSections(1, rng), uniform: rng, normal: () => gaussian(rng), alphaAndKq: true });
-    const r = reduceRun(c.setup, c.run, resolveSettings(c.setup, { mcDraws: 20000, tapOutlierCp: 10 }));
+    const r = reduceRun(c.setup, c.run, resolveSettings(c.setup, { mcDraws: 20000, tapCheckK: 100 }));
     const b = r.budget!;
     expect(b.k).toBeCloseTo(1.96, 2);
     for (const k of ['cl', 'cmc4', 'cd'] as const) {
@@ -111,7 +111,7 @@ describe('transducer groups: correlated gain, the wind-off zero and the group of
       transducerGroups: [{ id: 'M1', channels: taps, unit: 'Pa', fullScale: 1000, gainPercent: 1, zero: 0, linearityPercentFS: 0.2 }],
     };
     // linearity 0.2 % of 1000 Pa = 2 Pa, the channels' own figure in exactCase, so only the gain differs.
-    const settings = resolveSettings(grouped, { mcDraws: 2000, tapOutlierCp: 10 });
+    const settings = resolveSettings(grouped, { mcDraws: 2000, tapCheckK: 100 });
     const r = reduceRun(grouped, c.run, settings);
     const base = reduceRun(c.setup, c.run, settings);
     const line = r.budget!.lines.find((l) => l.source === 'group M1: gain')!;

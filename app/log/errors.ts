@@ -31,6 +31,8 @@ export class LogError extends Error {
   readonly columnKind?: 'channel' | 'column' | 'field';
   readonly expected?: string;
   readonly found?: string;
+  /** The explanation, when it is not "expected …, found …" (kept so the error can be rebuilt). */
+  readonly reason?: string;
 
   constructor(d: LogErrorDetail) {
     super(LogError.format(d));
@@ -41,6 +43,7 @@ export class LogError extends Error {
     this.columnKind = d.columnKind;
     this.expected = d.expected;
     this.found = d.found;
+    this.reason = d.reason;
   }
 
   static format(d: LogErrorDetail): string {
@@ -66,6 +69,7 @@ export class LogError extends Error {
       columnKind: this.columnKind,
       expected: this.expected,
       found: this.found,
+      reason: this.reason,
     };
   }
 }

@@ -126,5 +126,8 @@ export function parseRunIndexDetailed(text: string, file: string): RunIndexResul
     runs.push(info);
     lines.push(r.line);
   }
+  if (runs.length === 0) {
+    throw new LogError({ file, line: head.line + 1, reason: 'the index has a header but no runs; expected at least one run line' });
+  }
   return { runs, lines, warnings };
 }

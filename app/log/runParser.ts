@@ -62,6 +62,8 @@ const POW10 = [
   1e18, 1e19, 1e20, 1e21, 1e22,
 ];
 const NON_FINITE = /^[+-]?(nan|inf|infinity)$/i;
+/** Smallest positive normal double (2^-1022); smaller values lose digits or become 0. */
+const MIN_NORMAL = 2.2250738585072014e-308;
 const NL = 10;
 const CR = 13;
 const COMMA = 44;
@@ -181,6 +183,7 @@ class Scanner {
       this.carry(nl, 0, 1);
       this.flushPending();
     }
+    this.underflowWarnings();
     if (this.samples === 0) {
       throw new LogError({ file: this.file, line: this.line + 1, reason: 'the file has a header but no samples; expected at least one sample line' });
     }
@@ -316,6 +319,25 @@ class Scanner {
     return decoder.decode(b.subarray(start, j)).trim();
   }
 
+  /** Values too small for a double (read as 0) or only as a subnormal: the first per column and
+   *  a count, reported as warnings by end(). */
+  private readonly underflows = new Map<number, { line: number; text: string; zero: boolean; count: number }>();
+
+  private noteUnderflow(b: Uint8Array, start: number, col: number, lineNo: number, v: number): void {
+    const u = this.underflows.get(col);
+    if (u) u.count++;
+    else this.underflows.set(col, { line: lineNo, text: this.cellText(b, start), zero: v === 0, count: 1 });
+  }
+
+  private underflowWarnings(): void {
+    for (const [col, u] of this.underflows) {
+      const lab = this.label(col);
+      const more = u.count > 1 ? ` (${u.count} such values in this column)` : '';
+      this.warnings.push(`${this.file} line ${u.line}, ${lab.columnKind} ${lab.column}: ${shown(u.text)} is smaller than the smallest double and was read as ${u.zero ? '0' : 'a subnormal number with fewer significant digits'}${more}`);
+    }
+    this.underflows.clear();
+  }
+
   private badCell(b: Uint8Array, start: number, col: number, lineNo: number): never {
     const text = this.cellText(b, start);
     const lab = this.label(col);
@@ -408,6 +430,7 @@ class Scanner {
           } else {
             v = Number(decoder.decode(b.subarray(start, i)));
             if (!Number.isFinite(v)) this.badCell(b, start, col, lineNo);
+            if (m !== 0 && Math.abs(v) < MIN_NORMAL && slot >= 0) this.noteUnderflow(b, start, col, lineNo, v);
           }
           if (slot >= 0) rv[slot] = v;
           else if (slot === RUN) {

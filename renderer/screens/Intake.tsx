@@ -82,7 +82,8 @@ export function Intake({ mode, live, onImported, onOpenSession, setLive }: Intak
     setDone(r);
     const n = r.report.importedRuns.length;
     setStage({ fraction: 1, label: `Imported ${n} run${n === 1 ? '' : 's'}, reduced ${r.reduced}` });
-    notify('info', `Session ${r.report.sessionId}: ${r.report.created ? 'new session' : 'existing session'}, ${n} runs imported, ${r.report.unchangedFiles.length} files unchanged, ${r.reduced} runs reduced.`);
+    const warned = r.report.warnings?.length ? `, ${r.report.warnings.length} warning${r.report.warnings.length === 1 ? '' : 's'} (see below)` : '';
+    notify('info', `Session ${r.report.sessionId}: ${r.report.created ? 'new session' : 'existing session'}, ${n} runs imported, ${r.report.unchangedFiles.length} files unchanged, ${r.reduced} runs reduced${warned}.`);
     onImported(r.report.sessionId);
   };
 
@@ -249,6 +250,15 @@ export function Intake({ mode, live, onImported, onOpenSession, setLive }: Intak
                 {' '}{done.report.changedFiles.length} changed files, {done.report.unchangedFiles.length} unchanged, {done.report.skippedRuns.length} skipped; {done.reduced} runs reduced.
               </p>
               <button type="button" className="btn-primary" onClick={() => onOpenSession(done.report.sessionId)}>Open the Day log</button>
+              {done.report.warnings?.length ? (
+                <div className="import-warnings" role="status" aria-label="Import warnings">
+                  <p className="small">⚠ {done.report.warnings.length} warning{done.report.warnings.length === 1 ? '' : 's'}: imported, but read with these reservations</p>
+                  <ul className="small">
+                    {done.report.warnings.slice(0, 50).map((w, i) => <li key={i}>{w}</li>)}
+                    {done.report.warnings.length > 50 ? <li>… and {done.report.warnings.length - 50} more (all are in the audit trail)</li> : null}
+                  </ul>
+                </div>
+              ) : null}
             </div>
           ) : null}
         </section>

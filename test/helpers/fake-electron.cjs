@@ -23,9 +23,11 @@ Object.assign(app, {
   exit: (code) => { rec.exit = code; },
 });
 
+let nextWebContentsId = 1;
 class WebContents extends EventEmitter {
   constructor() {
     super();
+    this.id = nextWebContentsId++;
     this.sent = [];
     this.windowOpenHandler = null;
   }
@@ -45,7 +47,14 @@ class BrowserWindow extends EventEmitter {
   }
   static getAllWindows() { return rec.windows.filter((w) => !w.destroyed); }
   async loadURL(url) { this.url = url; }
-  async loadFile(file) { this.file = file; this.fileText = require('node:fs').readFileSync(file, 'utf8'); }
+  async loadFile(file) {
+    // The request Electron would make, through the app's filter (file:// only for print windows).
+    const url = require('node:url').pathToFileURL(file).href;
+    this.fileCancelled = rec.beforeRequest ? await new Promise((r) => rec.beforeRequest({ url, webContentsId: this.webContents.id }, (res) => r(res.cancel))) : null;
+    if (this.fileCancelled) throw new Error(`ERR_BLOCKED_BY_CLIENT (${url})`);
+    this.file = file;
+    this.fileText = require('node:fs').readFileSync(file, 'utf8');
+  }
   show() { this.shown = true; }
   isDestroyed() { return this.destroyed; }
   destroy() { this.destroyed = true; }

@@ -155,3 +155,50 @@ export function karmanTrefftz(m: number, n: number, alphaDeg: number, teAngleDeg
 export function joukowski(m: number, n: number, alphaDeg: number): ExactAirfoil {
   return karmanTrefftz(m, n, alphaDeg, 0);
 }
+
+/** A realistic row of `count` taps on an exact section: one tap at the leading edge (upper
+ *  surface), the rest split between the surfaces, spaced by the cosine rule in arc length from the
+ *  leading edge, each surface stopping short of the trailing edge by `gap` of its arc length (taps
+ *  cannot be drilled into a thin trailing edge; common practice, no source). Contour order
+ *  (upper trailing edge → leading edge → lower trailing edge) is not implied: callers sort. */
+export function arcTaps(J: ExactAirfoil, count: number, gap = 0.03, prefix = 'C'): (ExactPoint & { id: string })[] {
+  const N = 20000;
+  const th = new Float64Array(N + 1);
+  const s = new Float64Array(N + 1);
+  let prev = J.at(J.thetaTE + 1e-9);
+  let iLE = 0;
+  for (let k = 0; k <= N; k++) {
+    th[k] = J.thetaTE + 1e-9 + ((2 * Math.PI - 2e-9) * k) / N;
+    const p = J.at(th[k]);
+    if (k) s[k] = s[k - 1] + Math.hypot(p.x - prev.x, p.y - prev.y);
+    if (p.x < J.at(th[iLE]).x) iLE = k;
+    prev = p;
+  }
+  const S = s[N];
+  const sLE = s[iLE];
+  const thetaAt = (sv: number): number => {
+    let lo = 0;
+    let hi = N;
+    while (hi - lo > 1) {
+      const m = (lo + hi) >> 1;
+      if (s[m] <= sv) lo = m;
+      else hi = m;
+    }
+    const f = (sv - s[lo]) / (s[hi] - s[lo] || 1);
+    return th[lo] + f * (th[hi] - th[lo]);
+  };
+  const nU = Math.ceil(count / 2);
+  const nL = count - nU;
+  const out: (ExactPoint & { id: string })[] = [];
+  for (let k = 0; k < nU; k++) {
+    const f = (1 - Math.cos((Math.PI * k) / (nU - 1))) / 2;
+    out.push({ ...J.at(thetaAt(sLE - f * sLE * (1 - gap))), id: `${prefix}U${String(k + 1).padStart(2, '0')}` });
+  }
+  for (let k = 1; k <= nL; k++) {
+    const f = (1 - Math.cos((Math.PI * k) / nL)) / 2;
+    out.push({ ...J.at(thetaAt(sLE + f * (S - sLE) * (1 - gap))), id: `${prefix}L${String(k).padStart(2, '0')}` });
+  }
+  // The leading-edge tap is on the upper surface by construction.
+  out[0] = { ...out[0], surface: 'upper' };
+  return out;
+}

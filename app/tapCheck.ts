@@ -1,0 +1,243 @@
+// Tap judgement on one chordwise row: which taps to trust (REDUCTION.md §3, "Bad taps" and
+// "Stagnation"). Two tests, documented with their settings in docs/TAP-JUDGEMENT.md:
+//
+// 1. Leave-one-out prediction (common practice, no source; the interpolation error estimate is the
+//    usual one of numerical analysis, e.g. Press et al., Numerical Recipes, 3rd ed., §3.2 (memory)).
+//    Each tap is predicted from its neighbours along the contour arc length (the polygon through the
+//    row's taps, upper trailing edge → leading edge → lower trailing edge), never from itself:
+//    - inside the row, the cubic through the two nearest neighbours on each side (where one side has
+//      only one neighbour, the other side gives three);
+//    - at either end of the row (the taps nearest the trailing edge), one-sided: the quadratic
+//      through the three nearest neighbours.
+//    The prediction's own uncertainty has three parts: the neighbours' channel uncertainties
+//    propagated through the interpolation weights (Σ wᵢ² uᵢ²); the interpolation error, estimated as
+//    the largest difference between the prediction and the lower-order predictions that leave out
+//    its outermost node on either side (large where Cp curves sharply or the taps are sparse: the
+//    suction peak and the stagnation point of a sparse leading edge); and the tap-position
+//    uncertainty times the local slope dCp/ds; and a cross-validation term, the larger residual of
+//    the nearest neighbour on either side predicted by the same rule without itself and without
+//    the tap judged (where the neighbours cannot be predicted from theirs, as at a sparse leading
+//    edge, neither can the tap; a bad tap does not enter these predictions, so it cannot hide
+//    behind them). A tap is suspect when
+//        |Cp − prediction| > k · √(u_tap² + u_prediction²),
+//    k = Settings.tapCheckK. The worst suspect is dropped and the row judged again (a bad tap drags
+//    its neighbours' predictions, and inflates their uncertainty, but never as far as itself), at
+//    most a quarter of the row.
+// 2. Stagnation and the references. No tap can read more than the isentropic stagnation value
+//    Cp_stag = (2/(γM²))[(1 + (γ−1)M²/2)^{γ/(γ−1)} − 1] (the isentropic total-to-static
+//    pressure ratio of NACA Report 1135 with Cp's definition, memory; ≈ 1 + M²/4 + M⁴/40). A row's highest reading above Cp_stag by more than
+//    Settings.stagnationK times its uncertainty (channel and references) points at the references,
+//    not at the tap: q_u low by about 1 − Cp_stag/Cp, or the static reference p∞ reading
+//    (Cp − Cp_stag)·q low. The tap is kept; the run gets a reference flag. Only a tap that stands out
+//    from its own neighbours (test 1) is a tap problem.
+
+/** γ of air (REDUCTION.md §1). */
+const GAMMA = 1.4;
+
+/** Isentropic stagnation pressure coefficient at free-stream Mach number M (NACA Report 1135,
+ *  memory): (2/(γM²))[(1 + (γ−1)M²/2)^{γ/(γ−1)} − 1]; 1 at M = 0 (the incompressible limit). */
+export function cpStagnation(M: number, gamma = GAMMA): number {
+  if (!Number.isFinite(M) || M < 0) throw new Error(`cpStagnation: Mach number must be finite and ≥ 0 (got ${M})`);
+  if (M < 1e-6) return 1 + (M * M) / 4;
+  const m2 = M * M;
+  return (2 / (gamma * m2)) * ((1 + ((gamma - 1) / 2) * m2) ** (gamma / (gamma - 1)) - 1);
+}
+
+/** A tap as the judgement needs it: position on the row's contour, Cp and the standard
+ *  uncertainty of its own Cp (its channel; the references are common to the row). */
+export interface JudgedTap {
+  id: string;
+  x: number;
+  y: number;
+  cp: number;
+  u: number;
+}
+
+/** The leave-one-out verdict on one tap. */
+export interface TapVerdict {
+  id: string;
+  cp: number;
+  /** Cp predicted from the neighbours. */
+  predicted: number;
+  /** cp − predicted. */
+  residual: number;
+  /** Combined standard uncertainty √(u_tap² + u_prediction²). */
+  u: number;
+  /** |residual| / u. */
+  score: number;
+}
+
+export interface OutlierOptions {
+  /** Coverage factor k: suspect when |residual| > k·u. */
+  k: number;
+  /** Standard uncertainty of a tap's position along the contour (in chords). */
+  positionU?: number;
+  /** At most this fraction of the row is dropped (default ¼). */
+  maxFraction?: number;
+}
+
+/** Fewest taps a row needs to be judged (the test is built and checked for 12–200 taps a row). */
+export const TAP_CHECK_MIN_ROW = 12;
+
+function lagrange(s: ArrayLike<number>, f: ArrayLike<number>, idx: readonly number[], at: number, w?: number[]): number {
+  let sum = 0;
+  for (let a = 0; a < idx.length; a++) {
+    let l = 1;
+    for (let b = 0; b < idx.length; b++) if (b !== a) l *= (at - s[idx[b]]) / (s[idx[a]] - s[idx[b]]);
+    if (w) w[a] = l;
+    sum += l * f[idx[a]];
+  }
+  return sum;
+}
+
+/** Arc length along the polygon through the chain. */
+function arcLength(chain: readonly JudgedTap[]): Float64Array {
+  const s = new Float64Array(chain.length);
+  for (let i = 1; i < chain.length; i++) {
+    s[i] = s[i - 1] + Math.hypot(chain[i].x - chain[i - 1].x, chain[i].y - chain[i - 1].y);
+  }
+  return s;
+}
+
+/** The verdict on chain[k] from its neighbours (see the module comment); null when the tap has too
+ *  few distinct neighbours to be predicted. */
+export function predictTap(chain: readonly JudgedTap[], k: number, positionU = 0, s: ArrayLike<number> = arcLength(chain)): TapVerdict | null {
+  const own = predictCore(chain, k, positionU, s, -1);
+  if (!own) return own;
+  // Cross-validation: how well the nearest neighbour on each side is predicted by the same rule
+  // without itself and without tap k. Where the neighbours cannot be predicted (a sparse leading
+  // edge), tap k cannot be either; a bad tap k does not enter these predictions.
+  let cv = 0;
+  for (const j of [own.left, own.right]) {
+    if (j < 0) continue;
+    const vj = predictCore(chain, j, positionU, s, k);
+    if (vj) cv = Math.max(cv, Math.abs(vj.residual));
+  }
+  const u = Math.sqrt(own.u * own.u + cv * cv);
+  return { id: own.id, cp: own.cp, predicted: own.predicted, residual: own.residual, u, score: u > 0 ? Math.abs(own.residual) / u : Infinity };
+}
+
+function predictCore(
+  chain: readonly JudgedTap[], k: number, positionU: number, s: ArrayLike<number>, skip: number,
+): (TapVerdict & { left: number; right: number }) | null {
+  const n = chain.length;
+  const cp = chain.map((t) => t.cp);
+  const distinct = (i: number) => i !== skip && Math.abs(s[i] - s[k]) > 1e-9;
+  const left: number[] = [];
+  const right: number[] = [];
+  for (let i = k - 1; i >= 0 && left.length < 3; i--) if (distinct(i)) left.push(i);
+  for (let i = k + 1; i < n && right.length < 3; i++) if (distinct(i)) right.push(i);
+  let nodes: number[];
+  let alternatives: number[][];
+  if (!left.length || !right.length) {
+    const side = left.length ? left : right; // nearest first
+    if (side.length < 3) return null;
+    nodes = side.slice(0, 3);
+    alternatives = [side.slice(0, 2)];
+  } else {
+    let nl = Math.min(2, left.length);
+    let nr = Math.min(2, right.length);
+    if (nl + nr < 4) {
+      if (nl < 2) nr = Math.min(4 - nl, right.length);
+      else nl = Math.min(4 - nr, left.length);
+    }
+    if (nl + nr < 3) return null;
+    const l = left.slice(0, nl);
+    const r = right.slice(0, nr);
+    nodes = [...l, ...r];
+    // Lower-order predictions without the outermost node on either side.
+    alternatives = [[...l.slice(0, -1), ...r], [...l, ...r.slice(0, -1)]].filter((set) => set.length >= 2);
+  }
+  // Nodes of equal arc length (taps at one point) would make the polynomial singular.
+  for (let a = 0; a < nodes.length; a++) {
+    for (let b = a + 1; b < nodes.length; b++) if (Math.abs(s[nodes[a]] - s[nodes[b]]) < 1e-9) return null;
+  }
+  const w: number[] = [];
+  const predicted = lagrange(s, cp, nodes, s[k], w);
+  let noise = 0;
+  for (let a = 0; a < nodes.length; a++) noise += w[a] * w[a] * chain[nodes[a]].u ** 2;
+  let model = 0;
+  for (const set of alternatives) model = Math.max(model, Math.abs(lagrange(s, cp, set, s[k]) - predicted));
+  let pos = 0;
+  if (positionU > 0) {
+    const h = 1e-4 * Math.max(1e-6, Math.abs(s[nodes[0]] - s[k]));
+    const slope = (lagrange(s, cp, nodes, s[k] + h) - lagrange(s, cp, nodes, s[k] - h)) / (2 * h);
+    pos = slope * positionU;
+  }
+  const u = Math.sqrt(chain[k].u ** 2 + noise + model * model + pos * pos);
+  const residual = chain[k].cp - predicted;
+  return {
+    id: chain[k].id, cp: chain[k].cp, predicted, residual, u, score: u > 0 ? Math.abs(residual) / u : Infinity,
+    left: left.length ? left[0] : -1, right: right.length ? right[0] : -1,
+  };
+}
+
+/** Every tap's verdict on a chain in contour order (null where a tap cannot be predicted). */
+export function judgeChain(chain: readonly JudgedTap[], positionU = 0): (TapVerdict | null)[] {
+  const s = arcLength(chain);
+  return chain.map((_, k) => predictTap(chain, k, positionU, s));
+}
+
+/** The outliers of one row, in the order they were found (worst first), each with its verdict at
+ *  the moment it was dropped. `chain` is the row's judged taps in contour order. */
+export function findRowOutliers(chain: readonly JudgedTap[], o: OutlierOptions): TapVerdict[] {
+  if (chain.length < TAP_CHECK_MIN_ROW) return [];
+  const active = [...chain];
+  const found: TapVerdict[] = [];
+  const most = Math.floor(chain.length * (o.maxFraction ?? 0.25));
+  while (active.length >= TAP_CHECK_MIN_ROW - 2 && found.length < most) {
+    const verdicts = judgeChain(active, o.positionU ?? 0);
+    let worst = -1;
+    for (let k = 0; k < verdicts.length; k++) {
+      const v = verdicts[k];
+      if (v && v.score > o.k && (worst < 0 || v.score > verdicts[worst]!.score)) worst = k;
+    }
+    if (worst < 0) break;
+    found.push(verdicts[worst]!);
+    active.splice(worst, 1);
+  }
+  return found;
+}
+
+/** What a row's highest reading says about the references. */
+export interface ReferenceFinding {
+  row: string;
+  id: string;
+  cp: number;
+  cpStag: number;
+  M: number;
+  /** Standard uncertainty of that Cp (channel and references). */
+  u: number;
+  /** If q alone is wrong: the measured q is low by this fraction, 1 − Cp_stag/Cp. */
+  qLow: number;
+  /** If p∞ alone is wrong: it reads low by this much, Pa, (Cp − Cp_stag)·q. */
+  staticLowPa: number;
+}
+
+/** The reference check on one row's good taps (see the module comment): the highest reading
+ *  against Cp_stag(M). `uOf` gives the standard uncertainty of a tap's Cp, channel and references. */
+export function referenceCheck(
+  row: string,
+  taps: readonly { id: string; cp: number }[],
+  uOf: (id: string, cp: number) => number,
+  M: number,
+  q: number,
+  k: number,
+): ReferenceFinding | null {
+  if (!taps.length) return null;
+  let top = taps[0];
+  for (const t of taps) if (t.cp > top.cp) top = t;
+  const cpStag = cpStagnation(M);
+  const u = uOf(top.id, top.cp);
+  if (!(top.cp - cpStag > k * u)) return null;
+  return {
+    row,
+    id: top.id,
+    cp: top.cp,
+    cpStag,
+    M,
+    u,
+    qLow: 1 - cpStag / top.cp,
+    staticLowPa: (top.cp - cpStag) * q,
+  };
+}
