@@ -10,6 +10,7 @@ import type * as CliDeps from './cliDeps';
 import pkg from '../package.json';
 import { isLogError } from '../app/log/errors';
 import { flagsLine } from '../app/flags';
+import { staleRunNumbers } from '../app/stale';
 import { DEFAULT_SETTINGS, type Flag, type RunResult, type Settings } from '../app/types';
 
 export const DEFAULT_DB = 'rakeline.sqlite';
@@ -188,10 +189,14 @@ export function runsTable(rows: RunRow[]): string {
     const x = r.result;
     const t = (/T(\d{2}:\d{2}:\d{2})/.exec(r.time)?.[1] ?? r.time).padEnd(8);
     const status = r.kind === 'zero' ? 'wind-off zero' : x ? flagsLine(x.flags, 'short') : 'not reduced';
-    const review = r.review ? ` [${r.review.verdict} by ${r.review.actor}]` : '';
+    const review = `${r.review ? ` [${r.review.verdict} by ${r.review.actor}]` : ''}${r.stale ? ' [stale]' : ''}`;
     return `${String(r.run).padStart(4)} ${r.kind.padEnd(4)} ${t} ${n(r.alphaDeg, 2, 6)} ${n(x?.alphaCorrDeg, 2, 6)} ${n(x?.q, 1, 7)} ${n(x ? x.Re / 1e6 : undefined, 3, 6)} ${n(x?.cl, 4, 7)} ${n(x?.clMom, 4, 7)} ${n(x?.cd, 5, 8)} ${n(x?.cmc4, 4, 7)}  ${status}${review}`;
   });
-  return [head, ...lines].join('\n');
+  const stale = staleRunNumbers(rows);
+  const note = stale.length
+    ? [`${stale.length} stale result(s), reduced with other settings, bad taps or zeros than the session's now: runs ${stale.join(", ")} (\`reduce --stale\` re-reduces them)`]
+    : [];
+  return [head, ...lines, ...note].join('\n');
 }
 
 /** One line for a reduced run (used by `reduce` and `follow`). */
@@ -402,7 +407,8 @@ Examples:
     .option('--runs <list>', 'runs to reduce, e.g. 3,5-9', parseRunList)
     .option('--set <key=value>', 'reduction setting for this reduction, repeatable (e.g. liftTolAbs=0.03, mcDraws=200, badTaps=C3,C4)', parseSetting)
     .option('--save', 'keep the --set values as the session settings (audited)')
-    .action(async (o: { runs?: number[]; set?: Partial<Settings>; save?: boolean }) => {
+    .option('--stale', 'reduce only the stale runs (reduced with other settings, bad taps or zeros than the session\'s now)')
+    .action(async (o: { runs?: number[]; set?: Partial<Settings>; save?: boolean; stale?: boolean }) => {
       await withStore(g(), 'write', async (store) => {
         const sid = pickSession(store, g());
         let settings = o.set;
@@ -410,12 +416,19 @@ Examples:
           store.updateSettings(sid, settings, actorOf(g()), 'rakeline reduce --save');
           settings = undefined;
         }
+        if (o.stale && o.runs) throw new UsageError('reduce: give either --runs or --stale, not both');
         if (o.runs) {
           const known = new Set(store.listRuns(sid).map((r) => r.run));
           const missing = o.runs.filter((r) => !known.has(r));
           if (missing.length) throw new InputError(`session ${sid} has no run(s) ${missing.join(', ')}`);
         }
-        await reduceAndTell(store, sid, g(), { runs: o.runs, settings });
+        const runs = o.stale ? D().staleRuns(store, sid) : o.runs;
+        if (o.stale && !runs?.length) return out(`session ${sid}: no stale results`);
+        await reduceAndTell(store, sid, g(), { runs, settings });
+        const nowStale = settings ? D().staleRuns(store, sid) : [];
+        if (nowStale.length) {
+          out(`note: ${nowStale.length} result(s) now differ from the session's settings and are marked stale (runs ${D().runRanges(nowStale)}); --save keeps --set values as the session's settings`);
+        }
       });
     });
 
@@ -475,11 +488,13 @@ Examples:
     .description('list the runs with their latest coefficients and flags')
     .addOption(new Option('--format <format>', 'output format').choices(['table', 'csv', 'json']).default('table'))
     .option('--flagged', 'only runs with flags')
-    .action(async (o: { format: string; flagged?: boolean }) => {
+    .option('--stale', 'only runs whose result is stale')
+    .action(async (o: { format: string; flagged?: boolean; stale?: boolean }) => {
       await withStore(g(), 'read', (store) => {
         const sid = pickSession(store, g());
-        let rows = store.listRuns(sid);
+        let rows = D().listRunsMarked(store, sid);
         if (o.flagged) rows = rows.filter((r) => r.result && r.result.flags.length);
+        if (o.stale) rows = rows.filter((r) => r.stale);
         if (o.format === 'json') return out(JSON.stringify(rows, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2));
         if (o.format === 'csv') return void process.stdout.write(D().exportResultsCsv(rows, store.getSetup(sid), store.latestResults(sid)));
         out(runsTable(rows));
@@ -503,7 +518,7 @@ Examples:
         const sid = pickSession(store, g());
         const text = o.format === 'json'
           ? D().exportResultsJson(store, sid)
-          : D().exportResultsCsv(store.listRuns(sid), store.getSetup(sid), store.latestResults(sid));
+          : D().exportResultsCsv(D().listRunsMarked(store, sid), store.getSetup(sid), store.latestResults(sid));
         writeOut(text, o.out, `${o.format.toUpperCase()} export`);
       });
     });

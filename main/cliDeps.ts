@@ -8,6 +8,8 @@ export { importSessionFolder } from './import';
 export { reduceStoredSession, reduceStoredSessionAsync, sessionSummary } from './reduceService';
 export { storedDaySheet } from './daysheetData';
 export { exportResultsCsv, exportResultsJson } from './export';
+export { listRunsMarked, staleRuns } from './stale';
+export { runRanges } from './daysheet';
 export { runsAffectedBy } from './handlers';
 export { settingsPatchSchema } from '../app/log/schema';
 export { correctedMomentumCl } from '../app/reduce';

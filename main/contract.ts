@@ -7,6 +7,7 @@ import { settingsPatchSchema } from '../app/log/schema';
 import type {
   Flag, RunResult, SessionSummary, Settings, Setup, RawRun, RunInfo, ZeroedRun,
 } from '../app/types';
+import type { StaleMark } from '../app/stale';
 
 const sessionId = z.number().int().positive();
 const runNo = z.number().int().nonnegative();
@@ -38,8 +39,8 @@ export const channels = {
   'runs.get': z.object({ sessionId, run: runNo }).strict(),
   /** What the renderer's worker needs to re-reduce one run locally. */
   'runs.reductionInput': z.object({ sessionId, run: runNo }).strict(),
-  /** Reduce (all, or the listed runs) in main and store. */
-  'runs.reduce': z.object({ sessionId, runs: z.array(runNo).max(100000).optional(), taskId: z.string().max(64).optional() }).strict(),
+  /** Reduce (all, the listed runs, or with `stale: true` the stale runs) in main and store. */
+  'runs.reduce': z.object({ sessionId, runs: z.array(runNo).max(100000).optional(), stale: z.literal(true).optional(), taskId: z.string().max(64).optional() }).strict(),
   /** Store results the worker computed (after a tap override, say). Main re-validates the run
    *  numbers and stores them as a new reduction; history is kept. */
   'runs.saveResults': z.object({ sessionId, results: z.array(z.record(z.string(), z.unknown())).min(1).max(100000) }).strict(),
@@ -84,6 +85,8 @@ export interface RunRowLike {
     flags: Flag[]; alphaCorrDeg: number;
   };
   review: null | { verdict: 'accepted' | 'rejected'; comment: string; actor: string; at: string };
+  /** Why the latest result is stale (app/stale.ts); null or absent when it is current. */
+  stale?: StaleMark | null;
 }
 export interface AuditRowLike {
   id: number; at: string; actor: string; action: string; sessionId: number; run: number | null; detail: unknown;
@@ -176,4 +179,4 @@ export class ContractFailure extends Error {
 }
 
 // Re-exported so the renderer needs one import for the contract's types (no Node modules here).
-export type { Flag, RunResult, SessionSummary, Settings, Setup, RawRun, RunInfo, ZeroedRun };
+export type { Flag, RunResult, SessionSummary, Settings, Setup, RawRun, RunInfo, ZeroedRun, StaleMark };

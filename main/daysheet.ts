@@ -336,6 +336,7 @@ function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Set
 cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl with V and cl corrected.${args.results?.length ? ' Small figures under a value: half the width of its 95 % Monte Carlo coverage interval (JCGM 101:2008), same basis as the value.' : ''}</p>`;
 }
 
+
 // ---------------------------------------------------------------------------------------------
 // Plots
 
@@ -633,7 +634,12 @@ export function daySheetHtml(args: DaySheetArgs): string {
   const settings: Settings = args.settings ?? { ...DEFAULT_SETTINGS, ...setup.settings };
   const flaggedCount = dataRuns.filter((r) => r.result?.flags.length).length;
   const rejectedCount = dataRuns.filter((r) => r.review?.verdict === 'rejected').length;
-  const stale = new Set((args.results ?? []).filter((r) => settingsDifferences(r.settings, settings).length).map((r) => r.run));
+  // Stale runs: the rows' marks (app/stale.ts: settings, bad taps, zeros), and any result whose
+  // settings differ from those printed here.
+  const stale = new Set([
+    ...(args.results ?? []).filter((r) => settingsDifferences(r.settings, settings).length).map((r) => r.run),
+    ...args.runs.filter((r) => r.stale).map((r) => r.run),
+  ]);
   const common = new Set(commonFlags(args.runs).map((g) => flagKey(g.flag)));
   const fact = (k: string, v: string) => `<div><dt>${escapeHtml(k)}</dt><dd>${escapeHtml(v)}</dd></div>`;
   const facts = [

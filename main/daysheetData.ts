@@ -2,6 +2,7 @@
 // mode and the command line, so the three print the same sheet.
 import type { Store } from './store';
 import { sessionSummary } from './reduceService';
+import { listRunsMarked } from './stale';
 import { daySheetHtml, type DaySheetArgs, type TapNote } from './daysheet';
 
 /** Tap overrides with the reasons given, oldest first, from the audit trail. */
@@ -31,7 +32,7 @@ export function daySheetArgs(store: Store, sessionId: number, o: SheetOptions): 
   return {
     session: store.getSession(sessionId),
     setup: store.getSetup(sessionId),
-    runs: store.listRuns(sessionId),
+    runs: listRunsMarked(store, sessionId),
     summary: sessionSummary(store, sessionId),
     paper: o.paper,
     generatedAt: o.generatedAt ?? new Date().toISOString(),

@@ -6,6 +6,8 @@ import { sessionSummary } from './reduceService';
 import type { RunResult, Setup } from '../app/types';
 import { CORE_VERSION } from '../app/types';
 import { flagLine } from '../app/flags';
+import { staleLine } from '../app/stale';
+import { listRunsMarked } from './stale';
 
 /** Columns of the results CSV, in order (units after the last underscore group: _deg, _Pa, _m_s, _m2_s). */
 export const RESULT_CSV_COLUMNS = [
@@ -14,7 +16,7 @@ export const RESULT_CSV_COLUMNS = [
   'gamma_pressure_m2_s', 'gamma_momentum_m2_s', 'gamma_wall_m2_s',
   'cl_pressure_lo95', 'cl_pressure_hi95', 'cd_wake_lo95', 'cd_wake_hi95',
   'correction_method', 'eps', 'eps_classical', 'eps_wall_signature', 'eps_maskell', 'wall_fit_residual_cp',
-  'baro_Pa', 'temperature_C', 'humidity_pct', 'flag_codes', 'flags', 'review', 'source_file',
+  'baro_Pa', 'temperature_C', 'humidity_pct', 'flag_codes', 'flags', 'review', 'stale', 'source_file',
 ] as const;
 
 /** A number with 8 significant digits; empty for missing/NaN (a CSV reader then sees no value). */
@@ -63,7 +65,7 @@ export function exportResultsCsv(runs: RunRow[], setup: Setup, results?: RunResu
       num(row.baro), num(row.temperatureC), num(row.humidity),
       csvText(flags.map((x) => x.code).join(';')),
       csvText(flags.map((x) => flagLine(x, 'reason')).join(' | ')),
-      csvText(review), csvText(row.file ?? ''),
+      csvText(review), csvText(staleLine(row.stale)), csvText(row.file ?? ''),
     ];
     lines.push(cells.join(','));
   }
@@ -73,7 +75,7 @@ export function exportResultsCsv(runs: RunRow[], setup: Setup, results?: RunResu
 /** The whole session as one JSON document (NaN becomes null). */
 export function exportResultsJson(store: Store, sessionId: number): string {
   const session = store.getSession(sessionId);
-  const runs = store.listRuns(sessionId).map((row) => ({
+  const runs = listRunsMarked(store, sessionId).map((row) => ({
     run: row.run,
     kind: row.kind,
     time: row.time,
@@ -83,6 +85,7 @@ export function exportResultsJson(store: Store, sessionId: number): string {
     humidity: row.humidity,
     file: row.file,
     review: row.review,
+    stale: row.stale ?? null,
     latest: row.result ? { resultId: row.result.resultId, reducedAt: row.result.reducedAt } : null,
     result: row.kind === 'data' ? store.latestResult(sessionId, row.run) : null,
   }));

@@ -24,6 +24,7 @@ import { reduceStoredSessionAsync, sessionSummary } from './reduceService';
 import { runsNeedingReduction } from './repair';
 import { zeroRunsFor } from '../app/samples';
 import { storedDaySheet } from './daysheetData';
+import { listRunsMarked, staleMarks, staleRuns, withStale } from './stale';
 import { FLAG_CODES, flagLine } from '../app/flags';
 import { exportResultsCsv, exportResultsJson } from './export';
 
@@ -527,9 +528,9 @@ export function createHandlers(ctx: HandlerContext): Handlers {
         await rm(dir, { recursive: true, force: true });
       }
     },
-    'runs.list': async ({ sessionId }) => store.listRuns(sessionId),
+    'runs.list': async ({ sessionId }) => listRunsMarked(store, sessionId),
     'runs.get': async ({ sessionId, run }) => ({
-      row: store.getRun(sessionId, run),
+      row: withStale([store.getRun(sessionId, run)], staleMarks(store, sessionId))[0],
       result: store.latestResult(sessionId, run),
       history: store.resultHistory(sessionId, run),
     }),
@@ -543,8 +544,11 @@ export function createHandlers(ctx: HandlerContext): Handlers {
       if (!zeroed) fail('not-found', `Run ${run} of session ${sessionId} has no stored samples.`);
       return { setup, settings, zeroed };
     },
-    'runs.reduce': async ({ sessionId, runs, taskId }) => {
+    'runs.reduce': async ({ sessionId, runs: listed, stale, taskId }) => {
       store.getSession(sessionId);
+      if (stale && listed?.length) fail('validation', 'Invalid payload for "runs.reduce": give either runs or stale, not both');
+      const runs = stale ? staleRuns(store, sessionId) : listed;
+      if (stale && !runs?.length) return { reduced: 0, summary: sessionSummary(store, sessionId) };
       if (runs?.length) {
         const kinds = new Map(store.listRuns(sessionId).map((r) => [r.run, r.kind]));
         const bad = runs.find((r) => kinds.get(r) !== 'data');
@@ -605,7 +609,7 @@ export function createHandlers(ctx: HandlerContext): Handlers {
       const setup = store.getSetup(sessionId);
       const base = sessionTitleSlug(sessionId);
       if (format === 'csv') {
-        const text = exportResultsCsv(store.listRuns(sessionId), setup, store.latestResults(sessionId));
+        const text = exportResultsCsv(listRunsMarked(store, sessionId), setup, store.latestResults(sessionId));
         return { text, suggestedName: `${base}-results.csv`, mime: 'text/csv' };
       }
       return { text: exportResultsJson(store, sessionId), suggestedName: `${base}-results.json`, mime: 'application/json' };

@@ -26,6 +26,7 @@ import {
 import { averageRun } from '../app/samples';
 import { polarIntervals, correctedMomentumCl, resolveSettings } from '../app/reduce';
 import { settingsPatchSchema } from '../app/log/schema';
+import type { StaleMark } from '../app/stale';
 import { INDEX_FILE, SETUP_FILE } from '../app/log/session';
 import { prepareRun, type PreparedFile, type PreparedRun } from './runFile';
 import { decodeSamples } from './sampleCodec';
@@ -46,6 +47,8 @@ export interface RunRow {
     cd: number; cdp: number; cmc4: number; gammaPressure: number; gammaMomentum: number; flags: Flag[]; alphaCorrDeg: number;
   };
   review: null | { verdict: 'accepted' | 'rejected'; comment: string; actor: string; at: string };
+  /** Set by main/stale.ts (withStale): why the latest result is stale, null when current. */
+  stale?: StaleMark | null;
 }
 export interface AuditRow { id: number; at: string; actor: string; action: string; sessionId: number; run: number | null; detail: unknown }
 export interface ImportReport {
@@ -912,6 +915,20 @@ export class Store {
       | { result_json: string }
       | undefined;
     return r ? decodeJson<RunResult>(r.result_json) : null;
+  }
+
+  /** What each data run's latest result was computed from (its settings and when it was reduced)
+   *  and when each run was stored: the inputs of the stale rule (app/stale.ts via main/stale.ts). */
+  reductionBasis(sessionId: number): { results: Map<number, { settings: Partial<Settings>; reducedAt: string }>; storedAt: Map<number, string | null> } {
+    this.assertSession(sessionId);
+    const res = this.db.prepare('SELECT run, settings_json, reduced_at FROM latest_reductions WHERE session_id = ?').all(sessionId) as
+      { run: number; settings_json: string; reduced_at: string }[];
+    const stored = this.db.prepare('SELECT r.run, s.imported_at FROM runs r LEFT JOIN source_files s ON s.id = r.source_id WHERE r.session_id = ?').all(sessionId) as
+      { run: number; imported_at: string | null }[];
+    return {
+      results: new Map(res.map((r) => [r.run, { settings: decodeJson<Partial<Settings>>(r.settings_json), reducedAt: r.reduced_at }])),
+      storedAt: new Map(stored.map((r) => [r.run, r.imported_at])),
+    };
   }
 
   /** Latest result of every reduced run, index order (optional extra). */

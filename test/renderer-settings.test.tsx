@@ -2,6 +2,7 @@
 // Session settings: typed values are checked against the contract's ranges (shown in the form's
 // own units), only changed fields are sent, and a re-reduction is offered after saving.
 import { afterEach, describe, expect, it } from 'vitest';
+import { useState } from 'react';
 import { DEFAULT_SETTINGS, type Settings } from '../app/types';
 import { checkForm, formFromSettings } from '../renderer/settingsForm';
 import { SessionSettings } from '../renderer/screens/SessionSettings';
@@ -66,10 +67,16 @@ describe('Session settings screen', () => {
     });
     const data: SessionData = { session: SESSION, setup: mini.setup, settings: stored, runs: mini.rows, summary: mini.summary };
     let reloads = 0;
+    // Reloading after the save brings the rows back marked stale, as runs.list does (main/stale.ts).
+    const staleRows = mini.rows.map((r) => (r.result ? { ...r, stale: { reasons: ['liftTolAbs was 0.02, now 0.03'], settings: ['liftTolAbs'], taps: { nowBad: [], nowGood: [] }, zeros: [] } } : r));
+    function Harness() {
+      const [d, setD] = useState(data);
+      return <SessionSettings data={d} reload={async () => { reloads += 1; setD((x) => ({ ...x, settings: stored, runs: reloads === 1 ? staleRows : mini.rows })); }} />;
+    }
     const ui = await mount(
       <ApiContext.Provider value={m.api}>
         <StatusProvider>
-          <SessionSettings data={data} reload={async () => { reloads += 1; }} />
+          <Harness />
         </StatusProvider>
       </ApiContext.Provider>,
     );
@@ -96,15 +103,16 @@ describe('Session settings screen', () => {
     const offer = await (async () => {
       let b: HTMLButtonElement | null = null;
       await waitFor(() => {
-        b = byText(c, 'button', /Re-reduce all/) as HTMLButtonElement | null;
+        b = byText(c, 'button', new RegExp(`Re-reduce stale runs \\(${staleRows.filter((r) => r.result).length}\\)`)) as HTMLButtonElement | null;
         expect(b).not.toBeNull();
       });
       return b!;
     })();
     await click(offer);
     await waitFor(() => expect(m.calls.some((x) => x.channel === 'runs.reduce')).toBe(true));
-    const taskId = (m.calls.find((x) => x.channel === 'runs.reduce')!.payload as { taskId: string }).taskId;
-    expect(taskId).toBeTruthy();
+    const payload = m.calls.find((x) => x.channel === 'runs.reduce')!.payload as { taskId: string; stale?: boolean };
+    expect(payload.taskId).toBeTruthy();
+    expect(payload.stale).toBe(true);
     expect(reloads).toBeGreaterThanOrEqual(2);
   });
 });

@@ -2,6 +2,7 @@
 // Words, glyphs and severity words come from the one vocabulary table (app/flags.ts).
 import type { Flag } from '../../app/types';
 import { SEVERITY, flagWords } from '../../app/flags';
+import { staleLine, type StaleMark } from '../../app/stale';
 
 export function FlagBadge({ flag, long = false }: { flag: Flag; long?: boolean }) {
   const w = flagWords(flag.code, flag.severity);
@@ -14,12 +15,33 @@ export function FlagBadge({ flag, long = false }: { flag: Flag; long?: boolean }
   );
 }
 
-export function FlagBadges({ flags }: { flags: readonly Flag[] | null | undefined }) {
-  if (!flags || flags.length === 0) return <span className="badge-none">none</span>;
+export function FlagBadges({ flags, stale }: { flags: readonly Flag[] | null | undefined; stale?: StaleMark | null }) {
+  if ((!flags || flags.length === 0) && !stale) return <span className="badge-none">none</span>;
   return (
     <span className="badges">
-      {flags.map((f, i) => <FlagBadge key={`${f.code}-${i}`} flag={f} />)}
+      {stale ? <StaleBadge mark={stale} /> : null}
+      {(flags ?? []).map((f, i) => <FlagBadge key={`${f.code}-${i}`} flag={f} />)}
     </span>
+  );
+}
+
+/** A result computed with other settings, bad taps or zeros than the session's now (app/stale.ts). */
+export function StaleBadge({ mark }: { mark: StaleMark }) {
+  return (
+    <span className="badge badge-stale" title={staleLine(mark)} data-stale="true">
+      <span className="badge-glyph" aria-hidden="true">◷</span>
+      <span className="badge-text">stale</span>
+    </span>
+  );
+}
+
+/** The reasons a result is stale, in words, with what re-reducing does. */
+export function StaleReasons({ mark }: { mark: StaleMark | null | undefined }) {
+  if (!mark) return null;
+  return (
+    <div className="stale-reasons" role="note">
+      <StaleBadge mark={mark} /> Reduced with other inputs than the session's now: {mark.reasons.join('; ')}. Re-reduce to bring it up to date.
+    </div>
   );
 }
 

@@ -26,6 +26,11 @@ export const RUN_COLUMNS: Column[] = [
   { key: 'kind', head: 'Kind', title: 'Data run or wind-off zero', value: (r) => r.kind, cell: (r) => (r.kind === 'data' ? 'data' : 'wind-off') },
   { key: 'time', head: 'Time', title: 'Start time (local)', value: (r) => r.time, cell: (r) => clock(r.time).slice(0, 5) },
   { key: 'alpha', head: <>α [°]</>, title: 'Geometric angle of attack, degrees', value: (r) => r.alphaDeg, cell: (r) => fix(r.alphaDeg, 2), numeric: true },
+  {
+    key: 'flags', head: 'Flags', title: 'Checks that failed',
+    value: (r) => (r.result ? (worstSeverity(r.result.flags) === 'reject' ? 2 : r.result.flags.length ? 1 : 0) * 100 + r.result.flags.length : null),
+    cell: (r) => (r.kind === 'zero' ? <span className="badge-none">–</span> : r.result ? <FlagBadges flags={r.result.flags} stale={r.stale} /> : <span className="badge-none">not reduced</span>),
+  },
   { key: 'alphaCorr', head: <>α<sub>c</sub> [°]</>, title: 'Corrected angle of attack, degrees', value: (r) => res(r)?.alphaCorrDeg ?? null, cell: (r) => fix(res(r)?.alphaCorrDeg, 2), numeric: true },
   { key: 'q', head: 'q [Pa]', title: 'Corrected dynamic pressure, Pa', value: (r) => res(r)?.q ?? null, cell: (r) => fix(res(r)?.q, 1), numeric: true },
   { key: 'Re', head: <>Re [×10<sup>6</sup>]</>, title: 'Reynolds number based on chord, millions', value: (r) => res(r)?.Re ?? null, cell: (r) => reMillions(res(r)?.Re), numeric: true },
@@ -35,11 +40,6 @@ export const RUN_COLUMNS: Column[] = [
   { key: 'cdp', head: <>c<sub>d</sub> p</>, title: 'Pressure drag coefficient from surface pressures', value: (r) => res(r)?.cdp ?? null, cell: (r) => fix(res(r)?.cdp, 5), numeric: true },
   { key: 'cm', head: <>c<sub>m c/4</sub></>, title: 'Pitching-moment coefficient about the quarter chord', value: (r) => res(r)?.cmc4 ?? null, cell: (r) => fix(res(r)?.cmc4, 4), numeric: true },
   { key: 'gp', head: <>Γ corr. [m²/s]</>, title: 'Bound circulation from surface pressures (Kutta–Joukowski Γ = ½·V·c·cl with V and cl wall-corrected), m²/s; the Run inspector shows every method, uncorrected and corrected', value: (r) => res(r)?.gammaPressure ?? null, cell: (r) => fix(res(r)?.gammaPressure, 3), numeric: true },
-  {
-    key: 'flags', head: 'Flags', title: 'Checks that failed',
-    value: (r) => (r.result ? (worstSeverity(r.result.flags) === 'reject' ? 2 : r.result.flags.length ? 1 : 0) * 100 + r.result.flags.length : null),
-    cell: (r) => (r.kind === 'zero' ? <span className="badge-none">–</span> : r.result ? <FlagBadges flags={r.result.flags} /> : <span className="badge-none">not reduced</span>),
-  },
   {
     key: 'review', head: 'Review', title: 'Reviewer verdict',
     value: (r) => r.review?.verdict ?? null,

@@ -3,7 +3,8 @@
 import { useMemo, useState } from 'react';
 import type { SessionData } from '../session';
 import { RunTable } from '../components/RunTable';
-import { FlagReasons } from '../components/FlagBadge';
+import { FlagReasons, StaleReasons } from '../components/FlagBadge';
+import { staleRunNumbers } from '../../app/stale';
 import { ReviewPanel } from '../components/ReviewPanel';
 import { useApi, useStatus, quiet } from '../context';
 import { fix, range, reMillions, when } from '../format';
@@ -16,7 +17,7 @@ export interface DayLogProps {
   onSelect(run: number): void;
   onOpen(run: number): void;
   reload(): Promise<void>;
-  live: { watching: boolean; folder: string | null; lastRun: number | null };
+  live: { watching: boolean; folder: string | null; lastRun: number | null; sessionId?: number | null };
 }
 
 export function download(text: string | Blob, name: string, mime: string): void {
@@ -44,6 +45,9 @@ export function DayLog({ data, selected, onSelect, onOpen, reload, live }: DayLo
   const c = summary?.conditions ?? null;
   const flaggedCount = data.runs.filter((r) => (r.result?.flags.length ?? 0) > 0).length;
   const reviewed = data.runs.filter((r) => r.review).length;
+  const stale = staleRunNumbers(data.runs);
+  // The live banner belongs to the session being watched only.
+  const liveHere = live.watching && (live.sessionId != null ? live.sessionId === session.id : live.folder !== null && live.folder === session.folder);
 
   const exportAs = (format: 'csv' | 'json') =>
     quiet(track(`Exporting ${format.toUpperCase()}`, async () => {
@@ -52,13 +56,13 @@ export function DayLog({ data, selected, onSelect, onOpen, reload, live }: DayLo
       notify('info', `Exported ${r.suggestedName}`);
     }));
 
-  const reduceAll = () => {
+  const reduce = (which: 'all' | 'stale') => {
     const taskId = newTaskId('reduce');
     setTask(taskId);
-    quiet(track('Re-reducing every run', async () => {
+    quiet(track(which === 'stale' ? 'Re-reducing the stale runs' : 'Re-reducing every run', async () => {
       try {
-        const r = await api.call('runs.reduce', { sessionId: session.id, taskId });
-        notify('info', `Re-reduced ${r.reduced} runs with the current settings.`);
+        const r = await api.call('runs.reduce', which === 'stale' ? { sessionId: session.id, stale: true, taskId } : { sessionId: session.id, taskId });
+        notify('info', `Re-reduced ${r.reduced} run${r.reduced === 1 ? '' : 's'} with the session's current settings and zeros.`);
         await reload();
       } finally {
         setTask(null);
@@ -87,6 +91,7 @@ export function DayLog({ data, selected, onSelect, onOpen, reload, live }: DayLo
           <div><dt>Runs</dt><dd>{session.runCount} ({session.dataRunCount} data)</dd></div>
           <div><dt>Flagged</dt><dd className={flaggedCount ? 'warn-text' : undefined}>{flaggedCount}</dd></div>
           <div><dt>Reviewed</dt><dd>{reviewed}</dd></div>
+          <div><dt>Stale</dt><dd className={stale.length ? 'warn-text' : undefined} data-testid="stale-count">{stale.length}</dd></div>
         </dl>
       </header>
 
@@ -94,9 +99,12 @@ export function DayLog({ data, selected, onSelect, onOpen, reload, live }: DayLo
         <label><input type="checkbox" checked={showZeros} onChange={(e) => setShowZeros(e.target.checked)} /> wind-off zeros</label>
         <label><input type="checkbox" checked={flaggedOnly} onChange={(e) => setFlaggedOnly(e.target.checked)} /> flagged only</label>
         <span className="toolbar-gap" />
-        {live.watching ? <span className="live-chip" title={live.folder ?? undefined}><span aria-hidden="true">●</span> Live: watching {live.folder}{live.lastRun !== null ? `, last run ${live.lastRun}` : ''}</span> : null}
+        {liveHere ? <span className="live-chip" title={live.folder ?? undefined}><span aria-hidden="true">●</span> Live: watching {live.folder}{live.lastRun !== null ? `, last run ${live.lastRun}` : ''}</span> : null}
         <span className="hint">↑/↓ select · Enter opens · click a header to sort</span>
-        <button type="button" onClick={reduceAll}>Re-reduce all</button>
+        <button type="button" onClick={() => reduce('stale')} disabled={!stale.length || task !== null} title={stale.length ? `Runs ${stale.join(', ')}: reduced with other settings, bad taps or zeros than the session's now` : 'Every result is up to date'}>
+          Re-reduce stale runs ({stale.length})
+        </button>
+        <button type="button" onClick={() => reduce('all')} disabled={task !== null}>Re-reduce all</button>
         <button type="button" onClick={() => exportAs('csv')}>Export CSV</button>
         <button type="button" onClick={() => exportAs('json')}>Export JSON</button>
       </div>
@@ -112,6 +120,7 @@ export function DayLog({ data, selected, onSelect, onOpen, reload, live }: DayLo
               {row.kind === 'data' ? (
                 <>
                   {row.result ? <FlagReasons flags={row.result.flags} /> : <p>Not reduced yet.</p>}
+                  <StaleReasons mark={row.stale} />
                   <button type="button" className="btn-primary" onClick={() => onOpen(row.run)}>Open in Run inspector ↵</button>
                   <ReviewPanel row={row} onSaved={() => void reload()} />
                 </>

@@ -193,7 +193,7 @@ export function Intake({ mode, live, onImported, onOpenSession, setLive }: Intak
   const startLive = () =>
     quiet(track('Starting live mode', async () => {
       const r = await api.call('watch.start', { folder: liveFolder.trim() });
-      setLive((s) => ({ ...s, watching: true, folder: r.folder }));
+      setLive((s) => ({ ...s, watching: true, folder: r.folder, sessionId: s.folder === r.folder ? s.sessionId : null }));
     }));
   const stopLive = () =>
     quiet(track('Stopping live mode', async () => {

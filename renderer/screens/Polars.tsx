@@ -7,6 +7,7 @@ import { clAlphaConfig, cmAlphaConfig, dragPolarConfig, spanConfig, sweepDirecti
 import { Plot } from '../components/Plot';
 import { fix } from '../format';
 import { SEVERITY } from '../../app/flags';
+import { StaleBadge } from '../components/FlagBadge';
 
 export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number): void }) {
   const summary = data.summary;
@@ -26,6 +27,7 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
   const spanCfg = useMemo(() => spanConfig(span.filter((s) => chosen.includes(s.run))), [span, chosen]);
   const dirs = sweepDirections(pts);
   const ups = dirs.filter((d) => d === 'up').length;
+  const staleOf = new Map(data.runs.filter((r) => r.stale).map((r) => [r.run, r.stale!]));
 
   if (pts.length === 0) return <p className="empty">No reduced data runs yet: import a session or re-reduce it.</p>;
   const perRad = stats ? stats.liftSlopePerDeg * (180 / Math.PI) : NaN;
@@ -43,7 +45,7 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
             <div><dt>(L/D)<sub>max</sub></dt><dd>{fix(stats.ldMax, 1)} at α {fix(stats.alphaLdMaxDeg, 2)}°</dd></div>
             <div><dt>hysteresis</dt><dd>{stats.hysteresis ? <>largest |Δc<sub>l</sub>| {fix(stats.hysteresis.maxDeltaCl, 4)} at α {fix(stats.hysteresis.alphaDeg, 1)}° (down − up)</> : 'no matching up/down points'}</dd></div>
             <div><dt>repeat spread</dt><dd>{stats.repeatSpread === null ? 'no repeats' : `${fix(stats.repeatSpread, 4)} in cl`}</dd></div>
-            <div><dt>points</dt><dd>{pts.length} runs: {ups} on the up-sweep, {pts.length - ups} on the down-sweep; {pts.filter((p) => p.flagged).length} flagged, {held.size} on hold ✕</dd></div>
+            <div><dt>points</dt><dd>{pts.length} runs: {ups} on the up-sweep, {pts.length - ups} on the down-sweep; {pts.filter((p) => p.flagged).length} flagged, {held.size} on hold ✕{staleOf.size ? <>; <b className="warn-text" data-testid="polars-stale">{staleOf.size} stale</b> (reduced with other settings, bad taps or zeros; re-reduce them in the Day log)</> : null}</dd></div>
           </dl>
         ) : <p>Too few runs for session statistics.</p>}
         <p className="small muted">Legend: blue = c<sub>l</sub> from surface pressures, orange = c<sub>l</sub> from wall momentum; solid line + filled marker = up-sweep (α rising), dashed line + open marker = down-sweep (α falling); ✕ = run on hold (a reject flag; see the Day log). Corrected values.</p>
@@ -97,7 +99,7 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
                   <td className="num">{fix(p.cd, 5)}</td><td className="num">{fix(p.cdp, 5)}</td><td className="num">{fix(p.cmc4, 4)}</td>
                   <td className="flag-reasons">{(flagsOf.get(p.run) ?? []).map((f, k) => (
                     <div key={k}><b>{SEVERITY[f.severity].glyph} {SEVERITY[f.severity].word}:</b> {f.reason}</div>
-                  ))}</td>
+                  ))}{staleOf.has(p.run) ? <StaleBadge mark={staleOf.get(p.run)!} /> : null}</td>
                 </tr>
               ))}
             </tbody>

@@ -2,8 +2,10 @@
 // floor/ceiling signatures, coefficients (uncorrected | corrected | 95 % interval), circulation by
 // each method, flags in words, and tap overrides: click a tap on the chart or use the tap list to
 // mark it bad or restore it — the run is re-reduced at once in the worker, the change is shown,
-// then the override and the new result are stored through the contract.
-import { useCallback, useEffect, useMemo, useState } from 'react';
+// then the override and the new result are stored through the contract, and every other data run
+// of the session (a bad tap is bad for the whole session) is re-reduced in main, with progress.
+// ←/→ and Page Up/Page Down step to the previous/next data run.
+import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import type { RunRowLike, Results } from '../../main/contract';
 import type { Interval, RunResult, TapCp } from '../../app/types';
 import { correctedMomentumCl } from '../../app/reduce';
@@ -14,7 +16,9 @@ import { useApi, useStatus, quiet } from '../context';
 import { reduceInWorker } from '../workerClient';
 import { badTapIds, cpChartConfig, rowsOf, wakeChartConfig, wallChartConfig } from '../charts';
 import { Plot } from '../components/Plot';
-import { FlagReasons } from '../components/FlagBadge';
+import { FlagReasons, StaleReasons } from '../components/FlagBadge';
+import { ProgressBar } from '../components/ProgressBar';
+import { newTaskId, useTaskProgress } from '../hooks';
 import { ReviewPanel } from '../components/ReviewPanel';
 import { BudgetTable } from '../components/BudgetTable';
 import { CorrectionCompare } from '../components/CorrectionCompare';
@@ -26,6 +30,8 @@ export interface TapChange {
   before: { cl: number; cd: number; cmc4: number; clMom: number };
   after: { cl: number; cd: number; cmc4: number; clMom: number };
   stored: boolean;
+  /** Other data runs re-reduced for the change: null while that runs. */
+  others: number | null;
 }
 
 const pick = (r: RunResult) => ({ cl: r.corrected.cl, cd: r.corrected.cd, cmc4: r.corrected.cmc4, clMom: r.clMomentum });
@@ -62,6 +68,8 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
   const [changes, setChanges] = useState<TapChange[]>([]);
   const [comment, setComment] = useState('');
   const [working, setWorking] = useState<string | null>(null);
+  const [task, setTask] = useState<string | null>(null);
+  const progress = useTaskProgress(task, false);
 
   const load = useCallback(async () => {
     if (current === null) return;
@@ -95,12 +103,23 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
         if (bad) set.add(tapId);
         else set.delete(tapId);
         const next = await reduceInWorker(input.setup, input.zeroed, { ...input.settings, badTaps: [...set] });
-        const change: TapChange = { tapId, bad, before: pick(result), after: pick(next), stored: false };
+        const change: TapChange = { tapId, bad, before: pick(result), after: pick(next), stored: false, others: null };
         setShown(next);
         setChanges((c) => [change, ...c]);
         await api.call('taps.setBad', { sessionId, tapId, bad, comment: comment.trim() || undefined });
         await api.call('runs.saveResults', { sessionId, results: [next as unknown as Record<string, unknown>] });
         setChanges((c) => c.map((x) => (x === change ? { ...x, stored: true } : x)));
+        // The tap is bad (or good) for the whole session: the other data runs are now stale and
+        // are re-reduced in main (off this thread), with a progress bar.
+        const taskId = newTaskId('reduce');
+        setTask(taskId);
+        let others = 0;
+        try {
+          others = (await api.call('runs.reduce', { sessionId, stale: true, taskId })).reduced;
+        } finally {
+          setTask(null);
+        }
+        setChanges((c) => c.map((x) => (x.tapId === change.tapId && x.after === change.after ? { ...x, stored: true, others } : x)));
         await reload();
         const fresh = await api.call('runs.get', { sessionId, run: runNo });
         setGot(fresh);
@@ -111,12 +130,32 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
     }));
   }, [api, sessionId, current, result, working, comment, reload, track]);
 
+  // ←/→ and Page Up/Page Down: previous/next data run, unless typing in a field or a list.
+  const stepRef = useRef<(d: number) => void>(() => undefined);
+  useEffect(() => {
+    const onKey = (e: globalThis.KeyboardEvent) => {
+      if (e.altKey || e.ctrlKey || e.metaKey || e.shiftKey || e.defaultPrevented) return;
+      const t = e.target as HTMLElement | null;
+      if (t && (t.isContentEditable || /^(INPUT|SELECT|TEXTAREA)$/.test(t.tagName))) return;
+      const d = e.key === 'ArrowLeft' || e.key === 'PageUp' ? -1 : e.key === 'ArrowRight' || e.key === 'PageDown' ? 1 : 0;
+      if (!d) return;
+      e.preventDefault();
+      stepRef.current(d);
+    };
+    window.addEventListener('keydown', onKey);
+    return () => window.removeEventListener('keydown', onKey);
+  }, []);
+
   const cp = useMemo(() => (result ? cpChartConfig(result, { row: rowName, onTap: toggleTap }) : null), [result, rowName, toggleTap]);
   const wake = useMemo(() => (result ? wakeChartConfig(result) : null), [result]);
   const walls = useMemo(() => (result ? wallChartConfig(result) : null), [result]);
 
   if (dataRuns.length === 0) return <p className="empty">This session has no data runs yet.</p>;
   const idx = dataRuns.findIndex((r) => r.run === current);
+  stepRef.current = (d: number) => {
+    const to = dataRuns[idx + d];
+    if (idx >= 0 && to) onRun(to.run);
+  };
   const rowInfo: RunRowLike | undefined = data.runs.find((r) => r.run === current);
 
   const nav = (
@@ -177,13 +216,20 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
         <FlagReasons flags={result.flags} />
       </section>
 
-      {last ? (
-        <p className="change-line" role="status" aria-live="polite">
-          Tap <b>{last.tapId}</b> {last.bad ? 'marked bad' : 'restored'}: <span className="change-text">{changeText(last)}</span>
-          {last.stored ? <span className="muted"> · stored (audit kept)</span> : <span className="muted"> · storing…</span>}
-          <span className="muted"> · applies to the whole session: Re-reduce all (Day log) updates the other runs.</span>
-        </p>
-      ) : null}
+      {/* One slot of fixed height for the override line, the progress of the other runs and the
+          stale note, so nothing below it (the Cp chart) moves when one of them appears. */}
+      <div className="inspector-slot" aria-live="polite">
+        {last ? (
+          <p className="change-line" role="status">
+            Tap <b>{last.tapId}</b> {last.bad ? 'marked bad' : 'restored'}: <span className="change-text">{changeText(last)}</span>
+            {last.stored ? <span className="muted"> · stored (audit kept)</span> : <span className="muted"> · storing…</span>}
+            <span className="muted">{last.others === null ? ' · re-reducing the other runs of the session…' : ` · ${last.others} other run${last.others === 1 ? '' : 's'} of the session re-reduced with it`}</span>
+          </p>
+        ) : (got.row.stale ?? rowInfo?.stale) ? <StaleReasons mark={got.row.stale ?? rowInfo?.stale} /> : (
+          <p className="small muted">Click a tap on the chart or in the tap list to mark it bad or restore it; the whole session is re-reduced with it. ←/→ or Page Up/Down: previous/next run.</p>
+        )}
+        {task ? <ProgressBar fraction={progress?.fraction ?? null} label={progress?.label ?? 'Starting…'} name="Re-reduction of the other runs" /> : null}
+      </div>
 
       <div className="inspector-grid">
         <section className="panel panel-cp" aria-label="Pressure distribution">

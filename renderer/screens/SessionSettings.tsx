@@ -1,6 +1,7 @@
 // "Session settings": tolerances and reduction options of one session. Values are checked as
 // typed (same ranges as main), saved with settings.update (audited, with an optional note), then
 // a re-reduction of every run is offered.
+import { staleRunNumbers } from '../../app/stale';
 import { useEffect, useMemo, useState } from 'react';
 import type { SessionData } from '../session';
 import { CORRECTIONS, NUM_FIELDS, checkForm, formFromSettings, type FormValues, type NumField } from '../settingsForm';
@@ -30,13 +31,14 @@ export function SessionSettings({ data, reload }: { data: SessionData; reload():
   const check = useMemo(() => checkForm(values, data.settings), [values, data.settings]);
   const nErr = Object.keys(check.errors).length;
   const nChanged = Object.keys(check.patch).length;
+  const stale = staleRunNumbers(data.runs);
 
   const save = () =>
     quiet(track('Saving settings', async () => {
       await api.call('settings.update', { sessionId, patch: check.patch, note: note.trim() || undefined });
       setSaved(true);
       setNote('');
-      notify('info', `Saved ${nChanged} setting${nChanged === 1 ? '' : 's'}; stored results keep their old settings until re-reduced.`);
+      notify('info', `Saved ${nChanged} setting${nChanged === 1 ? '' : 's'}; results reduced with the old values are marked stale until re-reduced.`);
       await reload();
     }));
 
@@ -45,8 +47,8 @@ export function SessionSettings({ data, reload }: { data: SessionData; reload():
     setTask(taskId);
     quiet(track('Re-reducing every run', async () => {
       try {
-        const r = await api.call('runs.reduce', { sessionId, taskId });
-        notify('info', `Re-reduced ${r.reduced} runs with the new settings.`);
+        const r = await api.call('runs.reduce', { sessionId, stale: true, taskId });
+        notify('info', `Re-reduced ${r.reduced} stale run${r.reduced === 1 ? '' : 's'} with the new settings.`);
         setSaved(false);
         await reload();
       } finally {
@@ -132,10 +134,12 @@ export function SessionSettings({ data, reload }: { data: SessionData; reload():
         </div>
       </form>
 
-      {saved ? (
+      {saved || stale.length ? (
         <section className="panel offer" aria-label="Re-reduce">
-          <p>Settings saved. Stored results still use the old settings.</p>
-          <button type="button" className="btn-primary" onClick={reduceAll} disabled={task !== null}>Re-reduce all {data.session.dataRunCount} data runs now</button>
+          <p>{stale.length
+            ? `${stale.length} stored result${stale.length === 1 ? ' was' : 's were'} reduced with other settings, bad taps or zeros than those above and ${stale.length === 1 ? 'is' : 'are'} marked stale.`
+            : 'Settings saved; every stored result is up to date.'}</p>
+          <button type="button" className="btn-primary" onClick={reduceAll} disabled={task !== null || !stale.length}>Re-reduce stale runs ({stale.length})</button>
         </section>
       ) : null}
       {task ? <ProgressBar fraction={progress?.fraction ?? null} label={progress?.label ?? 'Starting…'} name="Reduction progress" /> : null}

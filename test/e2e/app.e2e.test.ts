@@ -93,6 +93,68 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
 
   it('imports the demo day, reviews the stall run, overrides a tap, shows polars and prints the day sheet', () => guarded('failure', flow), 150_000);
 
+  it('a saved setting marks the runs stale; "Re-reduce stale runs" clears the marks; ←/→ step through the inspector', async () => {
+    const shot = (name: string) => page.screenshot({ path: path.join(out, `${name}.png`), fullPage: false });
+    try {
+      await staleFlow(shot);
+    } catch (e) {
+      await shot('failure-stale').catch(() => undefined);
+      throw e;
+    }
+  }, 150_000);
+
+  async function staleFlow(shot: (name: string) => Promise<unknown>): Promise<void> {
+    // After the first test every result is current (its tap override re-reduced the whole session).
+    await page.getByRole('button', { name: 'Day log', exact: true }).click();
+    const count = page.getByTestId('stale-count');
+    await expect.poll(() => count.innerText(), { timeout: 30_000 }).toBe('0');
+    const grid = page.getByRole('grid');
+    const dataRows = await grid.locator('tbody tr').filter({ has: page.locator('td:nth-child(2)', { hasText: /^data$/ }) }).count();
+
+    // Change a check limit and save it.
+    await page.getByRole('button', { name: 'Session settings', exact: true }).click();
+    const limit = page.getByLabel('Unsteadiness limit');
+    await limit.fill(String(Number(await limit.inputValue()) + 0.5));
+    await page.getByRole('button', { name: /^Save/ }).click();
+    const offer = page.getByRole('button', { name: /^Re-reduce stale runs \(\d+\)$/ });
+    await expect.poll(async () => (await offer.count()) ? offer.innerText() : '', { timeout: 30_000 }).not.toMatch(/\(0\)/);
+
+    // The Day log marks every reduced run stale, with the reason in the side panel.
+    await page.getByRole('button', { name: 'Day log', exact: true }).click();
+    await expect.poll(() => count.innerText(), { timeout: 30_000 }).not.toBe('0');
+    const n = Number(await count.innerText());
+    expect(n).toBeGreaterThan(20);
+    expect(await grid.locator('tbody tr', { has: page.locator('.badge-stale') }).count()).toBe(n);
+    expect(n).toBeLessThanOrEqual(dataRows);
+    const first = grid.locator('tbody tr', { has: page.locator('.badge-stale') }).first();
+    await first.click();
+    expect(await page.locator('.side-panel .stale-reasons').innerText()).toMatch(/unsteadyThreshold was [\d.]+, now [\d.]+/);
+    await shot('daylog-stale');
+
+    // The inspector says so too; ←/→ step to the next and previous run.
+    await page.locator('.side-panel').getByRole('button', { name: /Open in Run inspector/ }).click();
+    await page.locator('.inspector-slot .stale-reasons').waitFor();
+    const picker = page.getByLabel('Run to inspect');
+    const runA = await picker.inputValue();
+    await page.keyboard.press('ArrowRight');
+    await expect.poll(() => picker.inputValue()).not.toBe(runA);
+    const runB = await picker.inputValue();
+    expect(Number(runB)).toBeGreaterThan(Number(runA));
+    await page.keyboard.press('PageUp');
+    await expect.poll(() => picker.inputValue()).toBe(runA);
+    await shot('inspector-stale');
+
+    // One action re-reduces the stale runs, with a progress bar; the marks go.
+    await page.getByRole('button', { name: 'Day log', exact: true }).click();
+    await page.getByRole('button', { name: `Re-reduce stale runs (${n})` }).click();
+    await expect.poll(() => count.innerText(), { timeout: 60_000 }).toBe('0');
+    expect(await page.locator('.badge-stale').count()).toBe(0);
+    expect(await page.getByRole('button', { name: 'Re-reduce stale runs (0)' }).isDisabled()).toBe(true);
+    await shot('daylog-after-stale');
+    const problems = (page as unknown as { problems: string[] }).problems;
+    expect(problems, problems.join('\n')).toEqual([]);
+  }
+
   async function flow(shot: (name: string) => Promise<unknown>): Promise<void> {
 
     // Browser mode asks once for the reviewer's name; then the window opens on Intake (fresh database).
