@@ -23,6 +23,8 @@ export interface LiftCrossCheckArgs {
   clWall?: number;
   tolAbs: number;
   tolRel: number;
+  /** Both lifts on the corrected basis, quoted in the reason beside the uncorrected ones. */
+  corrected?: { clPressure: number; clMomentum: number };
 }
 
 /** Allowed |cl_mom − cl_p| for a given pressure cl. */
@@ -41,7 +43,7 @@ export function liftCrossCheck(args: LiftCrossCheckArgs): Flag | null {
   const diff = Math.abs(clMomentum - clPressure);
   const tol = liftTolerance(clPressure, tolAbs, tolRel);
   if (!(diff > tol)) return null;
-  return makeFlag('lift-mismatch', { clPressure, clMomentum, tol, clWall });
+  return makeFlag('lift-mismatch', { clPressure, clMomentum, tol, clWall, ...(args.corrected ? { corrected: args.corrected } : {}) });
 }
 
 /** One-line text of a flag for plain-text tables, e.g. "hold: lift methods disagree — …". */

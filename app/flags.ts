@@ -64,15 +64,20 @@ export const badTapWords = (reason: string): string => BAD_TAP_WORDS[reason] ?? 
 
 /** The vocabulary. Keep the entries in the order a reviewer reads them (worst first). */
 export const FLAGS = {
-  'lift-mismatch': entry<{ clPressure: number; clMomentum: number; tol: number; clWall?: number }>({
+  'lift-mismatch': entry<{
+    clPressure: number; clMomentum: number; tol: number; clWall?: number;
+    /** The same two on the corrected basis of the coefficient table (quoted beside them). */
+    corrected?: { clPressure: number; clMomentum: number };
+  }>({
     label: 'lift methods disagree',
     short: 'lift mismatch',
     severity: 'reject',
     reason: (p) =>
-      `Lift methods disagree: surface pressures give cl = ${f(p.clPressure, 3)}, wall momentum gives ${f(p.clMomentum, 3)} ` +
-      `(difference ${f(Math.abs(p.clMomentum - p.clPressure), 3)}, tolerance ${f(p.tol, 3)})` +
-      `${p.clWall !== undefined && Number.isFinite(p.clWall) ? `; the wall circulation integral gives ${f(p.clWall, 3)}` : ''}.`,
-    example: { clPressure: 1.162, clMomentum: 0.981, tol: 0.055 },
+      `Lift methods disagree: surface pressures give cl = ${f(p.clPressure, 4)}, wall momentum gives ${f(p.clMomentum, 4)}, uncorrected as the cross-check compares them ` +
+      `(difference ${f(Math.abs(p.clMomentum - p.clPressure), 4)}, tolerance ${f(p.tol, 4)})` +
+      `${p.clWall !== undefined && Number.isFinite(p.clWall) ? `; the wall circulation integral gives ${f(p.clWall, 4)}` : ''}` +
+      `${p.corrected ? `; corrected: ${f(p.corrected.clPressure, 4)} and ${f(p.corrected.clMomentum, 4)}` : ''}.`,
+    example: { clPressure: 1.162, clMomentum: 0.981, tol: 0.055, corrected: { clPressure: 1.1161, clMomentum: 0.9423 } },
   }),
   'wake-not-captured': entry<{ edgeLo: number; edgeHi: number; tol: number; peakMm: number; cd: number }>({
     label: 'wake not captured by the rake',

@@ -1,8 +1,11 @@
 // Monte Carlo plan of one run (REDUCTION.md §9): the outputs of the uncertainty — corrected cl, cd,
-// cd_p, cm_c/4, the wall-momentum cl_mom and the Kutta–Joukowski circulations Γ = ½ V c cl — by
+// cd_p, cm_c/4, the wall-momentum cl_mom on the corrected basis and the corrected circulations
+// (surface pressures and wall momentum by Kutta–Joukowski Γ = ½ V c cl, and the wall line
+// integral), with the reduction's own errors of the draw (app/reductionErrors.ts `adj`) — by
 // the SAME model as runCore in app/reduce.ts, through the same formula functions (freeStream,
 // contourIntegrals, jonesTerm/jonesIntegral, angleFluxTerm/angleFluxIntegral, momentumCl,
-// wallCorrections, applyCorrections, gammaFromCl) and the same interpolation arithmetic
+// speedRatio, wallCorrections, adjustedCorrection, applyCorrections, correctedLift) and the same
+// interpolation arithmetic
 // (linearStencil/applyStencil reproduce interpLinear). What does not change between draws is found
 // once per run: the channel index of every input in one Float64Array of drawn values, the main-row
 // taps in nominal contour order, the rake probes sorted by y with their static- and cpt-interpolation
@@ -26,17 +29,19 @@ import { freeStream } from './air';
 import { applyCorrections } from './corrections';
 import { correctionOf, type CorrectionPlan } from './correctionChoice';
 import type { SignaturePlan } from './wallSignature';
-import { gammaFromCl } from './crosscheck';
+import { ADJ, adjustedCorrection, correctedLift } from './reductionErrors';
 import { applyStencil, linearStencil, trapezoid } from './quadrature';
 import { compareUpper, contourIntegrals, type ContourRule } from './surface';
 import type { Coefficients, RunInfo, Setup, Surface } from './types';
 import { jonesIntegral, jonesTerm } from './wake';
-import { angleFluxIntegral, angleFluxTerm, momentumCl, wallGrid } from './walls';
+import { angleFluxIntegral, angleFluxTerm, momentumCl, speedRatio, wallGrid } from './walls';
 
 /** What the plan needs of the run's channel layout (app/reduce.ts Layout), by channel name. */
 export interface PlanLayout {
   dpRef: string;
   pStatic: string;
+  /** The free-stream total-pressure reference, when the setup has one (the wake's q∞ = H∞ − p∞). */
+  pTotal?: string;
   taps: { id: string; x: number; y: number; surface: Surface; row: string; ch: string }[];
   rakeTotal: { y: number; ch: string }[];
   rakeStatic: { y: number; ch: string }[];
@@ -68,6 +73,7 @@ export interface McValues {
   clMom: number;
   gammaPressure: number;
   gammaMomentum: number;
+  gammaWall: number;
 }
 
 interface Stencils {
@@ -90,6 +96,8 @@ export interface McPlan {
   rh: number;
   iDp: number;
   iPs: number;
+  /** H∞ channel (−1: none, the wake uses q_u). */
+  iPt: number;
   /** Every tap (for the bound check): value index and nominal x. */
   allVal: Int32Array;
   /** Main-row good taps by slot; slots [0, nU) upper, [nU, n) lower, each in nominal contour order. */
@@ -121,6 +129,11 @@ export interface McPlan {
     gf: Stencils;
     gc: Stencils;
     F: number;
+    /** The wall line integral's grid (the whole overlap), its stencils and capture fraction. */
+    wx: Float64Array;
+    wf: Stencils;
+    wc: Stencils;
+    FW: number;
   } | null;
   // Scratch (one draw at a time).
   x: Float64Array;
@@ -136,6 +149,7 @@ export interface McPlan {
   fcp: Float64Array;
   ccp: Float64Array;
   dcp: Float64Array;
+  du: Float64Array;
   /** Set by evalMcPlan: the contour order of this draw differs from the nominal one. */
   reordered: boolean;
 }
@@ -176,6 +190,8 @@ export function buildMcPlan(
   const idx = (name: string): number => index.get(name) ?? -1;
   const iDp = idx(L.dpRef);
   const iPs = idx(L.pStatic);
+  const iPt = L.pTotal !== undefined ? idx(L.pTotal) : -1;
+  if (L.pTotal !== undefined && iPt < 0) return null;
   const allVal = Int32Array.from(L.taps, (t) => idx(t.ch));
   if (iDp < 0 || iPs < 0 || allVal.some((k) => k < 0)) return null;
 
@@ -230,6 +246,7 @@ export function buildMcPlan(
     const x2 = Math.min(fx[fx.length - 1], cx[cx.length - 1]);
     const mom = nominal.walls.FMom !== undefined;
     const gx = Float64Array.from(wallGrid(x1, mom ? Math.min(x2, setup.rake.x) : x2, fx, cx));
+    const wx = Float64Array.from(wallGrid(x1, x2, fx, cx));
     walls = {
       fVal: Int32Array.from(fOrder, (i) => idx(L.floor[i].ch)),
       cVal: Int32Array.from(cOrder, (i) => idx(L.ceiling[i].ch)),
@@ -237,6 +254,10 @@ export function buildMcPlan(
       gf: stencils(fx, gx),
       gc: stencils(cx, gx),
       F: mom ? nominal.walls.FMom! : nominal.walls.F,
+      wx,
+      wf: stencils(fx, wx),
+      wc: stencils(cx, wx),
+      FW: nominal.walls.F,
     };
     if (walls.fVal.some((k) => k < 0) || walls.cVal.some((k) => k < 0)) return null;
   }
@@ -257,6 +278,7 @@ export function buildMcPlan(
     rh: info.humidity,
     iDp,
     iPs,
+    iPt,
     allVal,
     n,
     nU: upper.length,
@@ -289,6 +311,7 @@ export function buildMcPlan(
     fcp: new Float64Array(walls ? walls.fVal.length : 0),
     ccp: new Float64Array(walls ? walls.cVal.length : 0),
     dcp: new Float64Array(nG),
+    du: new Float64Array(walls ? walls.wx.length : 0),
     reordered: false,
   };
 }
@@ -319,17 +342,20 @@ function sortSurface(P: McPlan, from: number, to: number, upper: boolean): boole
 
 /**
  * One draw by the plan: channel values in `vals` (by the plan's index), tap x/c offsets in `tapDx`
- * (by tap), α and k_q. Writes `out` and returns true, or returns false when the draw must be left to
- * runCore (see the module comment).
+ * (by tap), α, k_q and the reduction's own errors `adj` (app/reductionErrors.ts ADJ order; none: 0).
+ * Writes `out` and returns true, or returns false when the draw must be left to runCore (see the
+ * module comment).
  */
 export function evalMcPlan(
   P: McPlan, vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number, out: McValues,
+  adj?: Float64Array,
 ): boolean {
   P.reordered = false;
   if (!Number.isFinite(alphaDeg) || !Number.isFinite(kq)) return false;
   let bound = 0;
   for (let k = 0; k < vals.length; k++) bound += Math.abs(vals[k]);
   for (let i = 0; i < tapDx.length; i++) bound += Math.abs(tapDx[i]);
+  if (adj) for (let j = 0; j < adj.length; j++) bound += Math.abs(adj[j]);
   if (!(bound < BOUND)) return false;
 
   const pInf = vals[P.iPs];
@@ -368,14 +394,16 @@ export function evalMcPlan(
   let angleCl = 0;
   if (P.nT > 0) {
     const { nT, tVal, cpt, jones, statics } = P;
+    const qW = P.iPt >= 0 ? vals[P.iPt] - pInf : q;
+    if (!(qW > 0)) return false;
     const st = P.tStatic;
     if (st && P.sVal) for (let j = 0; j < statics.length; j++) statics[j] = vals[P.sVal[j]];
     for (let i = 0; i < nT; i++) {
       const H = vals[tVal[i]];
       const pw = st ? applyStencil(st.lo[i], st.hi[i], st.t[i], statics) : pInf;
-      cpt[i] = (H - pInf) / q;
+      cpt[i] = (H - pInf) / qW;
       cpBound += Math.abs(cpt[i]);
-      jones[i] = jonesTerm((H - pw) / q, cpt[i]);
+      jones[i] = jonesTerm((H - pw) / qW, cpt[i]);
     }
     cdU = jonesIntegral(P.tY, jones, P.chord);
     const ac = P.aCpt;
@@ -390,6 +418,7 @@ export function evalMcPlan(
 
   // Walls.
   let clMom = NaN;
+  let gammaWall = NaN;
   const W = P.walls;
   if (W) {
     const { fcp, ccp, dcp } = P;
@@ -406,35 +435,50 @@ export function evalMcPlan(
       dcp[k] = applyStencil(gf.lo[k], gf.hi[k], gf.t[k], fcp) - applyStencil(gc.lo[k], gc.hi[k], gc.t[k], ccp);
     }
     clMom = momentumCl(trapezoid(W.gx, dcp), P.chord, W.F, P.angleSetup ? angleCl : 0);
+    const du = P.du;
+    const { wf, wc } = W;
+    for (let k = 0; k < du.length; k++) {
+      du[k] = V * (speedRatio(applyStencil(wc.lo[k], wc.hi[k], wc.t[k], ccp)) - speedRatio(applyStencil(wf.lo[k], wf.hi[k], wf.t[k], fcp)));
+    }
+    gammaWall = trapezoid(W.wx, du) / W.FW;
+    if (adj) {
+      clMom *= 1 + adj[ADJ.walls];
+      gammaWall *= 1 + adj[ADJ.walls];
+    }
   }
   if (!(cpBound < BOUND)) return false;
 
+  if (adj && P.nT > 0) cdU += adj[ADJ.cd];
   const uncorrected: Coefficients = {
-    cl: main.cl,
+    cl: main.cl + (adj ? adj[ADJ.cl] : 0),
     cd: cdU,
-    cdp: main.cdp,
-    cmc4: main.cmc4,
+    cdp: main.cdp + (adj ? adj[ADJ.cdp] : 0),
+    cmc4: main.cmc4 + (adj ? adj[ADJ.cmc4] : 0),
     alphaDeg,
     q,
     V,
     Re: fs.Re,
   };
-  // The same parameters as runCore's (correctionOf, app/correctionChoice.ts).
-  const correction = correctionOf(
-    P.correct, { chord: P.chord, height: P.height, width: P.width, sectionAreaC2: P.areaC2 }, cdU, main.cdp, P.signature, W ? P.fcp : null, W ? P.ccp : null,
+  // The same parameters as runCore's (correctionOf, app/correctionChoice.ts), the draw's
+  // correction-model errors applied as runCore applies them.
+  const chosen = correctionOf(
+    P.correct, { chord: P.chord, height: P.height, width: P.width, sectionAreaC2: P.areaC2 }, cdU, uncorrected.cdp, P.signature, W ? P.fcp : null, W ? P.ccp : null,
   );
-  if (!correction) return false;
-  const corrected = applyCorrections(uncorrected, correction, main.cmc4);
+  if (!chosen) return false;
+  const correction = adjustedCorrection(chosen, adj);
+  const corrected = applyCorrections(uncorrected, correction, uncorrected.cmc4);
+  const lift = correctedLift(corrected, correction, V, clMom, gammaWall, P.chord);
   out.cl = corrected.cl;
   out.cd = corrected.cd;
   out.cdp = corrected.cdp;
   out.cmc4 = corrected.cmc4;
-  out.clMom = clMom;
-  out.gammaPressure = gammaFromCl(main.cl, V, P.chord);
-  out.gammaMomentum = W ? gammaFromCl(clMom, V, P.chord) : NaN;
+  out.clMom = lift.clMom;
+  out.gammaPressure = lift.pressure;
+  out.gammaMomentum = lift.momentum;
+  out.gammaWall = lift.wall;
   // Belt and braces: what the model gives finite must be finite here.
   if (!Number.isFinite(out.cl + out.cdp + out.cmc4 + out.gammaPressure)) return false;
   if (P.nT > 0 && !Number.isFinite(out.cd + angleCl)) return false;
-  if (W && !Number.isFinite(out.clMom + out.gammaMomentum)) return false;
+  if (W && !Number.isFinite(out.clMom + out.gammaMomentum + out.gammaWall)) return false;
   return true;
 }

@@ -9,7 +9,7 @@ import {
   CORE_VERSION, DEFAULT_SETTINGS,
   type Channel, type ChannelStats, type Coefficients, type Flag, type Interval, type PolarPoint,
   type RawRun, type ResultDigest, type RunInfo, type RunResult, type SessionSummary, type Settings, type Setup,
-  type TapCp, type WakeResult, type WallResult, type ZeroedRun, type RowLoads,
+  type TapCp, type WakeResult, type WallResult, type ZeroedRun, type RowLoads, type UncertaintyKey, type PolarIntervals,
 } from './types';
 import { freeStream } from './air';
 import { averageRun, applyZeros, unsteadiness } from './samples';
@@ -25,7 +25,13 @@ import { gammaFromCl, liftCrossCheck } from './crosscheck';
 import { sectionArea, wallCorrections, applyCorrections } from './corrections';
 import { correctionFor, correctionSet, type CorrectionInputs, type CorrectionPlan } from './correctionChoice';
 import { signaturePlan, type SignaturePlan } from './wallSignature';
-import { monteCarlo, instrumentStd } from './uncertainty';
+import { instrumentStd, monteCarlo } from './uncertainty';
+import { addGroupErrors, channelSd, instrumentModel, type InstrumentModel } from './instruments';
+import {
+  ADJ, ADJ_LENGTH, adjustedCorrection, adjustmentSd, correctedLift, reductionErrors, type ReductionErrors,
+} from './reductionErrors';
+import { runBudget } from './budget';
+import { orderContour } from './surface';
 import { buildMcPlan, evalMcPlan, type McPlan, type McValues, type PlanLayout } from './mcPlan';
 import { sessionStats } from './session';
 import { makeFlag } from './flags';
@@ -149,6 +155,8 @@ interface CoreInput {
   kq: number;
   /** Offsets added to every tap's x/c (Monte Carlo), by tap index in layout.taps. */
   tapDx?: Float64Array;
+  /** The reduction's own errors of one draw, in app/reductionErrors.ts ADJ order (Monte Carlo). */
+  adj?: Float64Array;
   bad: { id: string; reason: string }[];
   /** How to correct (the nominal pass resolves 'auto'; its first pass uses the classical plan). */
   correct: CorrectionPlan;
@@ -169,6 +177,8 @@ interface CoreOutput {
   correctionInputs: CorrectionInputs;
   clMomentum: number;
   gamma: { pressure: number; momentum: number; wall: number };
+  /** Corrected momentum cl and corrected Γ (app/reductionErrors.ts correctedLift). */
+  lift: ReturnType<typeof correctedLift>;
 }
 
 function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp: CoreInput): CoreOutput {
@@ -225,7 +235,8 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     wake = jonesDrag({
       probes: L.rakeTotal.map((r) => ({ y: r.y, H: v(r.ch.name), ps: statics.length ? interpolateStatic(statics, r.y) : undefined })),
       pInf,
-      qInf: q,
+      // Jones' q∞ = H∞ − p∞ (REDUCTION.md §4) when the setup measures H∞; else k_q·Δp_ref.
+      qInf: L.pTotal ? v(L.pTotal.name) - pInf : q,
       chord: setup.model.chord,
       edgeTol: settings.wakeEdgeTol,
     });
@@ -254,12 +265,13 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     });
   }
 
-  const cdU = wake ? wake.cd : NaN;
+  const adj = inp.adj;
+  const cdU = wake ? wake.cd + (adj ? adj[ADJ.cd] : 0) : NaN;
   const uncorrected: Coefficients = {
-    cl: main.cl,
+    cl: main.cl + (adj ? adj[ADJ.cl] : 0),
     cd: cdU,
-    cdp: main.cdp,
-    cmc4: main.cmc4,
+    cdp: main.cdp + (adj ? adj[ADJ.cdp] : 0),
+    cmc4: main.cmc4 + (adj ? adj[ADJ.cmc4] : 0),
     alphaDeg: inp.alphaDeg,
     q,
     V: fs.V,
@@ -271,16 +283,18 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     width: setup.facility.sectionWidth,
     sectionAreaC2: L.areaC2,
     uncorrected,
-    cmc4U: main.cmc4,
+    cmc4U: uncorrected.cmc4,
     wakeCd: cdU,
     wakeCaptured: wake?.captured ?? false,
     walls,
     signaturePlan: L.signature,
   };
-  const correction = correctionFor(inp.correct, correctionInputs)
-    ?? correctionFor({ ...inp.correct, method: 'barlow-rae-pope' }, correctionInputs)!;
-  const corrected = applyCorrections(uncorrected, correction, main.cmc4);
-  const clMomentum = walls ? walls.clMom : NaN;
+  const correction = adjustedCorrection(correctionFor(inp.correct, correctionInputs)
+    ?? correctionFor({ ...inp.correct, method: 'barlow-rae-pope' }, correctionInputs)!, adj);
+  const corrected = applyCorrections(uncorrected, correction, uncorrected.cmc4);
+  const wallScale = adj ? 1 + adj[ADJ.walls] : 1;
+  const clMomentum = walls ? walls.clMom * wallScale : NaN;
+  const gammaWall = walls ? walls.gammaWall * wallScale : NaN;
   return {
     fs,
     pInf,
@@ -295,10 +309,11 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     correctionInputs,
     clMomentum,
     gamma: {
-      pressure: gammaFromCl(main.cl, fs.V, setup.model.chord),
-      momentum: walls ? gammaFromCl(walls.clMom, fs.V, setup.model.chord) : NaN,
-      wall: walls ? walls.gammaWall : NaN,
+      pressure: gammaFromCl(uncorrected.cl, fs.V, setup.model.chord),
+      momentum: walls ? gammaFromCl(clMomentum, fs.V, setup.model.chord) : NaN,
+      wall: gammaWall,
     },
+    lift: correctedLift(corrected, correction, fs.V, clMomentum, gammaWall, setup.model.chord),
   };
 }
 
@@ -411,6 +426,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
         clWall: nominal.walls?.clWall,
         tolAbs: settings.liftTolAbs,
         tolRel: settings.liftTolRel,
+        corrected: { clPressure: nominal.corrected.cl, clMomentum: nominal.lift.clMom },
       })
     : null;
   if (cross) flags.push(cross);
@@ -459,10 +475,26 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
     if (s.flag) flags.push(s.flag);
   }
 
-  // Monte Carlo uncertainty on the corrected coefficients and circulations.
-  const uncertainty = settings.mcDraws > 0
-    ? runUncertainty(mcModel(setup, L, run, settings, bad, nominal, choice.plan, options.mcPath !== 'core'), settings, run)
-    : {};
+  // Monte Carlo uncertainty on the corrected coefficients and circulations, and the GUM budget.
+  let uncertainty: RunResult['uncertainty'] = {};
+  let budget: RunResult['budget'];
+  let cpU: RunResult['cpU'];
+  if (settings.mcDraws > 0) {
+    const m = mcModel(setup, L, run, settings, bad, nominal, choice.plan, options.mcPath !== 'core');
+    const nominalOut: Record<UKey, number> = {
+      cl: nominal.corrected.cl,
+      cd: nominal.corrected.cd,
+      cdp: nominal.corrected.cdp,
+      cmc4: nominal.corrected.cmc4,
+      clMom: nominal.lift.clMom,
+      gammaPressure: nominal.lift.pressure,
+      gammaMomentum: nominal.lift.momentum,
+      gammaWall: nominal.lift.wall,
+    };
+    uncertainty = runUncertainty(m, settings, run, nominalOut);
+    budget = runBudget(setup, m, run.info.alphaDeg, nominalOut);
+    cpU = tapCpUncertainty(L, m, nominal);
+  }
 
   return {
     run: info.run,
@@ -482,6 +514,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
     wake: nominal.wake,
     walls: nominal.walls,
     circulation: nominal.gamma,
+    circulationCorrected: { pressure: nominal.lift.pressure, momentum: nominal.lift.momentum, wall: nominal.lift.wall },
     correction: nominal.correction,
     corrections: choice.set,
     uncorrected: nominal.uncorrected,
@@ -489,9 +522,35 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
     clMomentum: nominal.clMomentum,
     spanwise,
     uncertainty,
+    ...(budget ? { budget } : {}),
+    ...(cpU ? { cpU } : {}),
     flags,
     inviscid: inviscidCp(setup.model.geometry, nominal.corrected.alphaDeg),
   };
+}
+
+/** u(Cp) of every tap for the Cp band: Cp = (p − p∞)/q with the tap's and p∞'s total reading
+ *  uncertainties (app/instruments.ts channelSd) and q's relative one (Δp_ref, k_q), in quadrature
+ *  (JCGM 100 eq. 10; the tap–p∞ correlation of a shared module is left out, a small overstatement). */
+function tapCpUncertainty(L: Layout, m: McModel, nominal: CoreOutput): Record<string, number> {
+  const at = new Map(m.names.map((n, k) => [n, k]));
+  const sdOf = (name: string) => {
+    const k = at.get(name);
+    return k === undefined ? 0 : channelSd(m.instruments, k, m.mean[k]);
+  };
+  const q = nominal.uncorrected.q;
+  const kDp = at.get(L.dpRef.name);
+  const dp = kDp === undefined ? NaN : m.mean[kDp];
+  const uqRel = Math.hypot(sdOf(L.dpRef.name) / dp, m.kqSd / m.kq);
+  const uPinf = sdOf(L.pStatic.name);
+  const out: Record<string, number> = {};
+  for (const t of nominal.taps) {
+    const ch = L.byTarget.get(key('tap', t.id));
+    if (!ch) continue;
+    const u = Math.hypot(Math.hypot(sdOf(ch.name), uPinf) / q, t.cp * uqRel);
+    if (Number.isFinite(u)) out[t.id] = u;
+  }
+  return out;
 }
 
 /** y of the largest total-pressure deficit on the rake. */
@@ -513,14 +572,17 @@ function referenceFlag(found: readonly ReferenceFinding[]): Flag {
   });
 }
 
-type UKey = 'cl' | 'cd' | 'cdp' | 'cmc4' | 'clMom' | 'gammaPressure' | 'gammaMomentum';
+type UKey = UncertaintyKey;
 
 /** The Monte Carlo model of one run: its random inputs and its per-draw evaluation. */
 export interface McModel {
-  /** Channels drawn, in draw order, with their nominal values and standard uncertainties. */
+  /** Channels drawn, in draw order, with their nominal values and independent standard
+   *  uncertainties (app/instruments.ts). */
   names: readonly string[];
   mean: Float64Array;
   sd: Float64Array;
+  /** The instrument model: groups with their correlated gain and zero errors. */
+  instruments: InstrumentModel;
   /** Taps whose x/c is drawn (in layout order) and the standard uncertainty of each. */
   tapCount: number;
   tapSd: number;
@@ -528,14 +590,26 @@ export interface McModel {
   alphaSd: number;
   kq: number;
   kqSd: number;
-  /** The model by runCore: values by `names`, tap offsets by tap, α, k_q. */
-  core(vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number): Record<UKey, number>;
+  /** The reduction's own errors and the standard uncertainties of the per-draw adjustments
+   *  (app/reductionErrors.ts ADJ order). */
+  errors: ReductionErrors;
+  adjSd: Float64Array;
+  /** The model by runCore: values by `names`, tap offsets by tap, α, k_q, adjustments (none: 0). */
+  core(vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number, adj?: Float64Array): Record<UKey, number>;
   /** The model as reduceRun evaluates it (the plan, or runCore where the plan does not cover a
    *  draw or the option asks for runCore). */
-  evaluate(vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number): Record<UKey, number>;
+  evaluate(vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number, adj?: Float64Array): Record<UKey, number>;
   /** Whether the run has a plan, and how the last `evaluate` went. */
   hasPlan: boolean;
   last: { path: 'plan' | 'core'; reordered: boolean };
+}
+
+/** The main row's good taps of the nominal pass in contour order, as arrays. */
+function mainRowArrays(nominal: CoreOutput, mainRow: string) {
+  const good = orderContour(nominal.taps.filter((t) => t.row === mainRow && !t.bad));
+  let nUpper = 0;
+  while (nUpper < good.length && good[nUpper].surface === 'upper') nUpper++;
+  return { x: good.map((t) => t.x), y: good.map((t) => t.y), cp: good.map((t) => t.cp), n: good.length, nUpper };
 }
 
 function mcModel(
@@ -543,34 +617,37 @@ function mcModel(
   nominal: CoreOutput, correct: CorrectionPlan, usePlan: boolean,
 ): McModel {
   const names = setup.channels.map((c) => c.name).filter((n) => run.values[n] !== undefined);
-  const sdByName = new Map<string, number>();
-  for (const ch of setup.channels) {
-    const x = run.values[ch.name];
-    if (x === undefined) continue;
-    const ui = instrumentStd(ch.uncertainty, x, L.scale.get(ch.name) ?? 1);
-    const se = run.stats[ch.name]?.stdErr ?? 0;
-    sdByName.set(ch.name, Math.sqrt(ui * ui + se * se));
-  }
+  const instruments = instrumentModel(setup, run, names, L.scale);
   const mean = Float64Array.from(names, (n) => run.values[n]);
-  const sd = Float64Array.from(names, (n) => sdByName.get(n) ?? 0);
+  const sd = instruments.sd;
   // A name drawn twice (duplicate channel names) is read at its last draw, as a record would be.
   const index = new Map<string, number>();
   names.forEach((n, k) => index.set(n, k));
+  const errors = reductionErrors({
+    row: mainRowArrays(nominal, nominal.main.row),
+    alphaDeg: run.info.alphaDeg,
+    wake: nominal.wake,
+    walls: nominal.walls,
+    chord: setup.model.chord,
+    height: setup.facility.sectionHeight,
+    correction: nominal.correction,
+  });
 
   const perturbed: Record<string, number> = {};
   const values = (n: string) => perturbed[n];
-  const core = (vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number): Record<UKey, number> => {
+  const outputs = (out: CoreOutput): Record<UKey, number> => ({
+    cl: out.corrected.cl,
+    cd: out.corrected.cd,
+    cdp: out.corrected.cdp,
+    cmc4: out.corrected.cmc4,
+    clMom: out.lift.clMom,
+    gammaPressure: out.lift.pressure,
+    gammaMomentum: out.lift.momentum,
+    gammaWall: out.lift.wall,
+  });
+  const core = (vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number, adj?: Float64Array): Record<UKey, number> => {
     for (let k = 0; k < names.length; k++) perturbed[names[k]] = vals[k];
-    const out = runCore(setup, L, run.info, settings, { values, alphaDeg, kq, tapDx, bad, correct });
-    return {
-      cl: out.corrected.cl,
-      cd: out.corrected.cd,
-      cdp: out.corrected.cdp,
-      cmc4: out.corrected.cmc4,
-      clMom: out.clMomentum,
-      gammaPressure: out.gamma.pressure,
-      gammaMomentum: out.gamma.momentum,
-    };
+    return outputs(runCore(setup, L, run.info, settings, { values, alphaDeg, kq, tapDx, adj, bad, correct }));
   };
 
   const plan: McPlan | null = usePlan
@@ -580,36 +657,31 @@ function mcModel(
         rule: settings.contourRule,
       }, index)
     : null;
-  const o: McValues = { cl: NaN, cd: NaN, cdp: NaN, cmc4: NaN, clMom: NaN, gammaPressure: NaN, gammaMomentum: NaN };
+  const o: McValues = { cl: NaN, cd: NaN, cdp: NaN, cmc4: NaN, clMom: NaN, gammaPressure: NaN, gammaMomentum: NaN, gammaWall: NaN };
   const model: McModel = {
     names,
     mean,
     sd,
+    instruments,
     tapCount: L.taps.length,
     tapSd: setup.model.tapPositionUncertainty,
     alphaSd: setup.model.alphaUncertaintyDeg,
     kq: setup.facility.qCalibration,
     kqSd: setup.facility.qCalibrationUncertainty ?? 0,
+    errors,
+    adjSd: adjustmentSd(errors),
     core,
     hasPlan: plan !== null,
     last: { path: 'core', reordered: false },
-    evaluate(vals, tapDx, alphaDeg, kq) {
-      if (plan && evalMcPlan(plan, vals, tapDx, alphaDeg, kq, o)) {
+    evaluate(vals, tapDx, alphaDeg, kq, adj) {
+      if (plan && evalMcPlan(plan, vals, tapDx, alphaDeg, kq, o, adj)) {
         model.last.path = 'plan';
         model.last.reordered = plan.reordered;
-        return {
-          cl: o.cl,
-          cd: o.cd,
-          cdp: o.cdp,
-          cmc4: o.cmc4,
-          clMom: o.clMom,
-          gammaPressure: o.gammaPressure,
-          gammaMomentum: o.gammaMomentum,
-        };
+        return { ...o };
       }
       model.last.path = 'core';
       model.last.reordered = false;
-      return core(vals, tapDx, alphaDeg, kq);
+      return core(vals, tapDx, alphaDeg, kq, adj);
     },
   };
   return model;
@@ -623,6 +695,7 @@ function planLayout(L: Layout): PlanLayout {
   const P: PlanLayout = {
     dpRef: L.dpRef.name,
     pStatic: L.pStatic.name,
+    ...(L.pTotal ? { pTotal: L.pTotal.name } : {}),
     taps: L.taps.map(({ tap, ch }) => ({ id: tap.id, x: tap.x, y: tap.y, surface: tap.surface, row: tap.row, ch: ch.name })),
     rakeTotal: L.rakeTotal.map((r) => ({ y: r.y, ch: r.ch.name })),
     rakeStatic: L.rakeStatic.map((r) => ({ y: r.y, ch: r.ch.name })),
@@ -637,19 +710,41 @@ function planLayout(L: Layout): PlanLayout {
   return P;
 }
 
-/** JCGM 101 Monte Carlo of one run: every channel from its instrument uncertainty and standard
- *  error, the tap positions, α and k_q, drawn in that order from one seeded stream. */
-function runUncertainty(m: McModel, settings: Settings, run: ZeroedRun): Partial<Record<UKey, Interval>> {
-  const { mean, sd, tapSd } = m;
+/** JCGM 101 Monte Carlo of one run, every input drawn from one seeded stream in this order: each
+ *  channel's independent error (instrument or linearity, standard error, drift residual), the tap
+ *  positions, α, k_q; then, when the setup has transducer groups, each group's gain and zero; then
+ *  the reduction's own errors (ADJ order). The intervals sit on the nominal values (`nominal`),
+ *  the mean of the draws kept beside them. */
+function runUncertainty(m: McModel, settings: Settings, run: ZeroedRun, nominal: Record<UKey, number>): Partial<Record<UKey, Interval>> {
+  const { mean, sd, tapSd, adjSd } = m;
+  const groups = m.instruments.groups;
   const vals = new Float64Array(mean.length);
   const tapDx = new Float64Array(m.tapCount);
-  return monteCarlo<UKey>(settings.mcDraws, settings.mcSeed + run.info.run, (d) => {
+  const gain = new Float64Array(groups.length);
+  const zero = new Float64Array(groups.length);
+  const adj = new Float64Array(ADJ_LENGTH);
+  const mc = monteCarlo<UKey>(settings.mcDraws, settings.mcSeed + run.info.run, (d) => {
     for (let k = 0; k < vals.length; k++) vals[k] = d.normal(mean[k], sd[k]);
     for (let i = 0; i < tapDx.length; i++) tapDx[i] = d.normal(0, tapSd);
     const alphaDeg = d.normal(run.info.alphaDeg, m.alphaSd);
     const kq = m.kqSd > 0 ? d.normal(m.kq, m.kqSd) : m.kq;
-    return m.evaluate(vals, tapDx, alphaDeg, kq);
+    if (groups.length) {
+      for (let g = 0; g < groups.length; g++) {
+        gain[g] = d.normal(0, groups[g].gain);
+        zero[g] = d.normal(0, groups[g].zeroPa);
+      }
+      addGroupErrors(m.instruments, mean, vals, gain, zero);
+    }
+    for (let j = 0; j < ADJ_LENGTH; j++) adj[j] = d.normal(0, adjSd[j]);
+    return m.evaluate(vals, tapDx, alphaDeg, kq, adj);
   });
+  const out: Partial<Record<UKey, Interval>> = {};
+  for (const k of Object.keys(mc) as UKey[]) {
+    const iv = mc[k];
+    if (!Number.isFinite(iv.value)) continue;
+    out[k] = { value: nominal[k], u: iv.u, lo: iv.lo, hi: iv.hi, mean: iv.value };
+  }
+  return out;
 }
 
 /**
@@ -665,10 +760,26 @@ export function uncertaintyModel(setup: Setup, run: ZeroedRun, settings: Setting
 // ---------------------------------------------------------------------------------------------
 // Session.
 
-/** The momentum-method cl put on the corrected basis of the pressure cl (same factor). */
-export function correctedMomentumCl(r: Pick<ResultDigest, 'uncorrected' | 'corrected' | 'correction' | 'clMomentum'>): number {
-  const f = r.uncorrected.cl !== 0 ? r.corrected.cl / r.uncorrected.cl : 1 - r.correction.sigma - 2 * r.correction.eps;
-  return r.clMomentum * f;
+/** The momentum-method cl put on the corrected basis of the pressure cl (same factor
+ *  1 − σ − 2ε, REDUCTION.md §8; the value its interval sits on). */
+export function correctedMomentumCl(r: Pick<ResultDigest, 'correction' | 'clMomentum'>): number {
+  return r.clMomentum * (1 - r.correction.sigma - 2 * r.correction.eps);
+}
+
+/** The polar error bars of a result: its 95 % intervals of cl, cl_mom, cd (wake) and cm, or null. */
+export function polarIntervals(r: Pick<RunResult, 'uncertainty'>): PolarIntervals | null {
+  const out: PolarIntervals = {};
+  for (const k of ['cl', 'clMom', 'cd', 'cmc4'] as const) {
+    const iv = r.uncertainty[k];
+    if (iv && Number.isFinite(iv.lo) && Number.isFinite(iv.hi)) out[k] = [iv.lo, iv.hi];
+  }
+  return Object.keys(out).length ? out : null;
+}
+
+/** A digest's stored intervals, or a full result's own. */
+function intervalsOf(r: ResultDigest | RunResult): { intervals?: PolarIntervals } {
+  const iv = ('intervals' in r ? r.intervals : undefined) ?? ('uncertainty' in r ? polarIntervals(r) : null);
+  return iv ? { intervals: iv } : {};
 }
 
 /** String.prototype.localeCompare's own order (default locale and options), one collator reused:
@@ -692,6 +803,7 @@ export function summariseSession(setup: Setup, results: ResultDigest[], infos: R
     cmc4: r.corrected.cmc4,
     time: info.time,
     flagged: r.flags.length > 0,
+    ...intervalsOf(r),
   }));
   // Statistics from the runs nobody should reject (runs with a 'reject' flag are left out).
   const usable = rows.filter(({ r }) => !r.flags.some((f) => f.severity === 'reject'));

@@ -9,8 +9,10 @@
  *  the classical wake blockage is (c/4h)·cd_u for both classical methods — the source between
  *  walls, docs/WALL-CORRECTIONS.md — and the default correction is 'auto'; 0.4.0: the
  *  bad-tap test by prediction uncertainty and the stagnation reference check of app/tapCheck.ts,
- *  the contour rule named in each row's loads). */
-export const CORE_VERSION = '0.4.0';
+ *  the contour rule named in each row's loads; 0.5.0: the reduction's own errors and the
+ *  transducer groups in the uncertainty, every interval on the corrected basis, corrected Γ, the
+ *  per-run budget, the wake's q∞ = H∞ − p∞ when H∞ is measured). */
+export const CORE_VERSION = '0.5.0';
 
 export type PressureUnit =
   | 'Pa' | 'kPa' | 'hPa' | 'mbar' | 'psi' | 'inH2O' | 'mmH2O' | 'mmHg' | 'torr';
@@ -96,6 +98,26 @@ export interface Channel {
   uncertainty: InstrumentUncertainty;
 }
 
+/** Channels that share one transducer or scanner module (setup `transducerGroups`): their errors
+ *  are correlated. Standard uncertainties (k = 1). See app/instruments.ts and docs/LOG-FORMAT.md. */
+export interface TransducerGroup {
+  id: string;
+  /** Channel names (each in at most one group). */
+  channels: string[];
+  /** Unit of `zero` and `fullScale`. */
+  unit: PressureUnit;
+  /** Full scale of the transducer(s), in `unit`. */
+  fullScale: number;
+  /** Gain (span) error common to the group, % of reading. */
+  gainPercent: number;
+  /** Zero (offset) error common to the group, in `unit`: removed by the wind-off zero; counted in
+   *  full only for a run without one. */
+  zero: number;
+  /** Each channel's own error at a reading (non-linearity, hysteresis, repeatability), % of full
+   *  scale, independent from channel to channel and not removed by the zero. */
+  linearityPercentFS: number;
+}
+
 export interface ModelDef {
   name: string;
   /** Chord c, m. */
@@ -128,6 +150,9 @@ export interface Setup {
   floor: WallTap[];
   ceiling: WallTap[];
   channels: Channel[];
+  /** Channels sharing a transducer or module (optional; without it every channel's own
+   *  uncertainty is an independent error, as before). */
+  transducerGroups?: TransducerGroup[];
   /** Session defaults overriding DEFAULT_SETTINGS. */
   settings?: Partial<Settings>;
 }
@@ -295,6 +320,38 @@ export interface Interval {
   u: number;
   lo: number;
   hi: number;
+  /** Mean of the Monte Carlo values, when `value` is the nominal result instead. */
+  mean?: number;
+}
+
+/** Outputs that carry an uncertainty (all on the corrected basis). */
+export type UncertaintyKey = 'cl' | 'cd' | 'cdp' | 'cmc4' | 'clMom' | 'gammaPressure' | 'gammaMomentum' | 'gammaWall';
+
+/** One line of the budget: an input quantity (or a group of independent ones) and what it
+ *  contributes to each output, c_i·u(x_i) (JCGM 100 §5.1.3, eq. 10 terms). */
+export interface BudgetLine {
+  /** Short name of the source. */
+  source: string;
+  /** Kind: instrument, reference, geometry, reduction (the method's own error), correction model. */
+  kind: 'instrument' | 'reference' | 'geometry' | 'reduction' | 'correction';
+  /** Standard uncertainty of the input in its own unit (text, e.g. "0.05°"), and how it was found. */
+  u: string;
+  basis: string;
+  /** Several independent inputs combined (then no single sensitivity). */
+  inputs: number;
+  /** Sensitivity ∂y/∂x per output (per unit of `u`), when the line is one input. */
+  sensitivity?: Partial<Record<UncertaintyKey, number>>;
+  /** |c_i|·u(x_i) per output (root-sum-square over the inputs of the line). */
+  contribution: Partial<Record<UncertaintyKey, number>>;
+}
+
+/** The per-run budget: its lines, the combined standard uncertainty by JCGM 100 eq. (10), the
+ *  analytic 95 % interval value ± k·u_c (k = 1.96, normal) beside the Monte Carlo one. */
+export interface UncertaintyBudget {
+  lines: BudgetLine[];
+  combined: Partial<Record<UncertaintyKey, number>>;
+  analytic: Partial<Record<UncertaintyKey, { lo: number; hi: number }>>;
+  k: number;
 }
 
 export interface TapCp {
@@ -467,8 +524,12 @@ export interface RunResult {
   surface: SurfaceLoads;
   wake: WakeResult | null;
   walls: WallResult | null;
-  /** Bound circulation Γ by Kutta–Joukowski from each method, m²/s. */
+  /** Bound circulation Γ by Kutta–Joukowski from each method, m²/s, UNCORRECTED: ½·V_u·c·cl_u
+   *  (pressure, momentum) and the wall line integral as measured. */
   circulation: { pressure: number; momentum: number; wall: number };
+  /** The same on the corrected basis: ½·V·c·cl with V and cl corrected (the wall line integral
+   *  scaled by the same factor (1 + ε)(1 − σ − 2ε)). The intervals of `uncertainty` sit on these. */
+  circulationCorrected?: { pressure: number; momentum: number; wall: number };
   correction: CorrectionResult;
   /** Every wall-correction method side by side (absent in results stored before core 0.3.0). */
   corrections?: CorrectionSet;
@@ -477,8 +538,15 @@ export interface RunResult {
   /** cl by the wall-momentum method (uncorrected), for the cross-check. */
   clMomentum: number;
   spanwise: { spread: number; CL: number } | null;
-  /** 95 % intervals (Monte Carlo) of the corrected coefficients and circulations. */
-  uncertainty: Partial<Record<'cl' | 'cd' | 'cdp' | 'cmc4' | 'clMom' | 'gammaPressure' | 'gammaMomentum', Interval>>;
+  /** 95 % intervals (Monte Carlo, JCGM 101) of the corrected coefficients, the corrected
+   *  momentum cl and the corrected circulations (circulationCorrected); `value` is the nominal
+   *  corrected figure printed beside the interval, `mean` the mean of the draws. */
+  uncertainty: Partial<Record<UncertaintyKey, Interval>>;
+  /** GUM-style budget (JCGM 100 §8) of the same outputs; absent when Monte Carlo is off. */
+  budget?: UncertaintyBudget;
+  /** Standard uncertainty of each tap's Cp (every input, Cp = (p − p∞)/q), by tap id; absent when
+   *  Monte Carlo is off. The Cp plot draws its 95 % band. */
+  cpU?: Record<string, number>;
   flags: Flag[];
   /** Inviscid panel-method Cp at the corrected α (x/c, Cp, surface). */
   inviscid: { x: number; cp: number; surface: Surface }[];
@@ -489,6 +557,8 @@ export interface RunResult {
 export type ResultDigest = Pick<RunResult, 'run' | 'corrected' | 'uncorrected' | 'correction' | 'clMomentum' | 'flags'> & {
   /** Taps dropped (who and why), for the session findings (app/sessionFaults.ts). */
   dropped?: Pick<DroppedTap, 'id' | 'reason' | 'by'>[];
+  /** The 95 % intervals the polars draw as error bars (absent in digests stored before 0.3.0). */
+  intervals?: PolarIntervals;
   rows: Pick<RowLoads, 'row' | 'z' | 'cl'>[];
   settings: Pick<Settings, 'spanSpreadTol'>;
 };
@@ -510,8 +580,13 @@ export interface SessionStats {
   repeatSpread: number | null;
 }
 
+/** 95 % intervals [lo, hi] of a polar point's corrected values (error bars). */
+export type PolarIntervals = Partial<Record<'cl' | 'clMom' | 'cd' | 'cmc4', [number, number]>>;
+
 /** One point of the session polars. */
 export interface PolarPoint {
+  /** 95 % intervals of cl, clMom, cd (wake) and cm, when the reduction had Monte Carlo. */
+  intervals?: PolarIntervals;
   run: number;
   alphaDeg: number;
   cl: number;

@@ -72,8 +72,8 @@ function checkWall(taps: WallTapCp[], name: string): WallTapCp[] {
   return [...taps].sort((a, b) => a.x - b.x);
 }
 
-/** Wall speed ratio u/V = √(1 − Cp), clamped at 0 for Cp > 1. */
-function speedRatio(cp: number): number {
+/** Wall speed ratio u/V = √(1 − Cp), clamped at 0 for Cp > 1 (shared with app/mcPlan.ts). */
+export function speedRatio(cp: number): number {
   return Math.sqrt(Math.max(0, 1 - cp));
 }
 

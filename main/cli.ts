@@ -240,6 +240,7 @@ async function reduceAndTell(store: Store, sessionId: number, g: GlobalOpts, opt
 async function follow(folder: string, g: GlobalOpts, settleMs: number, reduce: boolean): Promise<void> {
   const dir = resolve(folder);
   if (!existsSync(dir)) throw new InputError(`no folder ${dir}`);
+  const { runsAffectedBy, watch } = await D().followDeps();
   const store = openStore(g, 'create');
   const actor = actorOf(g);
   let busy = false;
@@ -263,7 +264,7 @@ async function follow(folder: string, g: GlobalOpts, settleMs: number, reduce: b
         for (const run of rep.importedRuns) if (kind.get(run) === 'data') out(`run ${run}: stored (not reduced)`);
         return;
       }
-      const todo = D().runsAffectedBy(rows, rep.importedRuns);
+      const todo = runsAffectedBy(rows, rep.importedRuns);
       if (!todo.length) return;
       const { results } = D().reduceStoredSession(store, rep.sessionId, { runs: todo, actor });
       const freshSet = new Set(rep.importedRuns);
@@ -292,7 +293,7 @@ async function follow(folder: string, g: GlobalOpts, settleMs: number, reduce: b
   };
 
   await cycle();
-  const watcher = D().watch(dir, {
+  const watcher = watch(dir, {
     ignoreInitial: true,
     depth: 3,
     // hidden files, partial downloads and databases inside the folder are not session files

@@ -10,8 +10,12 @@ export { storedDaySheet } from './daysheetData';
 export { exportResultsCsv, exportResultsJson } from './export';
 export { listRunsMarked, staleRuns } from './stale';
 export { runRanges } from './daysheet';
-export { runsAffectedBy } from './handlers';
 export { settingsPatchSchema } from '../app/log/schema';
 export { correctedMomentumCl } from '../app/reduce';
 export { SingleBar, Presets } from 'cli-progress';
-export { watch } from 'chokidar';
+
+/** What only `follow` needs (the IPC handlers' module brings the whole contract with it). */
+export async function followDeps() {
+  const [{ runsAffectedBy }, { watch }] = await Promise.all([import('./handlers'), import('chokidar')]);
+  return { runsAffectedBy, watch };
+}

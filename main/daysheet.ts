@@ -333,7 +333,7 @@ function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Set
   return `<table class="runs">${head}<tbody>${body.join('\n')}</tbody></table>
 <p class="sub">${SEVERITY.reject.glyph} and a solid left bar: at least one ${SEVERITY.reject.word} flag (${SEVERITY.reject.meaning.toLowerCase()}); ${SEVERITY.warn.glyph} and a dashed bar: ${SEVERITY.warn.word} flags only (${SEVERITY.warn.meaning.toLowerCase()}). Times are local (${escapeHtml(zoneOffset(new Date(args.generatedAt), tz))}).
 α corr, q, V, Re, cl, cd and cm are wall-corrected (${escapeHtml(CORRECTION_WORDS[settings.correction] ?? settings.correction)}); the status column names each run's method.
-cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl.${args.results?.length ? ' Small figures under a value: half the width of its 95 % Monte Carlo coverage interval (JCGM 101:2008), same basis as the value.' : ''}</p>`;
+cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl with V and cl corrected.${args.results?.length ? ' Small figures under a value: half the width of its 95 % Monte Carlo coverage interval (JCGM 101:2008), same basis as the value.' : ''}</p>`;
 }
 
 

@@ -47,7 +47,7 @@ export function exportResultsCsv(runs: RunRow[], setup: Setup, results?: RunResu
   for (const row of runs) {
     const r = row.result;
     const f = full.get(row.run);
-    const gammaWall = (r as { gammaWall?: number } | null)?.gammaWall ?? f?.circulation.wall;
+    const gammaWall = (r as { gammaWall?: number } | null)?.gammaWall ?? (f?.circulationCorrected ?? f?.circulation)?.wall;
     const flags = r?.flags ?? [];
     const review = row.review
       ? `${row.review.verdict} by ${row.review.actor} at ${row.review.at}${row.review.comment ? `: ${row.review.comment}` : ''}`

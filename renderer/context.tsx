@@ -11,7 +11,7 @@ export function useApi(): RakelineApi {
   return api;
 }
 
-export interface Notice { id: number; kind: 'info' | 'error'; text: string }
+export interface Notice { id: number; kind: 'info' | 'error'; text: string; fading?: boolean }
 
 interface Status {
   /** Labels of the tasks running now (the busy indicator shows the latest). */
@@ -39,8 +39,11 @@ export function StatusProvider({ children }: { children: ReactNode }) {
   const notify = useCallback((kind: Notice['kind'], text: string) => {
     const id = nextId.current++;
     setNotices((n) => [...n.slice(-4), { id, kind, text }]);
-    // Information fades on its own; errors stay until dismissed.
-    if (kind === 'info') setTimeout(() => setNotices((n) => n.filter((x) => x.id !== id)), 8000);
+    // Information fades on its own (a second's fade, then gone); errors stay until dismissed.
+    if (kind === 'info') {
+      setTimeout(() => setNotices((n) => n.map((x) => (x.id === id ? { ...x, fading: true } : x))), 7000);
+      setTimeout(() => setNotices((n) => n.filter((x) => x.id !== id)), 8000);
+    }
   }, []);
   const dismiss = useCallback((id: number) => setNotices((n) => n.filter((x) => x.id !== id)), []);
 

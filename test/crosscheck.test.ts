@@ -39,11 +39,11 @@ describe('liftCrossCheck — tolerance 0.02 + 3 % (common practice, no source)',
   it('names both methods, both values, the difference and the tolerance', () => {
     const f = liftCrossCheck({ clPressure: 1.162, clMomentum: 0.981, ...tol });
     expect(f?.reason).toBe(
-      'Lift methods disagree: surface pressures give cl = 1.162, wall momentum gives 0.981 ' +
-        '(difference 0.181, tolerance 0.055).',
+      'Lift methods disagree: surface pressures give cl = 1.1620, wall momentum gives 0.9810, uncorrected as the cross-check compares them ' +
+        '(difference 0.1810, tolerance 0.0549).', // 0.02 + 0.03 × 1.162 = 0.05486
     );
     const g = liftCrossCheck({ clPressure: 1.162, clMomentum: 0.981, clWall: 0.99, ...tol });
-    expect(g?.reason).toContain('wall circulation integral gives 0.990');
+    expect(g?.reason).toContain('wall circulation integral gives 0.9900');
     expect(flagText(g!)).toMatch(/^hold: Lift methods disagree: surface pressures/);
   });
 

@@ -78,7 +78,10 @@ describe('flag vocabulary table', () => {
 
   it('the lift template keeps the published wording of the cross-check numbers', () => {
     const f = makeFlag('lift-mismatch', { clPressure: 1.162, clMomentum: 0.981, tol: 0.055 });
-    expect(f.reason).toBe('Lift methods disagree: surface pressures give cl = 1.162, wall momentum gives 0.981 (difference 0.181, tolerance 0.055).');
+    expect(f.reason).toBe('Lift methods disagree: surface pressures give cl = 1.1620, wall momentum gives 0.9810, uncorrected as the cross-check compares them (difference 0.1810, tolerance 0.0550).');
+    // With the corrected pair, quoted as the coefficient table shows them (4 decimals).
+    const g = makeFlag('lift-mismatch', { clPressure: 1.162, clMomentum: 0.981, tol: 0.055, corrected: { clPressure: 1.1161, clMomentum: 0.94226 } });
+    expect(g.reason).toMatch(/; corrected: 1\.1161 and 0\.9423\.$/);
     expect(f.severity).toBe('reject');
   });
 });

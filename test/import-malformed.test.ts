@@ -114,6 +114,23 @@ describe('malformed folders leave the database unchanged', () => {
     expect(line).toBeGreaterThan(1);
   });
 
+  it('a transducer group naming a channel that does not exist: refused, nothing stored', async () => {
+    let line = 0;
+    await expectRefused(
+      (f) =>
+        editFile(join(f, 'setup.json'), (t) => {
+          const s = JSON.parse(t);
+          s.transducerGroups = [{ id: 'MOD1', channels: ['S_CU01', 'S_CU99'], unit: 'Pa', fullScale: 2500, gainPercent: 0.05, zero: 2, linearityPercentFS: 0.03 }];
+          const out = JSON.stringify(s, null, 2);
+          line = out.slice(0, out.indexOf('"S_CU99"')).split('\n').length;
+          return out;
+        }),
+      /^setup\.json line \d+, field transducerGroups\[0\]\.channels\[1\]: transducer group "MOD1" names channel "S_CU99", which is not in the channel map$/,
+      { file: 'setup.json', column: 'transducerGroups[0].channels[1]', line: expect.any(Number) as unknown as number },
+    );
+    expect(line).toBeGreaterThan(1);
+  });
+
   it('duplicate run number in the index', async () => {
     await expectRefused(
       (f) => editFile(join(f, 'runs.csv'), (t) => {

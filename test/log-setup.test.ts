@@ -31,6 +31,35 @@ function lineOfText(text: string, needle: string, after = ''): number {
   return text.slice(0, at).split('\n').length;
 }
 
+describe('parseSetup: transducer groups', () => {
+  const group = (over: Record<string, unknown> = {}) => ({
+    id: 'MOD1', channels: ['S_CU01', 'S_CU02'], unit: 'Pa', fullScale: 2500, gainPercent: 0.05, zero: 2, linearityPercentFS: 0.03, ...over,
+  });
+  it('a valid group is accepted and kept', () => {
+    const s = parseSetup(edited((x) => (x.transducerGroups = [group()])), 'setup.json');
+    expect(s.transducerGroups).toEqual([group()]);
+  });
+  it('errors name the file, the line of the offending value and its key', () => {
+    const unknown = edited((x) => (x.transducerGroups = [group({ channels: ['S_CU01', 'NOPE'] })]));
+    const e1 = setupErr(unknown);
+    expect(e1.message).toBe(`setup.json line ${lineOfText(unknown, '"NOPE"')}, field transducerGroups[0].channels[1]: transducer group "MOD1" names channel "NOPE", which is not in the channel map`);
+    const twice = edited((x) => (x.transducerGroups = [group({ channels: ['S_CU01', 'S_CU02', 'S_CU01'] })]));
+    expect(setupErr(twice).message).toMatch(/^setup\.json line \d+, field transducerGroups\[0\]\.channels\[2\]: transducer group "MOD1" names channel "S_CU01" twice$/);
+    const two = edited((x) => (x.transducerGroups = [group(), group({ id: 'MOD2', channels: ['S_CU02'] })]));
+    expect(setupErr(two).message).toMatch(/field transducerGroups\[1\]\.channels\[0\]: channel "S_CU02" is in transducer groups "MOD1" and "MOD2"/);
+    const negative = edited((x) => (x.transducerGroups = [group({ gainPercent: -0.05 })]));
+    const e2 = setupErr(negative);
+    expect(e2.message).toMatch(/^setup\.json line (\d+), field transducerGroups\[0\]\.gainPercent: /);
+    expect(e2.line).toBe(lineOfText(negative, '"gainPercent"'));
+    const text = edited((x) => (x.transducerGroups = [group({ zero: 'two' })]));
+    const e3 = setupErr(text);
+    expect(e3.message).toMatch(/field transducerGroups\[0\]\.zero: /);
+    expect(e3.line).toBe(lineOfText(text, '"zero"'));
+    expect(setupErr(edited((x) => (x.transducerGroups = [group({ channels: ['P_STAT', 'DP_REF'] }), group({ id: 'MOD1', channels: ['S_CU01'] })]))).message)
+      .toMatch(/transducer group id "MOD1" is used twice/);
+  });
+});
+
 describe('parseSetup', () => {
   it('accepts the mini setup and returns it unchanged', () => {
     expect(parseSetup(setupText, 'setup.json')).toEqual(miniSetup());
@@ -157,7 +186,7 @@ describe('docs/setup.schema.json', () => {
   it('describes the fields of the Setup type', () => {
     const s = JSON.parse(schemaText());
     expect(s.$schema).toBe('https://json-schema.org/draft/2020-12/schema');
-    expect(Object.keys(s.properties).sort()).toEqual(Object.keys(miniSetup()).sort());
+    expect(Object.keys(s.properties).sort()).toEqual([...Object.keys(miniSetup()), 'transducerGroups'].sort());
     expect(s.required).toEqual(['formatVersion', 'session', 'facility', 'model', 'taps', 'rake', 'floor', 'ceiling', 'channels']);
   });
 });

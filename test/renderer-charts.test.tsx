@@ -4,7 +4,7 @@
 import { describe, expect, it, vi } from 'vitest';
 import type { ActiveElement, Chart, ChartEvent } from 'chart.js';
 import type { PolarPoint, RunResult } from '../app/types';
-import { clAlphaConfig, cpAxisRange, cpChartConfig, sweepDirections, wakeChartConfig, wallChartConfig, type XY } from '../renderer/charts';
+import { clAlphaConfig, cpAxisRange, dragPolarConfig, cpChartConfig, sweepDirections, wakeChartConfig, wallChartConfig, type XY } from '../renderer/charts';
 import { reducedMini } from './renderer-fixtures';
 
 const mini = reducedMini();
@@ -101,10 +101,23 @@ describe('polars', () => {
     expect(down.borderDash.length).toBeGreaterThan(0);
     expect(up.data.filter((p) => Number.isFinite(p.x)).map((p) => p.run)).toEqual([1, 2, 3, 4, 5, 8]);
     expect(up.data.some((p) => Number.isNaN(p.x))).toBe(true); // the gap before run 8
-    expect(down.data.map((p) => p.run)).toEqual([6, 7]);
+    expect(down.data.filter((p) => Number.isFinite(p.x)).map((p) => p.run)).toEqual([6, 7]);
+    // Run 6 is on hold: its marker stays, but a gap follows it, so no line joins it to run 7.
+    expect(Number.isNaN(down.data[1].x)).toBe(true);
     // Both lift methods are on the same axes.
     expect(ds.some((d) => /wall momentum, up-sweep/.test(d.label))).toBe(true);
     // Held runs get the ✕ overlay.
     expect(ds.find((d) => /on hold/.test(d.label))!.data.map((p) => p.run)).toEqual([6]);
+  });
+
+  it('never joins a held run into the drag polar line: each line segment joins two runs not on hold', () => {
+    const cfg = dragPolarConfig(sweep, new Set([3]));
+    const ds = cfg.data.datasets as { label: string; data: XY[] }[];
+    const up = ds.find((d) => /wake rake, up-sweep/.test(d.label))!;
+    expect(up.data.filter((p) => Number.isFinite(p.x)).map((p) => p.run)).toEqual([1, 2, 3, 4, 5, 8]);
+    for (let i = 1; i < up.data.length; i++) {
+      const a = up.data[i - 1], b = up.data[i];
+      if (Number.isFinite(a.x) && Number.isFinite(b.x)) expect([a.run, b.run]).not.toContain(3);
+    }
   });
 });

@@ -100,7 +100,7 @@ describe('run table', () => {
     const m = await mount(<Harness rows={rows} onOpen={() => undefined} />);
     cleanup = m.unmount;
     const head = m.container.querySelector('thead')!.textContent!;
-    for (const h of ['α [°]', 'q [Pa]', 'Re [×106]', 'Γ [m²/s]']) expect(head).toContain(h);
+    for (const h of ['α [°]', 'q [Pa]', 'Re [×106]', 'Γ corr. [m²/s]']) expect(head).toContain(h);
     const heads = RUN_COLUMNS.map((c) => c.title);
     expect(heads.some((t) => /degrees/.test(t))).toBe(true);
     expect(heads.some((t) => /dynamic pressure, Pa/.test(t))).toBe(true);

@@ -50,7 +50,7 @@ describe('reduceStoredSession', () => {
       expect(row.cd).toEqual(r.corrected.cd);
       expect(row.q).toBe(r.corrected.q);
       expect(row.alphaCorrDeg).toBe(r.corrected.alphaDeg);
-      expect(row.gammaPressure).toBe(r.circulation.pressure);
+      expect(row.gammaPressure).toBe(r.circulationCorrected!.pressure); // the corrected Γ (the day log sits it beside corrected cl)
       expect(row.flags).toEqual(r.flags);
     }
     expect(store.listRuns(1).filter((r) => r.kind === 'zero').every((r) => r.result === null)).toBe(true);

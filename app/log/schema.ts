@@ -82,6 +82,19 @@ export const channelSchema = z
   })
   .strict();
 
+/** Channels sharing one transducer or scanner module (optional; app/instruments.ts). */
+export const transducerGroupSchema = z
+  .object({
+    id: id(),
+    channels: z.array(z.string().min(1).max(64)).min(1).describe('Names of the channels on this transducer or module'),
+    unit: z.enum(PRESSURE_UNITS).describe('Unit of zero and fullScale'),
+    fullScale: positive().describe('Full scale of the transducer(s), in unit'),
+    gainPercent: nonNeg().describe('Standard uncertainty (k = 1) of the gain common to the group, % of reading'),
+    zero: nonNeg().describe('Standard uncertainty (k = 1) of the zero common to the group, in unit; removed by the wind-off zero, counted only for runs without one'),
+    linearityPercentFS: nonNeg().describe("Standard uncertainty (k = 1) of each channel's own error (non-linearity, hysteresis), % of full scale, independent between channels and not removed by the zero"),
+  })
+  .strict();
+
 export const setupSchema = z
   .object({
     formatVersion: z.literal(1),
@@ -135,6 +148,10 @@ export const setupSchema = z
     floor: z.array(z.object({ id: id(), x: finite() }).strict()).describe('Floor static taps; x in m from the model quarter chord, positive downstream'),
     ceiling: z.array(z.object({ id: id(), x: finite() }).strict()).describe('Ceiling static taps; x as for the floor'),
     channels: z.array(channelSchema).min(1),
+    transducerGroups: z
+      .array(transducerGroupSchema)
+      .optional()
+      .describe('Channels that share one transducer or scanner module, with their correlated gain and zero errors; channels in a group use these figures instead of their own uncertainty'),
     settings: settingsPatchSchema.optional().describe('Session defaults of the reduction settings'),
   })
   .strict();

@@ -136,8 +136,35 @@ function crossCheck(s: Setup, text: string, file: string): void {
       fail(text, file, ['channels'], `the channel map needs a reference channel "${ref}" (target {"kind":"reference","ref":"${ref}"})`);
     }
   }
+  checkGroups(s, text, file);
   const bad = s.settings?.badTaps ?? [];
   bad.forEach((b, i) => {
     if (!tapIds.has(b)) fail(text, file, ['settings', 'badTaps', i], `bad tap ${shown(b)} is not in the tap table`);
+  });
+}
+
+/** Transducer groups: every channel named exists, is a pressure channel and sits in one group
+ *  only; group ids are unique. */
+function checkGroups(s: Setup, text: string, file: string): void {
+  const groups = s.transducerGroups ?? [];
+  const units = new Map(s.channels.map((c) => [c.name, c.unit]));
+  const ids = new Set<string>();
+  const owner = new Map<string, string>();
+  groups.forEach((g, i) => {
+    if (ids.has(g.id)) fail(text, file, ['transducerGroups', i, 'id'], `transducer group id ${shown(g.id)} is used twice`);
+    ids.add(g.id);
+    g.channels.forEach((name, j) => {
+      const at: JsonPath = ['transducerGroups', i, 'channels', j];
+      const unit = units.get(name);
+      if (unit === undefined) fail(text, file, at, `transducer group ${shown(g.id)} names channel ${shown(name)}, which is not in the channel map`);
+      if (unit === 'deg') fail(text, file, at, `transducer group ${shown(g.id)} names the flow-angle channel ${shown(name)}; groups hold pressure channels`);
+      const prev = owner.get(name);
+      if (prev !== undefined) {
+        fail(text, file, at, prev === g.id
+          ? `transducer group ${shown(g.id)} names channel ${shown(name)} twice`
+          : `channel ${shown(name)} is in transducer groups ${shown(prev)} and ${shown(g.id)}; a channel sits on one transducer`);
+      }
+      owner.set(name, g.id);
+    });
   });
 }

@@ -39,7 +39,7 @@ export const RUN_COLUMNS: Column[] = [
   { key: 'cd', head: <>c<sub>d</sub> wake</>, title: 'Drag coefficient from the wake rake (Jones)', value: (r) => res(r)?.cd ?? null, cell: (r) => fix(res(r)?.cd, 5), numeric: true },
   { key: 'cdp', head: <>c<sub>d</sub> p</>, title: 'Pressure drag coefficient from surface pressures', value: (r) => res(r)?.cdp ?? null, cell: (r) => fix(res(r)?.cdp, 5), numeric: true },
   { key: 'cm', head: <>c<sub>m c/4</sub></>, title: 'Pitching-moment coefficient about the quarter chord', value: (r) => res(r)?.cmc4 ?? null, cell: (r) => fix(res(r)?.cmc4, 4), numeric: true },
-  { key: 'gp', head: <>Γ [m²/s]</>, title: 'Bound circulation from surface pressures (Kutta–Joukowski), m²/s; the Run inspector shows every method', value: (r) => res(r)?.gammaPressure ?? null, cell: (r) => fix(res(r)?.gammaPressure, 3), numeric: true },
+  { key: 'gp', head: <>Γ corr. [m²/s]</>, title: 'Bound circulation from surface pressures (Kutta–Joukowski Γ = ½·V·c·cl with V and cl wall-corrected), m²/s; the Run inspector shows every method, uncorrected and corrected', value: (r) => res(r)?.gammaPressure ?? null, cell: (r) => fix(res(r)?.gammaPressure, 3), numeric: true },
   {
     key: 'review', head: 'Review', title: 'Reviewer verdict',
     value: (r) => r.review?.verdict ?? null,

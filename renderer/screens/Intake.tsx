@@ -285,7 +285,7 @@ export function Intake({ mode, live, onImported, onOpenSession, setLive }: Intak
             <table className="files compact">
               <thead><tr><th scope="col">file</th><th scope="col">sent as</th><th scope="col" className="num">size [kB]</th><th scope="col">check</th><th scope="col">note</th></tr></thead>
               <tbody>
-                {check.files.map((f) => (
+                {[...check.files].sort((a, b) => a.chosen.localeCompare(b.chosen, undefined, { numeric: true })).map((f) => (
                   <tr key={f.chosen} className={f.status === 'error' ? 'row-reject' : undefined}>
                     <td>{f.chosen}</td><td>{f.status === 'unused' ? '–' : f.name}</td><td className="num">{(f.bytes / 1024).toFixed(1)}</td>
                     <td>{f.status === 'ok' ? '✔ ok' : f.status === 'error' ? '✖ error' : f.status === 'unused' ? '○ not used' : '– not checked'}</td>

@@ -20,6 +20,7 @@ import { FlagReasons, StaleReasons } from '../components/FlagBadge';
 import { ProgressBar } from '../components/ProgressBar';
 import { newTaskId, useTaskProgress } from '../hooks';
 import { ReviewPanel } from '../components/ReviewPanel';
+import { BudgetTable } from '../components/BudgetTable';
 import { CorrectionCompare } from '../components/CorrectionCompare';
 import { fix, isNum, reMillions, sig, when } from '../format';
 
@@ -269,18 +270,28 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
               <tr><th scope="row">Re [×10⁶]</th><td className="num">{reMillions(u.Re)}</td><td className="num">{reMillions(k.Re)}</td><td></td></tr>
             </tbody>
           </table>
-          <p className="small muted">Intervals: Monte Carlo, {result.settings.mcDraws} draws.</p>
+          <p className="small muted">Intervals: Monte Carlo, {result.settings.mcDraws} draws, on the corrected values; the budget below gives the analytic interval beside it.</p>
           <CorrectionCompare result={result} />
 
           <h3>Circulation (Kutta–Joukowski)</h3>
           <table className="coef">
-            <thead><tr><th scope="col">method</th><th scope="col" className="num">Γ [m²/s]</th><th scope="col" className="num">95 % interval</th></tr></thead>
+            <thead><tr><th scope="col">method</th><th scope="col" className="num">Γ uncorrected [m²/s]</th><th scope="col" className="num">Γ corrected [m²/s]</th><th scope="col" className="num">95 % interval (corr.)</th></tr></thead>
             <tbody>
-              <tr><th scope="row">surface pressures</th><td className="num">{sig(result.circulation.pressure, 4)}</td><td className="num">{un.gammaPressure ? `${sig(un.gammaPressure.lo, 4)} … ${sig(un.gammaPressure.hi, 4)}` : '–'}</td></tr>
-              <tr><th scope="row">wall momentum</th><td className="num">{sig(result.circulation.momentum, 4)}</td><td className="num">{un.gammaMomentum ? `${sig(un.gammaMomentum.lo, 4)} … ${sig(un.gammaMomentum.hi, 4)}` : '–'}</td></tr>
-              <tr><th scope="row">wall line integral</th><td className="num">{sig(result.circulation.wall, 4)}</td><td className="num">–</td></tr>
+              {([
+                ['surface pressures', 'pressure', 'gammaPressure'],
+                ['wall momentum', 'momentum', 'gammaMomentum'],
+                ['wall line integral', 'wall', 'gammaWall'],
+              ] as const).map(([label, key, ukey]) => (
+                <tr key={key}>
+                  <th scope="row">{label}</th>
+                  <td className="num">{sig(result.circulation[key], 4)}</td>
+                  <td className="num">{sig(result.circulationCorrected?.[key], 4)}</td>
+                  <td className="num">{un[ukey] ? `${sig(un[ukey]!.lo, 4)} … ${sig(un[ukey]!.hi, 4)}` : '–'}</td>
+                </tr>
+              ))}
             </tbody>
           </table>
+          <p className="small muted">Uncorrected: ½·V<sub>u</sub>·c·c<sub>l,u</sub> (the wall line integral as measured). Corrected: ½·V·c·c<sub>l</sub> with V and c<sub>l</sub> wall-corrected.</p>
           <p className={`crosscheck ${Math.abs(dCl) > tol ? 'warn-text' : ''}`}>
             {isNum(dCl)
               ? <>Lift cross-check: c<sub>l</sub> mom − c<sub>l</sub> p = {fix(dCl, 4)}; allowed ±{fix(tol, 4)} → <b>{Math.abs(dCl) > tol ? '✖ the methods disagree' : '✔ the methods agree'}</b>.</>
@@ -318,6 +329,11 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
           ) : null}
         </section>
       </div>
+
+      <section className="panel" aria-label="Uncertainty budget">
+        <h3>Uncertainty budget</h3>
+        <BudgetTable result={result} />
+      </section>
 
       <section className="panel" aria-label="Taps">
         <div className="panel-head">

@@ -44,7 +44,7 @@
 // Everything is deterministic for a seed, and runs() is lazy: one RawRun exists at a time.
 
 import type {
-  Channel, ChannelUnit, FlagCode, InstrumentUncertainty, RakeProbe, RawRun, RunInfo, Setup, Surface,
+  Channel, ChannelUnit, FlagCode, InstrumentUncertainty, RakeProbe, RawRun, RunInfo, Setup, Surface, TransducerGroup,
   Tap, WallTap,
 } from '../../app/types';
 import { geometryPoints, naca4Point, panelSolve } from '../../app/panel';
@@ -294,6 +294,30 @@ function unc(fullScale: number, percentFullScale: number, offset: number): Instr
 
 // ================================================================================================
 // Instrumentation layout
+
+/** The scanner modules of the invented Harrowgate installation (figures invented, of the order a
+ *  calibrated electronic scanner holds): row C on a 10 kPa module (leading-edge region) and a
+ *  2.5 kPa module, the side rows on the older inch-of-water scanner (two ranges), the wake rake on
+ *  its own module together with the free-stream pitot-static pair (H∞ and p∞), and the wall taps
+ *  on a fifth. Δp_ref has a transducer of its own and keeps its channel figures. */
+function demoGroups(L: Layout): TransducerGroup[] {
+  const names = (f: (s: ChannelSpec) => boolean) => L.specs.filter(f).map((s) => s.channel.name);
+  const tapFs = (s: ChannelSpec) => (s.channel.target.kind === 'tap' ? s.channel.uncertainty.fullScale : NaN);
+  const onRow = (s: ChannelSpec, c: boolean) => s.channel.target.kind === 'tap' && (s.channel.name.startsWith('S_C') === c);
+  const groups: TransducerGroup[] = [
+    { id: 'SCN-C10K', channels: names((s) => onRow(s, true) && tapFs(s) === 10000), unit: 'kPa', fullScale: 10, gainPercent: 0.05, zero: 0.005, linearityPercentFS: 0.03 },
+    { id: 'SCN-C2K5', channels: names((s) => onRow(s, true) && tapFs(s) === 2500), unit: 'Pa', fullScale: 2500, gainPercent: 0.05, zero: 2, linearityPercentFS: 0.03 },
+    { id: 'SCN-SIDE40', channels: names((s) => onRow(s, false) && tapFs(s) === 40), unit: 'inH2O', fullScale: 40, gainPercent: 0.08, zero: 0.01, linearityPercentFS: 0.05 },
+    { id: 'SCN-SIDE10', channels: names((s) => onRow(s, false) && tapFs(s) === 10), unit: 'inH2O', fullScale: 10, gainPercent: 0.08, zero: 0.005, linearityPercentFS: 0.05 },
+    {
+      id: 'SCN-RAKE',
+      channels: names((s) => s.channel.target.kind === 'rake' || (s.channel.target.kind === 'reference' && s.channel.target.ref !== 'dpRef')),
+      unit: 'mmH2O', fullScale: 250, gainPercent: 0.05, zero: 0.2, linearityPercentFS: 0.02,
+    },
+    { id: 'SCN-WALL', channels: names((s) => s.channel.target.kind === 'floor' || s.channel.target.kind === 'ceiling'), unit: 'Pa', fullScale: 1000, gainPercent: 0.05, zero: 0.5, linearityPercentFS: 0.03 },
+  ];
+  return groups.filter((g) => g.channels.length > 0);
+}
 
 interface ChannelSpec {
   channel: Channel;
@@ -1001,6 +1025,7 @@ export function demoSession(opts: DemoOptions = {}): DemoSession {
     floor: L.floor,
     ceiling: L.ceiling,
     channels: L.specs.map((s) => s.channel),
+    transducerGroups: demoGroups(L),
   };
   const index = plans.map((p) => p.info);
 
