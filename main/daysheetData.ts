@@ -3,7 +3,9 @@
 import type { Store } from './store';
 import { sessionSummary } from './reduceService';
 import { listRunsMarked } from './stale';
-import { daySheetHtml, type DaySheetArgs, type TapNote } from './daysheet';
+import { daySheetHtml, type DaySheetArgs, type SessionFinding, type TapNote } from './daysheet';
+import { flagLabel } from '../app/flags';
+import type { SessionSummary } from '../app/types';
 
 /** Tap overrides with the reasons given, oldest first, from the audit trail. */
 export function tapNotes(store: Store, sessionId: number): TapNote[] {
@@ -27,13 +29,20 @@ export interface SheetOptions {
   generatedAt?: string;
 }
 
+/** The session-level findings (app/sessionFaults.ts) in the sheet's words: a note each, not a hold. */
+function sheetFindings(summary: SessionSummary): SessionFinding[] {
+  return (summary.findings ?? []).map((f) => ({ severity: 'warn', title: `${flagLabel(f.code)}, tap ${f.tap}`, detail: f.text }));
+}
+
 /** The arguments of the day sheet of one stored session. */
 export function daySheetArgs(store: Store, sessionId: number, o: SheetOptions): DaySheetArgs {
+  const summary = sessionSummary(store, sessionId);
   return {
     session: store.getSession(sessionId),
     setup: store.getSetup(sessionId),
     runs: listRunsMarked(store, sessionId),
-    summary: sessionSummary(store, sessionId),
+    summary,
+    findings: sheetFindings(summary),
     paper: o.paper,
     generatedAt: o.generatedAt ?? new Date().toISOString(),
     results: store.latestResults(sessionId),

@@ -6,7 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Window } from 'happy-dom';
 import { Store } from '../main/store';
 import { importSessionFolder } from '../main/import';
-import { reduceStoredSession } from '../main/reduceService';
+import { reduceStoredSession, sessionSummary } from '../main/reduceService';
 import { storedDaySheet, tapNotes } from '../main/daysheetData';
 import { cleanupTempDirs, tempDir } from './helpers/store-fixtures';
 import { makeTinySession } from './helpers/cliSession';
@@ -121,10 +121,14 @@ describe('day sheet of a stored session', () => {
     expect(withPick.length).toBe(without.length + 1);
   });
 
-  it('a place for the session-level findings', () => {
+  it('the session-level findings: the leaking tap of every wind-off zero reported once, as the summary words it', () => {
     const { doc } = sheet();
     const h = [...doc.querySelectorAll('h2')].find((x) => x.textContent === 'Session-level findings');
     expect(h).toBeDefined();
-    expect(h!.parentElement!.textContent).toContain('None reported for this session.');
+    const text = h!.parentElement!.textContent!;
+    const findings = sessionSummary(store, 1).findings ?? [];
+    expect(findings.map((f) => [f.code, f.tap])).toEqual([['leaking-tap', 'C05']]);
+    expect(text).toContain(findings[0].text);
+    expect(text).not.toContain('None reported for this session.');
   });
 });
