@@ -47,7 +47,8 @@ const median = (xs: number[]) => {
   return s.length % 2 ? s[m] : 0.5 * (s[m - 1] + s[m]);
 };
 
-function folderBytes(dir: string): number {
+/** Bytes of every file below a folder (the session sizes both benches print). */
+export function folderBytes(dir: string): number {
   let total = 0;
   for (const e of readdirSync(dir, { withFileTypes: true })) {
     const p = join(dir, e.name);

@@ -18,6 +18,7 @@ import { importSessionFolder } from '../main/import';
 import { fileURLToPath } from 'node:url';
 import { readFileSync } from 'node:fs';
 import { createHash } from 'node:crypto';
+import { folderBytes } from './bench-vs-numpy';
 import { setImportWorkerScript, workersFor } from '../main/importPool';
 import { createRunParser } from '../app/log/runParser';
 import type { Setup } from '../app/types';
@@ -63,15 +64,6 @@ const t = () => performance.now();
 const mb = (bytes: number) => bytes / 1e6;
 /** Peak resident set size of this process so far, MB (resourceUsage reports kB). */
 const peakRssMb = () => process.resourceUsage().maxRSS / 1024;
-
-function folderBytes(dir: string): number {
-  let total = 0;
-  for (const e of readdirSync(dir, { withFileTypes: true })) {
-    const p = join(dir, e.name);
-    total += e.isDirectory() ? folderBytes(p) : statSync(p).size;
-  }
-  return total;
-}
 
 /** Single-thread rate of the run-log reader itself (SHA-256 + parse, no averaging or storing) on
  *  the session's own files, after one warm-up pass (the JIT compiles the scanner first). */
