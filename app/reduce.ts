@@ -14,7 +14,7 @@ import {
 import { freeStream } from './air';
 import { averageRun, applyZeros, unsteadiness } from './samples';
 import { detectBadTaps, reduceSurface, type BadTap } from './surface';
-import { referenceCheck, type ReferenceFinding } from './tapCheck';
+import { keptFor, referenceCheck, type ReferenceFinding } from './tapCheck';
 import { sessionFindings } from './sessionFaults';
 import { inviscidCp } from './panel';
 import { spanLoading, completeRow } from './spanwise';
@@ -319,6 +319,13 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
 
 // ---------------------------------------------------------------------------------------------
 
+/** The taps kept in this run against the automatic test (Settings.keptTaps), in setup order. */
+function keptField(setup: Setup, settings: Settings, run: number): { kept?: string[] } {
+  const keep = keptFor(settings.keptTaps, run);
+  const kept = setup.taps.filter((t) => keep.has(t.id)).map((t) => t.id);
+  return kept.length ? { kept } : {};
+}
+
 /** The nominal result of a run: a first pass with no taps dropped finds the bad taps, a second
  *  pass (when there are any) drops and bridges them. */
 function nominalPass(
@@ -361,6 +368,7 @@ function nominalPass(
   const bad = detectBadTaps(first.taps, settings, zeroByTap, settings.leakPa, {
     uCp,
     positionU: setup.model.tapPositionUncertainty,
+    keep: keptFor(settings.keptTaps, info.run),
   });
   const nominal = bad.length
     ? runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad, correct: provisional })
@@ -509,6 +517,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
       by: b.reason === 'marked' ? ('hand' as const) : ('auto' as const),
       ...(b.verdict ?? {}),
     })),
+    ...keptField(setup, settings, info.run),
     rows: nominal.rows,
     surface: nominal.main,
     wake: nominal.wake,

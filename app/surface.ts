@@ -284,6 +284,9 @@ export interface TapCheckContext {
   uCp?: Record<string, number>;
   /** Standard uncertainty of the tap positions along the contour, in chords. */
   positionU?: number;
+  /** Taps the engineer kept against the automatic test in this run (Settings.keptTaps): never
+   *  dropped as leaking or as outliers. A tap marked bad is dropped all the same. */
+  keep?: ReadonlySet<string>;
 }
 
 /** Finds bad taps in any number of rows. Each tap gets at most one reason, in this order:
@@ -312,7 +315,7 @@ export function detectBadTaps(
     if (withZero.length >= 3) {
       const med = median(withZero.map((t) => zeroRaw[t.id]));
       for (const t of withZero) {
-        if (!reason.has(t.id) && Math.abs(zeroRaw[t.id] - med) > limit) reason.set(t.id, 'leak');
+        if (!reason.has(t.id) && !context.keep?.has(t.id) && Math.abs(zeroRaw[t.id] - med) > limit) reason.set(t.id, 'leak');
       }
     }
   }
@@ -328,7 +331,7 @@ export function detectBadTaps(
     const chain = orderContour(list).map((t) => ({
       id: t.id, x: t.x, y: t.y, cp: t.cp, u: Math.max(floor, context.uCp?.[t.id] ?? 0),
     }));
-    for (const v of findRowOutliers(chain, { k: settings.tapCheckK, positionU: context.positionU })) {
+    for (const v of findRowOutliers(chain, { k: settings.tapCheckK, positionU: context.positionU, keep: context.keep })) {
       reason.set(v.id, 'outlier');
       verdicts.set(v.id, { predicted: v.predicted, residual: v.residual, u: v.u, score: v.score });
     }

@@ -74,6 +74,9 @@ export interface OutlierOptions {
   positionU?: number;
   /** At most this fraction of the row is dropped (default ¼). */
   maxFraction?: number;
+  /** Taps the engineer kept against the test (Settings.keptTaps): judged and used to predict their
+   *  neighbours as any tap, never dropped. */
+  keep?: ReadonlySet<string>;
 }
 
 /** Fewest taps a row needs to be judged (the test is built and checked for 12–200 taps a row). */
@@ -190,13 +193,29 @@ export function findRowOutliers(chain: readonly JudgedTap[], o: OutlierOptions):
     let worst = -1;
     for (let k = 0; k < verdicts.length; k++) {
       const v = verdicts[k];
-      if (v && v.score > o.k && (worst < 0 || v.score > verdicts[worst]!.score)) worst = k;
+      if (v && !o.keep?.has(v.id) && v.score > o.k && (worst < 0 || v.score > verdicts[worst]!.score)) worst = k;
     }
     if (worst < 0) break;
     found.push(verdicts[worst]!);
     active.splice(worst, 1);
   }
   return found;
+}
+
+/** A keep decision (Settings.keptTaps): "C07@12" keeps tap C07 in run 12 against the automatic
+ *  test. The tap id is everything before the last '@'. */
+export function keptKey(tapId: string, run: number): string {
+  return `${tapId}@${run}`;
+}
+
+/** The taps kept against the automatic test in one run (entries "tap@run" of that run). */
+export function keptFor(keptTaps: readonly string[] | undefined, run: number): Set<string> {
+  const out = new Set<string>();
+  for (const e of keptTaps ?? []) {
+    const at = e.lastIndexOf('@');
+    if (at > 0 && Number(e.slice(at + 1)) === run) out.add(e.slice(0, at));
+  }
+  return out;
 }
 
 /** What a row's highest reading says about the references. */

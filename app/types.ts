@@ -219,6 +219,10 @@ export interface Settings {
   correctionTolAlphaDeg: number;
   /** Taps the user marked bad (ids). */
   badTaps: string[];
+  /** Keep decisions against the automatic bad-tap test, one per tap and run: "C07@12" keeps tap
+   *  C07 in run 12 (it is no longer dropped there as leaking or as an outlier; docs/TAP-JUDGEMENT.md
+   *  §5). Written by the inspector's keep button (audited as 'tap.keep'). */
+  keptTaps: string[];
 }
 
 export const DEFAULT_SETTINGS: Settings = {
@@ -244,6 +248,7 @@ export const DEFAULT_SETTINGS: Settings = {
   correctionTolEps: 0.006,
   correctionTolAlphaDeg: 0.25,
   badTaps: [],
+  keptTaps: [],
 };
 
 export type RunKind = 'zero' | 'data';
@@ -518,6 +523,9 @@ export interface RunResult {
   taps: TapCp[];
   /** Taps dropped, by hand or automatically (absent in results of core < 0.3.0). */
   dropped?: DroppedTap[];
+  /** Taps the engineer kept in this run against the automatic test (Settings.keptTaps), in setup
+   *  order; absent when none. */
+  kept?: string[];
   /** Section loads of each spanwise row (main row first). */
   rows: RowLoads[];
   /** Loads of the main row (uncorrected). */

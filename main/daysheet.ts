@@ -31,6 +31,9 @@ export interface TapNote {
   comment: string;
   actor: string;
   at: string;
+  /** An automatic drop the engineer settled (docs/TAP-JUDGEMENT.md §5): 'confirm' (then `bad`),
+   *  'keep' or 'release' in `run`, with the drop's reason as the reduction gave it. */
+  settled?: { decision: 'confirm' | 'keep' | 'release'; run: number; reason: string | null; residual: number | null; u: number | null };
 }
 
 export interface DaySheetArgs {
@@ -145,6 +148,7 @@ const SETTING_WORDS: { key: keyof Settings; words: string; show: (s: Settings) =
   { key: 'mcDraws', words: 'Uncertainty', show: (s) => (s.mcDraws ? `Monte Carlo, ${s.mcDraws} draws, seed ${s.mcSeed}` : 'not computed') },
   { key: 'mcSeed', words: 'Monte Carlo seed', show: (s) => String(s.mcSeed) },
   { key: 'badTaps', words: 'Taps marked bad', show: (s) => (s.badTaps.length ? [...s.badTaps].sort().join(', ') : 'none') },
+  { key: 'keptTaps', words: 'Taps kept against the automatic test (tap@run)', show: (s) => ((s.keptTaps ?? []).length ? [...s.keptTaps].sort().join(', ') : 'none') },
   { key: 'maskellTheta', words: 'Maskell blockage factor θ', show: (s) => String(s.maskellTheta) },
   { key: 'wallFitResidualCp', words: 'Wall-signature fit used up to', show: (s) => `rms residual ${s.wallFitResidualCp} in Cp` },
   { key: 'stallTeCp', words: 'Past stall (automatic choice) when', show: (s) => `rearmost upper tap Cp ≤ ${s.stallTeCp}` },
@@ -158,11 +162,15 @@ const SETTING_WORDS: { key: keyof Settings; words: string; show: (s: Settings) =
  * current settings. This is the sheet's own rule for results reduced with other settings until
  * the stale-result rule of issue 13 lands (then that rule should replace this one).
  */
-export function settingsDifferences(used: Partial<Settings> | undefined, current: Settings): string[] {
+export function settingsDifferences(used: Partial<Settings> | undefined, current: Settings, run?: number): string[] {
   const u = { ...DEFAULT_SETTINGS, ...(used ?? {}) } as Settings;
+  // Keep decisions (tap@run) of other runs do not concern this run's result.
+  const kept = (list: readonly string[] | undefined) => [...(list ?? [])]
+    .filter((e) => run === undefined || e.endsWith(`@${run}`)).sort().join();
   const same = (k: keyof Settings) => (k === 'badTaps'
     ? [...u.badTaps].sort().join() === [...current.badTaps].sort().join()
-    : JSON.stringify(u[k]) === JSON.stringify(current[k]));
+    : k === 'keptTaps' ? kept(u.keptTaps) === kept(current.keptTaps)
+      : JSON.stringify(u[k]) === JSON.stringify(current[k]));
   return settingWords(current)
     .filter((w) => !(w.key === 'mcSeed' && u.mcDraws === 0 && current.mcDraws === 0))
     .filter((w) => !same(w.key))
@@ -183,7 +191,7 @@ function settingsSection(args: DaySheetArgs, settings: Settings): string {
     .map((w) => `<tr><th scope="row">${escapeHtml(w.words)}</th><td>${escapeHtml(w.show(settings))}</td></tr>`).join('');
   const groups = new Map<string, number[]>();
   for (const r of args.results ?? []) {
-    const d = settingsDifferences(r.settings, settings);
+    const d = settingsDifferences(r.settings, settings, r.run);
     if (!d.length) continue;
     const k = d.join('; ');
     groups.set(k, [...(groups.get(k) ?? []), r.run]);
@@ -589,21 +597,41 @@ function flaggedList(args: DaySheetArgs, tz: string): string {
   return parts.join('\n');
 }
 
+/** An automatic drop in words: "outlier: residual +0.210, k·u 0.048" or "leak at wind-off". */
+function droppedWords(s: NonNullable<TapNote['settled']>): string {
+  const what = s.reason ? badTapWords(s.reason) : 'dropped';
+  return s.residual !== null && s.u !== null && Number.isFinite(s.residual) && Number.isFinite(s.u)
+    ? `${what}: residual ${s.residual >= 0 ? '+' : '−'}${Math.abs(s.residual).toFixed(3)} Cp, u ${s.u.toFixed(3)} Cp`
+    : what;
+}
+
 /** Every bad tap: those the engineer marked (with the reason given and who gave it), and those
  *  the reduction dropped by itself (with its reason and the runs). */
 function badTaps(args: DaySheetArgs, settings: Settings, tz: string): string {
   const latest = new Map<string, TapNote>();
-  for (const n of args.tapNotes ?? []) latest.set(n.tapId, n);
+  // Keep decisions (tap@run) are per run; the latest of each tap and run counts.
+  const keeps = new Map<string, TapNote>();
+  for (const n of args.tapNotes ?? []) {
+    if (n.settled && n.settled.decision !== 'confirm') keeps.set(`${n.tapId}@${n.settled.run}`, n);
+    else latest.set(n.tapId, n);
+  }
   const marked = [...settings.badTaps].sort();
   const items = marked.map((id) => {
     const n = latest.get(id);
     const why = n?.bad ? (n.comment ? escapeHtml(n.comment) : 'no reason given') : 'in the session settings (no note)';
     const who = n?.bad ? ` — ${escapeHtml(personName(n.actor))}, ${escapeHtml(localTime(n.at, tz))}` : '';
-    return `<li><b>${escapeHtml(id)}</b>, marked bad by the engineer: ${why}${who}</li>`;
+    const s = n?.bad ? n.settled : undefined;
+    const confirmed = s ? `, confirming the reduction's automatic drop in run ${s.run} (${escapeHtml(droppedWords(s))})` : '';
+    return `<li><b>${escapeHtml(id)}</b>, marked bad by the engineer${confirmed}: ${why}${who}</li>`;
   });
   const restored = [...latest.values()].filter((n) => !n.bad && !settings.badTaps.includes(n.tapId));
   for (const n of restored) {
     items.push(`<li><b>${escapeHtml(n.tapId)}</b>, restored to good: ${n.comment ? escapeHtml(n.comment) : 'no reason given'} — ${escapeHtml(personName(n.actor))}, ${escapeHtml(localTime(n.at, tz))}</li>`);
+  }
+  const keptNow = new Set(settings.keptTaps ?? []);
+  for (const [key, n] of [...keeps].sort((a, b) => a[0].localeCompare(b[0]))) {
+    if (!keptNow.has(key) || !n.settled) continue;
+    items.push(`<li><b>${escapeHtml(n.tapId)}</b>, kept in run ${n.settled.run} by the engineer against the reduction's automatic drop (${escapeHtml(droppedWords(n.settled))}): ${n.comment ? escapeHtml(n.comment) : 'no reason given'} — ${escapeHtml(personName(n.actor))}, ${escapeHtml(localTime(n.at, tz))}</li>`);
   }
   const auto = new Map<string, { reason: string; runs: number[] }>();
   for (const r of args.results ?? []) {
@@ -637,7 +665,7 @@ export function daySheetHtml(args: DaySheetArgs): string {
   // Stale runs: the rows' marks (app/stale.ts: settings, bad taps, zeros), and any result whose
   // settings differ from those printed here.
   const stale = new Set([
-    ...(args.results ?? []).filter((r) => settingsDifferences(r.settings, settings).length).map((r) => r.run),
+    ...(args.results ?? []).filter((r) => settingsDifferences(r.settings, settings, r.run).length).map((r) => r.run),
     ...args.runs.filter((r) => r.stale).map((r) => r.run),
   ]);
   const common = new Set(commonFlags(args.runs).map((g) => flagKey(g.flag)));

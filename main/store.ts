@@ -579,6 +579,36 @@ export class Store {
     return this.getSettings(sessionId);
   }
 
+  /** The engineer settles a tap the reduction dropped automatically in one run (issue 9 part 3,
+   *  docs/TAP-JUDGEMENT.md §5): 'confirm' marks it bad for the session (a tap override, audited as
+   *  'tap.confirm'); 'keep' records "tap@run" in Settings.keptTaps (audited as 'tap.keep') so the
+   *  automatic test no longer drops it in that run; 'release' takes a keep back ('tap.release').
+   *  `suggestion` (the automatic drop's reason and figures) goes into the audit detail. */
+  settleTap(
+    sessionId: number, run: number, tapId: string, decision: 'confirm' | 'keep' | 'release', actor: string,
+    comment = '', suggestion: Record<string, unknown> | null = null,
+  ): Settings {
+    this.assertWritable('settleTap');
+    const setup = this.getSetup(sessionId);
+    if (!setup.taps.some((t) => t.id === tapId)) throw new NotFoundError(`unknown tap "${tapId}" in session ${sessionId}`);
+    this.runRow(sessionId, run);
+    const detail = { tapId, run, decision, comment, suggestion };
+    this.db.transaction(() => {
+      const auditId = this.audit(actor, `tap.${decision}`, sessionId, run, detail);
+      if (decision === 'confirm') {
+        this.db.prepare('INSERT INTO tap_overrides (session_id, tap_id, bad, comment, actor, at, audit_id) VALUES (?, ?, ?, ?, ?, ?, ?)')
+          .run(sessionId, tapId, 1, comment, actor, now(), auditId);
+      } else {
+        const key = `${tapId}@${run}`;
+        const list = this.getSettings(sessionId).keptTaps ?? [];
+        const next = decision === 'keep' ? [...new Set([...list, key])] : list.filter((e) => e !== key);
+        this.db.prepare('INSERT INTO settings_changes (session_id, patch_json, note, actor, at, audit_id) VALUES (?, ?, ?, ?, ?, ?)')
+          .run(sessionId, encodeJson({ keptTaps: next }), comment, actor, now(), auditId);
+      }
+    }).immediate();
+    return this.getSettings(sessionId);
+  }
+
   setReview(sessionId: number, run: number, verdict: 'accepted' | 'rejected' | null, comment: string, actor: string): void {
     this.assertWritable('setReview');
     this.runRow(sessionId, run);
