@@ -559,6 +559,10 @@ export class Store {
     }
     const taps = new Set(setup.taps.map((t) => t.id));
     for (const t of r.data.badTaps ?? []) if (!taps.has(t)) throw new Error(`invalid settings: badTaps: tap "${t}" is not in the setup`);
+    for (const e of r.data.keptTaps ?? []) {
+      const t = e.slice(0, e.lastIndexOf('@'));
+      if (!taps.has(t)) throw new Error(`invalid settings: keptTaps: tap "${t}" (in "${e}") is not in the setup`);
+    }
     this.db.transaction(() => {
       const auditId = this.audit(actor, 'settings.update', sessionId, null, { patch: r.data, note });
       this.db.prepare('INSERT INTO settings_changes (session_id, patch_json, note, actor, at, audit_id) VALUES (?, ?, ?, ?, ?, ?)')
