@@ -8,14 +8,14 @@
 import {
   CORE_VERSION, DEFAULT_SETTINGS,
   type Channel, type ChannelStats, type Coefficients, type Flag, type Interval, type PolarPoint,
-  type RawRun, type ResultDigest, type RunInfo, type RunResult, type SessionSummary, type Settings, type Setup,
+  type RawRun, type ResultDigest, type RunInfo, type RunResult, type SessionFinding, type SessionSummary, type Settings, type Setup,
   type TapCp, type WakeResult, type WallResult, type ZeroedRun, type RowLoads, type UncertaintyKey, type PolarIntervals,
 } from './types';
 import { freeStream } from './air';
 import { averageRun, applyZeros, unsteadiness } from './samples';
 import { detectBadTaps, reduceSurface, type BadTap } from './surface';
 import { keptFor, referenceCheck, type ReferenceFinding } from './tapCheck';
-import { sessionFindings } from './sessionFaults';
+import { channelFindings, sessionFindings, type ChannelRun } from './sessionFaults';
 import { inviscidCp } from './panel';
 import { spanLoading, completeRow } from './spanwise';
 import { jonesDrag, interpolateStatic } from './wake';
@@ -796,7 +796,19 @@ function intervalsOf(r: ResultDigest | RunResult): { intervals?: PolarIntervals 
 const timeOrder = new Intl.Collator();
 
 /** Session summary from the results (or their stored digests, ResultDigest) and the run index. */
-export function summariseSession(setup: Setup, results: ResultDigest[], infos: RunInfo[]): SessionSummary {
+function withChannelFindings(
+  taps: ReturnType<typeof sessionFindings>, channels: SessionFinding[],
+): ReturnType<typeof sessionFindings> {
+  if (!channels.length) return taps;
+  // A tap whose channel is dead or saturated gets that finding only: it is the cause (a frozen
+  // output off the other zeros also reads as a leak). Its runs' flags stay explained.
+  const cause = new Set(channels.map((c) => c.tap));
+  return { ...taps, findings: [...taps.findings.filter((f) => !cause.has(f.tap)), ...channels] };
+}
+
+/** The session summary; `channelRuns` (every run's channel statistics, wind-off zeros included)
+ *  adds the dead and saturated channels to the findings (app/sessionFaults.ts channelFindings). */
+export function summariseSession(setup: Setup, results: ResultDigest[], infos: RunInfo[], channelRuns?: readonly ChannelRun[]): SessionSummary {
   const byRun = new Map(infos.map((i) => [i.run, i]));
   const rows = results
     .map((r) => ({ r, info: byRun.get(r.run) }))
@@ -844,7 +856,7 @@ export function summariseSession(setup: Setup, results: ResultDigest[], infos: R
   return {
     stats,
     flagged: rows.filter(({ r }) => r.flags.length).map(({ r }) => ({ run: r.run, flags: r.flags })),
-    ...sessionFindings(rows.map(({ r }) => r)),
+    ...withChannelFindings(sessionFindings(rows.map(({ r }) => r)), channelRuns ? channelFindings(setup, channelRuns) : []),
     conditions: rows.length ? { qMin, qMax, ReMin, ReMax, alphaMin, alphaMax, tempMin, tempMax, baroMin, baroMax } : null,
     polar,
     span,
@@ -856,7 +868,8 @@ export function reduceRawSession(
   setup: Setup, raws: RawRun[], overrides?: Partial<Settings>,
 ): { results: RunResult[]; summary: SessionSummary } {
   const settings = resolveSettings(setup, overrides);
-  const zeroed = prepareRuns(setup, averageRuns(raws, settings));
+  const averaged = averageRuns(raws, settings);
+  const zeroed = prepareRuns(setup, averaged);
   const results = zeroed.map((z) => reduceRun(setup, z, settings));
-  return { results, summary: summariseSession(setup, results, raws.map((r) => r.info)) };
+  return { results, summary: summariseSession(setup, results, raws.map((r) => r.info), averaged) };
 }

@@ -616,8 +616,15 @@ export interface SessionConditions {
 
 /** A fault seen on most runs of a session (app/sessionFaults.ts). */
 export interface SessionFinding {
-  code: 'leaking-tap' | 'bad-tap';
+  /** 'leaking-tap' / 'bad-tap': a tap dropped alike on most runs; 'dead-channel' (no scatter at
+   *  all, or a model tap that reads with the wind on what it reads wind-off) and
+   *  'saturated-channel' (at its full scale): a channel fault seen in the statistics of the runs. */
+  code: 'leaking-tap' | 'bad-tap' | 'dead-channel' | 'saturated-channel';
+  /** The tap (or, for a channel finding, the id of what the channel measures, or the channel's
+   *  name for a reference channel). */
   tap: string;
+  /** Channel findings: the channel's name. */
+  channel?: string;
   /** Runs carrying it, and the data runs it was looked for on. */
   runs: number[];
   of: number;

@@ -42,7 +42,11 @@ export interface SheetOptions {
 
 /** The session-level findings (app/sessionFaults.ts) in the sheet's words: a note each, not a hold. */
 function sheetFindings(summary: SessionSummary): SessionFinding[] {
-  return (summary.findings ?? []).map((f) => ({ severity: 'warn', title: `${flagLabel(f.code)}, tap ${f.tap}`, detail: f.text }));
+  const title = (f: SessionSummary['findings'] extends (infer T)[] | undefined ? T : never) => (
+    f.code === 'dead-channel' ? `Dead channel ${f.channel ?? f.tap}`
+      : f.code === 'saturated-channel' ? `Saturated channel ${f.channel ?? f.tap}`
+        : `${flagLabel(f.code)}, tap ${f.tap}`);
+  return (summary.findings ?? []).map((f) => ({ severity: 'warn', title: title(f), detail: f.text }));
 }
 
 /** The arguments of the day sheet of one stored session. */

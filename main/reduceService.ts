@@ -141,5 +141,5 @@ export function sessionSummary(store: Store, sessionId: number, opts: { includeR
   const setup = store.getSetup(sessionId);
   const rejected = opts.includeRejected ? new Set<number>() : store.rejectedRuns(sessionId);
   const results = store.latestDigests(sessionId).filter((r) => opts.includeRejected || !rejected.has(r.run));
-  return summariseSession(setup, results, store.getIndex(sessionId));
+  return summariseSession(setup, results, store.getIndex(sessionId), store.getAveraged(sessionId));
 }
