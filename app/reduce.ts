@@ -369,6 +369,7 @@ function nominalPass(
     uCp,
     positionU: setup.model.tapPositionUncertainty,
     keep: keptFor(settings.keptTaps, info.run),
+    inviscid: { geometry: setup.model.geometry, alphaDeg: info.alphaDeg },
   });
   const nominal = bad.length
     ? runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad, correct: provisional })

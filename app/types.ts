@@ -11,8 +11,10 @@
  *  bad-tap test by prediction uncertainty and the stagnation reference check of app/tapCheck.ts,
  *  the contour rule named in each row's loads; 0.5.0: the reduction's own errors and the
  *  transducer groups in the uncertainty, every interval on the corrected basis, corrected Γ, the
- *  per-run budget, the wake's q∞ = H∞ − p∞ when H∞ is measured). */
-export const CORE_VERSION = '0.5.0';
+ *  per-run budget, the wake's q∞ = H∞ − p∞ when H∞ is measured; 0.6.0: the bad-tap test also
+ *  predicts from the fitted inviscid shape (app/tapShape.ts) on rows of 20 taps or more, and keep
+ *  decisions (Settings.keptTaps) with each result's `kept`). */
+export const CORE_VERSION = '0.6.0';
 
 export type PressureUnit =
   | 'Pa' | 'kPa' | 'hPa' | 'mbar' | 'psi' | 'inH2O' | 'mmH2O' | 'mmHg' | 'torr';
