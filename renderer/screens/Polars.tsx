@@ -66,8 +66,9 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
         </section>
         {span.length ? (
           <section className="panel" aria-label="Span loading">
-            <h3>Span loading (section c<sub>l</sub> of each tap row)</h3>
-            <Plot config={spanCfg} label="Section lift coefficient against spanwise station" height={300} />
+            <h3>Span loading (section c<sub>l</sub> of each tap row, uncorrected)</h3>
+            <Plot config={spanCfg} label="Section lift coefficient (uncorrected) against spanwise station" height={300} />
+            <p className="small muted">Measured c<sub>l</sub> of each row (not wall-corrected); the spanwise mean of rows is the span integral of the row c<sub>l</sub> over the model span, ends held to the walls.</p>
             <fieldset className="span-pick">
               <legend>Runs shown</legend>
               {span.map((s) => (
@@ -77,7 +78,7 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
                     checked={chosen.includes(s.run)}
                     onChange={(e) => setSpanRuns(e.target.checked ? [...chosen, s.run] : chosen.filter((r) => r !== s.run))}
                   />{' '}
-                  {s.run} (α {fix(s.alphaDeg, 1)}°, CL {fix(s.CL, 3)})
+                  {s.run} (α {fix(s.alphaDeg, 1)}° corr., c<sub>l</sub> spanwise mean of rows {fix(s.CL, 3)}, uncorrected)
                 </label>
               ))}
             </fieldset>

@@ -297,7 +297,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
               ? <>Lift cross-check: c<sub>l</sub> mom − c<sub>l</sub> p = {fix(dCl, 4)}; allowed ±{fix(tol, 4)} → <b>{Math.abs(dCl) > tol ? '✖ the methods disagree' : '✔ the methods agree'}</b>.</>
               : 'Lift cross-check not possible (no wall taps).'}
           </p>
-          {result.spanwise ? <p className="small">Spanwise: CL = {fix(result.spanwise.CL, 4)}, spread of row cl = {fix(result.spanwise.spread, 4)}.</p> : null}
+          {result.spanwise ? <p className="small">Spanwise (uncorrected): c<sub>l</sub> spanwise mean of rows = {fix(result.spanwise.CL, 4)}, spread of the rows' c<sub>l</sub> = {fix(result.spanwise.spread, 4)}.</p> : null}
         </section>
 
         <section className="panel" aria-label="Wake profile">
