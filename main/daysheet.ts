@@ -11,6 +11,7 @@ import type { Flag, Interval, PolarPoint, RunResult, SessionSummary, Settings, S
 import { CORE_VERSION, DEFAULT_SETTINGS } from '../app/types';
 import { badTapWords, flagLabel, flagShort, severityWord, SEVERITY } from '../app/flags';
 import { sweepDirections } from '../app/sweeps';
+import type { StaleMark } from '../app/stale';
 import { escapeHtml, OKABE_ITO, offScalePoints, svgPlot, type PlotPoint, type PlotSeries, type PlotSpec } from './svgplot';
 
 /** A finding about the whole session rather than one run (a tap faulty all day, say). The
@@ -152,13 +153,9 @@ const SETTING_WORDS: { key: keyof Settings; words: string; show: (s: Settings) =
   { key: 'correctionTolAlphaDeg', words: 'Correction methods disagree above', show: (s) => `Δα = ${s.correctionTolAlphaDeg}°` },
 ];
 
-/**
- * The settings in which a stored result's reduction differs from the session's current ones, in
- * words ("Lift cross-check, absolute: 0.03 in cl (now 0.02 in cl)"). Empty: reduced with the
- * current settings. This is the sheet's own rule for results reduced with other settings until
- * the stale-result rule of issue 13 lands (then that rule should replace this one).
- */
-export function settingsDifferences(used: Partial<Settings> | undefined, current: Settings): string[] {
+/** The settings in which a stored result's reduction differs from the current ones, by key, in
+ *  words ("Lift cross-check, absolute: 0.03 in cl (now 0.02 in cl)"). */
+function settingsDiffs(used: Partial<Settings> | undefined, current: Settings): { key: keyof Settings; text: string }[] {
   const u = { ...DEFAULT_SETTINGS, ...(used ?? {}) } as Settings;
   const same = (k: keyof Settings) => (k === 'badTaps'
     ? [...u.badTaps].sort().join() === [...current.badTaps].sort().join()
@@ -166,7 +163,37 @@ export function settingsDifferences(used: Partial<Settings> | undefined, current
   return settingWords(current)
     .filter((w) => !(w.key === 'mcSeed' && u.mcDraws === 0 && current.mcDraws === 0))
     .filter((w) => !same(w.key))
-    .map((w) => `${w.words}: ${w.show(u)} (now ${w.show(current)})`);
+    .map((w) => ({ key: w.key, text: `${w.words}: ${w.show(u)} (now ${w.show(current)})` }));
+}
+
+/**
+ * The settings in which a stored result's reduction differs from the session's current ones, in
+ * words ("Lift cross-check, absolute: 0.03 in cl (now 0.02 in cl)"). Empty: reduced with the
+ * current settings.
+ */
+export function settingsDifferences(used: Partial<Settings> | undefined, current: Settings): string[] {
+  return settingsDiffs(used, current).map((d) => d.text);
+}
+
+/** Why one stored result is stale, by cause (app/stale.ts's mark where the row carries one, and
+ *  the settings printed on this sheet): `short` for the run table's status cell, `long` in words
+ *  for the settings section. Both empty when the result is current. */
+export function staleCauses(mark: StaleMark | null | undefined, used: Partial<Settings> | undefined, current: Settings):
+{ short: string[]; long: string[] } {
+  const diffs = used ? settingsDiffs(used, current) : [];
+  const settingDiffs = diffs.filter((d) => d.key !== 'badTaps').map((d) => d.text);
+  // The mark's own words for settings this sheet did not compare (no full result at hand).
+  const markSettings = (mark?.settings ?? []).filter((k) => !diffs.some((d) => d.key === k));
+  const settingsLong = [...settingDiffs, ...(mark?.reasons ?? []).filter((r) => markSettings.some((k) => r.startsWith(`${k} was `)))];
+  const tapLong = mark
+    ? mark.reasons.filter((r) => /^taps? .* (marked bad since|no longer marked bad)$/.test(r))
+    : diffs.filter((d) => d.key === 'badTaps').map((d) => d.text);
+  const zeroLong = mark?.zeros.length ? mark.reasons.filter((r) => /^wind-off zero runs? /.test(r)) : [];
+  const short: string[] = [];
+  if (settingsLong.length) short.push('other settings');
+  if (tapLong.length) short.push('bad taps changed since');
+  if (zeroLong.length) short.push(`wind-off zero${mark!.zeros.length > 1 ? 's' : ''} ${runRanges(mark!.zeros)} stored since`);
+  return { short, long: [...settingsLong, ...tapLong, ...zeroLong] };
 }
 
 /** The words of every setting: those above, then any other key of the settings by its name (a
@@ -178,20 +205,31 @@ function settingWords(current: Settings): typeof SETTING_WORDS {
   return [...SETTING_WORDS, ...more];
 }
 
+/** Run → why its result is stale (only the stale runs), in run order: the rows' marks
+ *  (app/stale.ts: settings, bad taps, zeros) and the settings printed on this sheet. */
+function staleByRun(args: DaySheetArgs, settings: Settings): Map<number, { short: string[]; long: string[] }> {
+  const used = new Map((args.results ?? []).map((r) => [r.run, r.settings]));
+  const out = new Map<number, { short: string[]; long: string[] }>();
+  for (const row of args.runs) {
+    if (row.kind !== 'data' || !row.result) continue;
+    const c = staleCauses(row.stale, used.get(row.run), settings);
+    if (c.short.length) out.set(row.run, c);
+  }
+  return out;
+}
+
 function settingsSection(args: DaySheetArgs, settings: Settings): string {
   const rows = settingWords(settings).filter((w) => w.key !== 'mcSeed')
     .map((w) => `<tr><th scope="row">${escapeHtml(w.words)}</th><td>${escapeHtml(w.show(settings))}</td></tr>`).join('');
   const groups = new Map<string, number[]>();
-  for (const r of args.results ?? []) {
-    const d = settingsDifferences(r.settings, settings);
-    if (!d.length) continue;
-    const k = d.join('; ');
-    groups.set(k, [...(groups.get(k) ?? []), r.run]);
+  for (const [run, c] of staleByRun(args, settings)) {
+    const k = c.long.join('; ');
+    groups.set(k, [...(groups.get(k) ?? []), run]);
   }
   const other = groups.size
-    ? `<p class="stale"><b>Reduced with other settings</b> than those in force (their numbers on this sheet are as stored; reduce them again to bring them in line):</p><ul class="stale">${[...groups]
+    ? `<p class="stale"><b>Stale results</b>, reduced with other settings, bad taps or wind-off zeros than the session holds now (their numbers on this sheet are as stored; re-reduce the stale runs to bring them in line):</p><ul class="stale">${[...groups]
       .map(([d, runs]) => `<li><b>${escapeHtml(runsWord(runs))}:</b> ${escapeHtml(d)}</li>`).join('')}</ul>`
-    : '<p class="sub">Every stored result was reduced with the settings in force.</p>';
+    : '<p class="sub">Every stored result was reduced with the settings, bad taps and wind-off zeros in force.</p>';
   return `<table class="settings"><tbody>${rows}</tbody></table>${other}`;
 }
 
@@ -287,14 +325,14 @@ function rowSeverity(row: RunRow): 'reject' | 'warn' | null {
 
 /** Words of one run's status cell: flags (severity and words), the reviewer's verdict beside
  *  them, and a note when the run was reduced with other settings. */
-function statusCell(row: RunRow, stale: boolean): string {
+function statusCell(row: RunRow, stale: string[] | undefined): string {
   const parts: string[] = [];
   if (row.kind === 'zero') parts.push('wind-off zero');
   else if (!row.result) parts.push('not reduced');
   else if (!row.result.flags.length) parts.push('no flags');
   for (const f of row.result?.flags ?? []) parts.push(`<b>${severityWord(f.severity)}:</b> ${escapeHtml(flagShort(f.code))}`);
   if (row.review) parts.push(`<b>${escapeHtml(row.review.verdict)}</b> by ${escapeHtml(personName(row.review.actor))}`);
-  if (stale) parts.push('other settings');
+  if (stale?.length) parts.push(`<b>stale:</b> ${escapeHtml(stale.join(', '))}`);
   return parts.join('; ');
 }
 
@@ -304,7 +342,7 @@ function halfWidth(iv: Interval | undefined, d: number): string {
   return `<span class="u">±${fmt((iv.hi - iv.lo) / 2, d)}</span>`;
 }
 
-function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Set<number>): string {
+function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Map<number, { short: string[] }>): string {
   const byRun = new Map((args.results ?? []).map((r) => [r.run, r]));
   const widths = [4.6, 6.6, 4.6, 4.6, 4.8, 4.4, 4.4, 6.8, 6.8, 7.4, 6.8, 6.6, 5.8, 5.8, 19.1];
   const cols = `<colgroup>${widths.map((w) => `<col style="width:${w}%">`).join('')}</colgroup>`;
@@ -328,7 +366,7 @@ function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Set
       : [fmt(row.alphaDeg, 2), '–', '–', '–', '–', '–', '–', '–', '–', '–', '–', '–'];
     return `<tr${cls ? ` class="${cls}"` : ''} data-run="${row.run}"><td class="n">${mark}${row.run}</td><td class="n">${escapeHtml(localTime(row.time, tz, true))}</td>${cells
       .map((c) => `<td class="n">${c}</td>`)
-      .join('')}<td class="status">${statusCell(row, stale.has(row.run))}${methodNote(byRun.get(row.run))}</td></tr>`;
+      .join('')}<td class="status">${statusCell(row, stale.get(row.run)?.short)}${methodNote(byRun.get(row.run))}</td></tr>`;
   });
   return `<table class="runs">${head}<tbody>${body.join('\n')}</tbody></table>
 <p class="sub">${SEVERITY.reject.glyph} and a solid left bar: at least one ${SEVERITY.reject.word} flag (${SEVERITY.reject.meaning.toLowerCase()}); ${SEVERITY.warn.glyph} and a dashed bar: ${SEVERITY.warn.word} flags only (${SEVERITY.warn.meaning.toLowerCase()}). Times are local (${escapeHtml(zoneOffset(new Date(args.generatedAt), tz))}).
@@ -634,12 +672,7 @@ export function daySheetHtml(args: DaySheetArgs): string {
   const settings: Settings = args.settings ?? { ...DEFAULT_SETTINGS, ...setup.settings };
   const flaggedCount = dataRuns.filter((r) => r.result?.flags.length).length;
   const rejectedCount = dataRuns.filter((r) => r.review?.verdict === 'rejected').length;
-  // Stale runs: the rows' marks (app/stale.ts: settings, bad taps, zeros), and any result whose
-  // settings differ from those printed here.
-  const stale = new Set([
-    ...(args.results ?? []).filter((r) => settingsDifferences(r.settings, settings).length).map((r) => r.run),
-    ...args.runs.filter((r) => r.stale).map((r) => r.run),
-  ]);
+  const stale = staleByRun(args, settings);
   const common = new Set(commonFlags(args.runs).map((g) => flagKey(g.flag)));
   const fact = (k: string, v: string) => `<div><dt>${escapeHtml(k)}</dt><dd>${escapeHtml(v)}</dd></div>`;
   const facts = [
