@@ -182,21 +182,31 @@ function progress(): { onProgress?: (p: ImportProgress) => void; stop(): void } 
 const n = (v: number | undefined | null, d: number, w: number) =>
   (v === undefined || v === null || !Number.isFinite(v) ? '-' : v.toFixed(d)).padStart(w);
 
-/** The run list as a fixed-width text table. */
-export function runsTable(rows: RunRow[]): string {
-  const head = `${'run'.padStart(4)} ${'kind'.padEnd(4)} ${'time'.padEnd(8)} ${'a_geo'.padStart(6)} ${'a_cor'.padStart(6)} ${'q_Pa'.padStart(7)} ${'Re_1e6'.padStart(6)} ${'cl_p'.padStart(7)} ${'cl_mom'.padStart(7)} ${'cd_wake'.padStart(8)} ${'cm_c4'.padStart(7)}  flags`;
+/** Short names of the wall-correction methods for the `runs` table's `wall` column (the method a
+ *  run was corrected with, 'auto' resolved; docs/WALL-CORRECTIONS.md). */
+export const METHOD_COLUMN: Record<string, string> = {
+  'wall-signature': 'signature', maskell: 'Maskell', 'barlow-rae-pope': 'BRP', 'allen-vincenti': 'A&V', none: 'none',
+};
+
+/** The run list as a fixed-width text table; `methods` (run → applied wall-correction method)
+ *  fills the `wall` column ('-' where a run has no result). */
+export function runsTable(rows: RunRow[], methods: ReadonlyMap<number, string> = new Map()): string {
+  const head = `${'run'.padStart(4)} ${'kind'.padEnd(4)} ${'time'.padEnd(8)} ${'a_geo'.padStart(6)} ${'a_cor'.padStart(6)} ${'q_Pa'.padStart(7)} ${'Re_1e6'.padStart(6)} ${'cl_p'.padStart(7)} ${'cl_mom'.padStart(7)} ${'cd_wake'.padStart(8)} ${'cm_c4'.padStart(7)} ${'wall'.padEnd(9)}  flags`;
   const lines = rows.map((r) => {
     const x = r.result;
     const t = (/T(\d{2}:\d{2}:\d{2})/.exec(r.time)?.[1] ?? r.time).padEnd(8);
     const status = r.kind === 'zero' ? 'wind-off zero' : x ? flagsLine(x.flags, 'short') : 'not reduced';
     const review = `${r.review ? ` [${r.review.verdict} by ${r.review.actor}]` : ''}${r.stale ? ' [stale]' : ''}`;
-    return `${String(r.run).padStart(4)} ${r.kind.padEnd(4)} ${t} ${n(r.alphaDeg, 2, 6)} ${n(x?.alphaCorrDeg, 2, 6)} ${n(x?.q, 1, 7)} ${n(x ? x.Re / 1e6 : undefined, 3, 6)} ${n(x?.cl, 4, 7)} ${n(x?.clMom, 4, 7)} ${n(x?.cd, 5, 8)} ${n(x?.cmc4, 4, 7)}  ${status}${review}`;
+    const m = x ? methods.get(r.run) : undefined;
+    const wall = (m ? METHOD_COLUMN[m] ?? m : '-').padEnd(9);
+    return `${String(r.run).padStart(4)} ${r.kind.padEnd(4)} ${t} ${n(r.alphaDeg, 2, 6)} ${n(x?.alphaCorrDeg, 2, 6)} ${n(x?.q, 1, 7)} ${n(x ? x.Re / 1e6 : undefined, 3, 6)} ${n(x?.cl, 4, 7)} ${n(x?.clMom, 4, 7)} ${n(x?.cd, 5, 8)} ${n(x?.cmc4, 4, 7)} ${wall}  ${status}${review}`;
   });
+  const key = 'wall: the wall-correction method of each run (signature = wall-pressure signature, Maskell, BRP = Barlow, Rae & Pope, A&V = Allen & Vincenti, none = uncorrected); a_cor, q, Re, cl, cd and cm are on that corrected basis';
   const stale = staleRunNumbers(rows);
   const note = stale.length
     ? [`${stale.length} stale result(s), reduced with other settings, bad taps or zeros than the session's now: runs ${stale.join(", ")} (\`reduce --stale\` re-reduces them)`]
     : [];
-  return [head, ...lines, ...note].join('\n');
+  return [head, ...lines, ...note, ...(rows.some((r) => r.result) ? [key] : [])].join('\n');
 }
 
 /** One line for a reduced run (used by `reduce` and `follow`). */
@@ -498,7 +508,7 @@ Examples:
         if (o.stale) rows = rows.filter((r) => r.stale);
         if (o.format === 'json') return out(JSON.stringify(rows, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2));
         if (o.format === 'csv') return void process.stdout.write(D().exportResultsCsv(rows, store.getSetup(sid), store.latestResults(sid)));
-        out(runsTable(rows));
+        out(runsTable(rows, new Map(store.latestDigests(sid).map((d) => [d.run, d.correction.method]))));
       });
     });
 
