@@ -3,6 +3,7 @@
 // channel), 2 usage errors (unknown command or option, bad option value, ambiguous session).
 import { existsSync, rmSync, writeFileSync } from 'node:fs';
 import { relative, resolve } from 'node:path';
+import { userInfo } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { Command, CommanderError, InvalidArgumentError, Option } from 'commander';
 import type { Store, RunRow, ImportProgress } from './store';
@@ -32,7 +33,7 @@ export class UsageError extends Error { override name = 'UsageError'; }
 /** Bad input: missing database or session, unreadable folder (exit 1). */
 export class InputError extends Error { override name = 'InputError'; }
 
-interface GlobalOpts { db?: string; session?: string; actor?: string }
+interface GlobalOpts { db?: string; session?: string; actor?: string; reviewer?: string }
 
 // ---------------------------------------------------------------------------------------------
 // Option parsers (throwing InvalidArgumentError makes commander report a usage error).
@@ -121,8 +122,26 @@ export function pickSession(store: Store, g: GlobalOpts): number {
   return all[0].id;
 }
 
+/** The operating-system user's login name, without any prefix ('' when it cannot be told). */
+function osUserName(): string {
+  try {
+    return userInfo().username;
+  } catch {
+    return process.env.USER ?? process.env.USERNAME ?? '';
+  }
+}
+
+/** Who is acting, as a name (recorded with every review, tap override and setting change, and
+ *  printed on the day sheet — what browser mode asks for once per launch): --reviewer, --actor,
+ *  $RAKELINE_REVIEWER, $RAKELINE_ACTOR, else the OS user's name. `given` is false for the last. */
+export function reviewerOf(g: GlobalOpts, env: NodeJS.ProcessEnv = process.env): { name: string; given: boolean } {
+  const given = [g.reviewer, g.actor, env.RAKELINE_REVIEWER, env.RAKELINE_ACTOR].map((x) => x?.trim()).find((x) => x);
+  if (given) return { name: given, given: true };
+  return { name: osUserName() || 'unnamed command-line user', given: false };
+}
+
 function actorOf(g: GlobalOpts): string {
-  return g.actor ?? process.env.RAKELINE_ACTOR ?? `cli:${process.env.USER ?? process.env.USERNAME ?? 'user'}`;
+  return reviewerOf(g).name;
 }
 
 async function withStore<T>(g: GlobalOpts, access: Access, fn: (store: Store) => Promise<T> | T): Promise<T> {
@@ -340,7 +359,8 @@ export function buildProgram(): Command {
     .configureHelp({ subcommandTerm: (cmd) => `${cmd.name()} ${cmd.usage()}`.trim() })
     .option('--db <file>', `SQLite database file (default: ./${DEFAULT_DB} in the current directory, or $RAKELINE_DB)`)
     .option('--session <id>', 'session id, needed when the database holds several sessions')
-    .option('--actor <name>', 'name recorded in the audit trail (default: cli:$USER, or $RAKELINE_ACTOR)')
+    .option('--reviewer <name>', 'your name, recorded with every review, tap override and setting change and printed on the day sheet (default: $RAKELINE_REVIEWER, else the OS user name)')
+    .option('--actor <name>', 'the same as --reviewer (kept for scripts; default $RAKELINE_ACTOR)')
     .addHelpText('after', `
 Exit codes: 0 ok, 1 bad input (the message names file, line and channel), 2 usage error.
 Examples:
@@ -348,6 +368,7 @@ Examples:
   rakeline runs --format csv > runs.csv
   rakeline reduce --runs 3,5-9 --set liftTolAbs=0.03 --set mcDraws=200
   rakeline tap C17 --bad --note "tube pinched"
+  rakeline --reviewer "T. Lindqvist" review 31 --reject --note "stall cell on the tufts"
   rakeline sheet --out day.html --paper Letter
   rakeline follow ./live-session`);
 
@@ -489,8 +510,10 @@ Examples:
       await withStore(g(), 'write', (store) => {
         const sid = pickSession(store, g());
         if (!store.listRuns(sid).some((r) => r.run === run)) throw new InputError(`session ${sid} has no run ${run}`);
-        store.setReview(sid, run, o.accept ? 'accepted' : o.reject ? 'rejected' : null, o.note, actorOf(g()));
-        out(`session ${sid}: run ${run} ${o.accept ? 'accepted' : o.reject ? 'rejected' : 'decision cleared'}`);
+        const who = reviewerOf(g());
+        store.setReview(sid, run, o.accept ? 'accepted' : o.reject ? 'rejected' : null, o.note, who.name);
+        out(`session ${sid}: run ${run} ${o.accept ? 'accepted' : o.reject ? 'rejected' : 'decision cleared'} by ${who.name}`);
+        if (!who.given) note(`note: recorded as reviewer "${who.name}" (the OS user name); give --reviewer "Your Name" to record your name`);
       });
     });
 

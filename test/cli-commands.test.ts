@@ -2,7 +2,7 @@
 // exit codes 0 / 1 / 2, --help everywhere, the machine-readable outputs, the files it writes.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { cpSync, existsSync, mkdtempSync, readFileSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { tmpdir, userInfo } from 'node:os';
 import { join, relative } from 'node:path';
 import { parse } from 'csv-parse/sync';
 import { makeTinySession, runCli, TINY, TINY_RUNS } from './helpers/cliSession';
@@ -183,6 +183,26 @@ describe('a session from import to sheet', () => {
     const after = JSON.parse((await cli('runs', '--format', 'json')).stdout) as { run: number; review: { verdict: string; actor: string } | null }[];
     expect(after.find((x) => x.run === run)!.review).toMatchObject({ verdict: 'rejected', actor: 'T. Lindqvist' });
     expect((await cli('review', String(run))).code).toBe(2);
+  });
+
+  it('the reviewer is a name: --reviewer NAME, else the OS user name without any prefix (with a note saying so); the sheet prints it', async () => {
+    const runs = JSON.parse((await cli('runs', '--format', 'json')).stdout) as { run: number; kind: string }[];
+    const [a, b] = runs.filter((r) => r.kind === 'data').slice(1, 3).map((r) => r.run);
+    const noName = { RAKELINE_ACTOR: '', RAKELINE_REVIEWER: '' };
+    const named = await runCli(['--db', db, '--reviewer', 'A. Farrow', 'review', String(a), '--accept'], { env: noName });
+    expect(named.code, named.stderr).toBe(0);
+    expect(named.stdout).toContain(`run ${a} accepted by A. Farrow`);
+    expect(named.stderr).not.toContain('note:');
+    const os = userInfo().username;
+    const plain = await runCli(['--db', db, 'review', String(b), '--accept'], { env: noName });
+    expect(plain.code, plain.stderr).toBe(0);
+    expect(plain.stderr).toContain(`recorded as reviewer "${os}" (the OS user name); give --reviewer`);
+    const after = JSON.parse((await cli('runs', '--format', 'json')).stdout) as { run: number; review: { actor: string } | null }[];
+    expect(after.find((x) => x.run === a)!.review!.actor).toBe('A. Farrow');
+    expect(after.find((x) => x.run === b)!.review!.actor).toBe(os);
+    const sheet = (await cli('sheet')).stdout;
+    expect(sheet).toContain('accepted</b> by A. Farrow');
+    expect(sheet).not.toContain('cli:');
   });
 
   it('export writes CSV and JSON files; sheet writes the day sheet for the chosen paper', async () => {
