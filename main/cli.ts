@@ -435,7 +435,7 @@ Examples:
 
   program
     .command('reduce')
-    .description('reduce all data runs of the session, or the listed ones, and store the results (history kept)')
+    .description('reduce all data runs of the session, the listed ones or the stale ones, and store the results (history kept)')
     .option('--runs <list>', 'runs to reduce, e.g. 3,5-9', parseRunList)
     .option('--set <key=value>', 'reduction setting for this reduction, repeatable (e.g. liftTolAbs=0.03, mcDraws=200, badTaps=C3,C4)', parseSetting)
     .option('--save', 'keep the --set values as the session settings (audited)')
@@ -519,7 +519,7 @@ Examples:
 
   program
     .command('runs')
-    .description('list the runs with their latest coefficients and flags')
+    .description('list the runs with their latest coefficients, wall-correction method, flags, verdicts and stale marks')
     .addOption(new Option('--format <format>', 'output format').choices(['table', 'csv', 'json']).default('table'))
     .option('--flagged', 'only runs with flags')
     .option('--stale', 'only runs whose result is stale')
