@@ -270,6 +270,8 @@ h3 { font-size: 9pt; margin: 2mm 0 1mm; break-after: avoid; }
 .caution strong { text-transform: uppercase; letter-spacing: 0.03em; }
 .plots { display: flex; flex-wrap: wrap; justify-content: space-between; row-gap: 2mm; }
 .plots figure { margin: 0; break-inside: avoid; page-break-inside: avoid; }
+.plot-row { break-inside: avoid; page-break-inside: avoid; margin-bottom: 2mm; }
+tbody.tail { break-inside: avoid; page-break-inside: avoid; }
 .plots figcaption { font-size: 8pt; max-width: 91mm; }
 table { border-collapse: collapse; width: 100%; }
 thead { display: table-header-group; } tfoot { display: table-footer-group; }
@@ -342,6 +344,31 @@ function halfWidth(iv: Interval | undefined, d: number): string {
   return `<span class="u">±${fmt((iv.hi - iv.lo) / 2, d)}</span>`;
 }
 
+/** Height of a page's body (paper less the @page margins, 15 mm + 13 mm), pt. */
+export const PAGE_BODY_PT: Record<DaySheetArgs['paper'], number> = { A4: (297 - 28) / 25.4 * 72, Letter: (279.4 - 28) / 25.4 * 72 };
+/** The least share of a page the last page of the sheet holds (the run table's kept tail). */
+export const TAIL_FRACTION = 0.4;
+
+/** Estimated printed height of one run-table row, pt (common practice, no source: 7 pt values
+ *  at line height 1.3, one more 6 pt line for the interval half-widths; the status column is
+ *  19.1 % of the table, about 27 characters of 6.6 pt text a line; 0.8 mm of padding). */
+export function rowHeightPt(statusHtml: string, withIntervals: boolean): number {
+  const text = statusHtml.replace(/<[^>]*>/g, '').replace(/&[a-z#0-9]+;/g, 'x');
+  const statusLines = Math.max(1, Math.ceil(text.length / 27));
+  const values = 7 * 1.3 + (withIntervals ? 6 * 1.3 : 0);
+  return Math.max(values, statusLines * 6.6 * 1.3) + 0.8 / 25.4 * 72 + 0.6;
+}
+
+/** How many rows from the end make up at least `minPt` (all of them when the table is shorter). */
+export function tailRows(heights: readonly number[], minPt: number): number {
+  let sum = 0;
+  for (let k = heights.length - 1; k >= 0; k--) {
+    sum += heights[k];
+    if (sum >= minPt) return heights.length - k;
+  }
+  return heights.length;
+}
+
 function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Map<number, { short: string[] }>): string {
   const byRun = new Map((args.results ?? []).map((r) => [r.run, r]));
   const widths = [4.6, 6.6, 4.6, 4.6, 4.8, 4.4, 4.4, 6.8, 6.8, 7.4, 6.8, 6.6, 5.8, 5.8, 19.1];
@@ -350,6 +377,7 @@ function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Map
 <th>Run</th><th>Time</th><th>α geom °</th><th>α corr °</th><th>q Pa</th><th>V m/s</th><th>Re ×10⁶</th>
 <th>cl pres&shy;sure</th><th>cl mo&shy;men&shy;tum</th><th>cd wake</th><th>cd pres&shy;sure</th><th>cm c/4</th>
 <th>Γ pres&shy;sure m²/s</th><th>Γ mo&shy;men&shy;tum m²/s</th><th>Status, flags and verdict</th></tr></thead>`;
+  const heights: number[] = [];
   const body = args.runs.map((row) => {
     const r = row.result;
     const sev = rowSeverity(row);
@@ -364,11 +392,20 @@ function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Map
           fmt(r.gammaPressure, 3) + halfWidth(u?.gammaPressure, 3), fmt(r.gammaMomentum, 3) + halfWidth(u?.gammaMomentum, 3),
         ]
       : [fmt(row.alphaDeg, 2), '–', '–', '–', '–', '–', '–', '–', '–', '–', '–', '–'];
+    const status = `${statusCell(row, stale.get(row.run)?.short)}${methodNote(byRun.get(row.run))}`;
+    heights.push(rowHeightPt(status, cells.some((c) => c.includes('class="u"'))));
     return `<tr${cls ? ` class="${cls}"` : ''} data-run="${row.run}"><td class="n">${mark}${row.run}</td><td class="n">${escapeHtml(localTime(row.time, tz, true))}</td>${cells
       .map((c) => `<td class="n">${c}</td>`)
-      .join('')}<td class="status">${statusCell(row, stale.get(row.run)?.short)}${methodNote(byRun.get(row.run))}</td></tr>`;
+      .join('')}<td class="status">${status}</td></tr>`;
   });
-  return `<table class="runs">${head}<tbody>${body.join('\n')}</tbody></table>
+  // Balanced pagination: the table ends the sheet, so its last rows are kept together in a
+  // tbody that does not break (Chromium honours break-inside on table sections): the last page
+  // then holds at least TAIL_FRACTION of a page of rows instead of a line or two.
+  const n = tailRows(heights, PAGE_BODY_PT[args.paper] * TAIL_FRACTION);
+  const tbody = n < body.length
+    ? `<tbody>${body.slice(0, body.length - n).join('\n')}</tbody><tbody class="tail">${body.slice(body.length - n).join('\n')}</tbody>`
+    : `<tbody class="tail">${body.join('\n')}</tbody>`;
+  return `<table class="runs">${head}${tbody}</table>
 <p class="sub">${SEVERITY.reject.glyph} and a solid left bar: at least one ${SEVERITY.reject.word} flag (${SEVERITY.reject.meaning.toLowerCase()}); ${SEVERITY.warn.glyph} and a dashed bar: ${SEVERITY.warn.word} flags only (${SEVERITY.warn.meaning.toLowerCase()}). Times are local (${escapeHtml(zoneOffset(new Date(args.generatedAt), tz))}).
 α corr, q, V, Re, cl, cd and cm are wall-corrected (${escapeHtml(CORRECTION_WORDS[settings.correction] ?? settings.correction)}); the status column names each run's method.
 cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl with V and cl corrected.${args.results?.length ? ' Small figures under a value: half the width of its 95 % Monte Carlo coverage interval (JCGM 101:2008), same basis as the value.' : ''}</p>`;
@@ -468,14 +505,16 @@ function polars(args: DaySheetArgs): string {
   const fig = (spec: PlotSpec, caption = '') => `<figure>${svgPlot(spec)}${caption ? `<figcaption>${caption}</figcaption>` : ''}</figure>`;
   const plotted = new Set(p.map((q) => q.run));
   const notPlotted = args.runs.filter((r) => r.review?.verdict === 'rejected' && !plotted.has(r.run)).map((r) => r.run);
-  return `<div class="plots">
-${fig(lift)}
-${fig(drag, offNote(drag, (q) => `cd ${span(q.map((o) => o.x), 4)}`))}
-${fig(cm)}
-${fig(cdA, offNote(cdA, (q) => `cd ${span(q.map((o) => o.y), 4)}`))}
-</div>
-<p class="sub">Corrected values. Filled markers and solid lines: up-sweep (α rising); open markers and dashed lines: down-sweep (α falling).
+  const legend = `<p class="sub">Corrected values. Filled markers and solid lines: up-sweep (α rising); open markers and dashed lines: down-sweep (α falling).
 Bars: 95 % coverage intervals. Lines join the runs of each sweep in time order and break at runs with a ${severityWord('reject')} flag.${notPlotted.length ? ` Not plotted (rejected by the reviewer): ${runsWord(notPlotted)}.` : ''}</p>`;
+  // The heading stays with the first row of plots, the legend with the last (no heading or
+  // legend alone at a page's foot or head).
+  return `<div class="keep"><h2>Polars</h2>
+<div class="plots plot-row">${fig(lift)}
+${fig(drag, offNote(drag, (q) => `cd ${span(q.map((o) => o.x), 4)}`))}</div></div>
+<div class="keep"><div class="plots plot-row">${fig(cm)}
+${fig(cdA, offNote(cdA, (q) => `cd ${span(q.map((o) => o.y), 4)}`))}</div>
+${legend}</div>`;
 }
 
 /** Cp(x/c) of one run's main tap row, for the Cp pages. */
@@ -518,7 +557,7 @@ export function cpPlotRuns(args: DaySheetArgs, common: Set<string>): { runs: num
 
 function cpPages(args: DaySheetArgs, common: Set<string>): string {
   const { runs, left } = cpPlotRuns(args, common);
-  if (!runs.length) return '<p>No flagged run and no run picked: no Cp plots.</p>';
+  if (!runs.length) return '<h2>Cp distributions</h2>\n<p>No flagged run and no run picked: no Cp plots.</p>';
   const byRun = new Map((args.results ?? []).map((r) => [r.run, r]));
   const rows = new Map(args.runs.map((r) => [r.run, r]));
   const figs = runs.map((run) => {
@@ -530,8 +569,11 @@ function cpPages(args: DaySheetArgs, common: Set<string>): string {
     const spec = cpPlotSpec(r, title, { width: PLOT_W, height: CP_H, unit: 'pt' });
     return `<figure>${svgPlot(spec)}<figcaption>${escapeHtml(words.length ? words.join('; ') : 'picked by the engineer, no flags')}</figcaption></figure>`;
   });
-  return `<p class="sub keep-next">Main tap row, measured Cp (not wall-corrected) against the inviscid panel solution at the corrected α. Runs: the flagged and rejected runs${args.cpRuns?.length ? ' and those picked by the engineer' : ''}.${left.length ? ` Left out for room: ${escapeHtml(runsWord(left))}.` : ''}</p>
-<div class="plots">${figs.join('\n')}</div>`;
+  const intro = `<p class="sub">Main tap row, measured Cp (not wall-corrected) against the inviscid panel solution at the corrected α. Runs: the flagged and rejected runs${args.cpRuns?.length ? ' and those picked by the engineer' : ''}.${left.length ? ` Left out for room: ${escapeHtml(runsWord(left))}.` : ''}</p>`;
+  const plotRows: string[] = [];
+  for (let k = 0; k < figs.length; k += 2) plotRows.push(`<div class="plots plot-row">${figs.slice(k, k + 2).join('\n')}</div>`);
+  // The heading and its note stay with the first row of plots.
+  return `<div class="keep"><h2>Cp distributions</h2>\n${intro}\n${plotRows[0]}</div>\n${plotRows.slice(1).join('\n')}`;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -718,7 +760,7 @@ ${notes}
 engineer has to review it before it is used for any design work or decision. The facility's safety rules
 and the local test practice take precedence over anything printed here.</p>
 </section>
-<section><h2>Polars</h2>
+<section>
 ${polars(args)}
 </section>
 <section class="keep"><h2>Session statistics</h2>
@@ -742,7 +784,7 @@ ${badTaps(args, settings, tz)}
 <section><h2>Settings in force</h2>
 ${settingsSection(args, settings)}
 </section>
-<section><h2>Cp distributions</h2>
+<section>
 ${cpPages(args, common)}
 </section>
 <section><h2>Runs</h2>

@@ -78,7 +78,7 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
                     checked={chosen.includes(s.run)}
                     onChange={(e) => setSpanRuns(e.target.checked ? [...chosen, s.run] : chosen.filter((r) => r !== s.run))}
                   />{' '}
-                  {s.run} (α {fix(s.alphaDeg, 1)}° corr., c<sub>l</sub> spanwise mean of rows {fix(s.CL, 3)}, uncorrected)
+                  {s.run} (α {fix(s.alphaDeg, 1)}° corr.; cl, spanwise mean of rows, uncorrected: {fix(s.CL, 3)})
                 </label>
               ))}
             </fieldset>
@@ -90,17 +90,17 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
         <h3>Points</h3>
         <div className="table-scroll short">
           <table className="runs compact">
-            <thead><tr><th scope="col">run</th><th scope="col">sweep</th><th scope="col" className="num">α<sub>c</sub> [°]</th><th scope="col" className="num">c<sub>l</sub> p</th><th scope="col" className="num">c<sub>l</sub> mom</th><th scope="col" className="num">c<sub>d</sub> wake</th><th scope="col" className="num">c<sub>d</sub> p</th><th scope="col" className="num">c<sub>m c/4</sub></th><th scope="col">flags and reasons</th></tr></thead>
+            <thead><tr><th scope="col">run</th><th scope="col">sweep</th><th scope="col" className="flags-col">flags and reasons</th><th scope="col" className="num">α<sub>c</sub> [°]</th><th scope="col" className="num">c<sub>l</sub> p</th><th scope="col" className="num">c<sub>l</sub> mom</th><th scope="col" className="num">c<sub>d</sub> wake</th><th scope="col" className="num">c<sub>d</sub> p</th><th scope="col" className="num">c<sub>m c/4</sub></th></tr></thead>
             <tbody>
               {pts.map((p, i) => (
                 <tr key={p.run} className={held.has(p.run) ? 'row-reject' : p.flagged ? 'row-warn' : undefined}>
                   <td><button type="button" className="link" onClick={() => onOpen(p.run)}>{p.run}</button></td>
                   <td>{dirs[i] === 'up' ? '↗ up' : '↘ down'}</td>
-                  <td className="num">{fix(p.alphaDeg, 2)}</td><td className="num">{fix(p.cl, 4)}</td><td className="num">{fix(p.clMom, 4)}</td>
-                  <td className="num">{fix(p.cd, 5)}</td><td className="num">{fix(p.cdp, 5)}</td><td className="num">{fix(p.cmc4, 4)}</td>
-                  <td className="flag-reasons">{(flagsOf.get(p.run) ?? []).map((f, k) => (
+                  <td className="flag-reasons flags-col">{(flagsOf.get(p.run) ?? []).map((f, k) => (
                     <div key={k}><b>{SEVERITY[f.severity].glyph} {SEVERITY[f.severity].word}:</b> {f.reason}</div>
                   ))}{staleOf.has(p.run) ? <StaleBadge mark={staleOf.get(p.run)!} /> : null}</td>
+                  <td className="num">{fix(p.alphaDeg, 2)}</td><td className="num">{fix(p.cl, 4)}</td><td className="num">{fix(p.clMom, 4)}</td>
+                  <td className="num">{fix(p.cd, 5)}</td><td className="num">{fix(p.cdp, 5)}</td><td className="num">{fix(p.cmc4, 4)}</td>
                 </tr>
               ))}
             </tbody>
