@@ -568,6 +568,9 @@ Examples:
         const sid = pickSession(store, g());
         const html = D().storedDaySheet(store, sid, { paper: o.paper, appVersion: pkg.version, ...(o.cpRuns ? { cpRuns: o.cpRuns } : {}) });
         writeOut(html, o.out, 'day sheet');
+        const data = new Set(dataRunsOf(store, sid));
+        const missing = (o.cpRuns ?? []).filter((r) => !data.has(r));
+        if (missing.length) note(`note: --cp-runs: session ${sid} has no data run ${D().runRanges(missing)}; the sheet names ${missing.length > 1 ? 'them' : 'it'} as not plotted`);
       });
     });
 

@@ -542,7 +542,7 @@ export function cpPlotSpec(r: RunResult, title: string, opts: Partial<PlotSpec> 
 
 /** Runs that get a Cp plot: every run with a hold flag, a flag of its own (not one raised
  *  identically on several runs) or a reviewer's rejection, and the runs the engineer picked. */
-export function cpPlotRuns(args: DaySheetArgs, common: Set<string>): { runs: number[]; left: number[] } {
+export function cpPlotRuns(args: DaySheetArgs, common: Set<string>): { runs: number[]; left: number[]; missing: number[] } {
   const picked = new Set(args.cpRuns ?? []);
   const want = args.runs.filter((row) => row.kind === 'data' && row.result && (
     picked.has(row.run)
@@ -552,12 +552,16 @@ export function cpPlotRuns(args: DaySheetArgs, common: Set<string>): { runs: num
   const have = new Set((args.results ?? []).filter((r) => Array.isArray(r.taps) && r.taps.length).map((r) => r.run));
   const runs = want.filter((r) => have.has(r));
   const MAX = 24;
-  return { runs: runs.slice(0, MAX), left: runs.slice(MAX) };
+  // Runs picked that get no plot: not in the session, a wind-off zero, or not reduced.
+  const plottable = new Set(args.runs.filter((row) => row.kind === 'data' && row.result).map((r) => r.run));
+  const missing = [...picked].filter((r) => !plottable.has(r) || !have.has(r)).sort((a, b) => a - b);
+  return { runs: runs.slice(0, MAX), left: runs.slice(MAX), missing };
 }
 
 function cpPages(args: DaySheetArgs, common: Set<string>): string {
-  const { runs, left } = cpPlotRuns(args, common);
-  if (!runs.length) return '<h2>Cp distributions</h2>\n<p>No flagged run and no run picked: no Cp plots.</p>';
+  const { runs, left, missing } = cpPlotRuns(args, common);
+  const notPlotted = missing.length ? ` Picked but not plotted (no such data run, or not reduced): ${escapeHtml(runsWord(missing))}.` : '';
+  if (!runs.length) return `<h2>Cp distributions</h2>\n<p>No flagged run and no run picked: no Cp plots.${notPlotted}</p>`;
   const byRun = new Map((args.results ?? []).map((r) => [r.run, r]));
   const rows = new Map(args.runs.map((r) => [r.run, r]));
   const figs = runs.map((run) => {
@@ -569,7 +573,7 @@ function cpPages(args: DaySheetArgs, common: Set<string>): string {
     const spec = cpPlotSpec(r, title, { width: PLOT_W, height: CP_H, unit: 'pt' });
     return `<figure>${svgPlot(spec)}<figcaption>${escapeHtml(words.length ? words.join('; ') : 'picked by the engineer, no flags')}</figcaption></figure>`;
   });
-  const intro = `<p class="sub">Main tap row, measured Cp (not wall-corrected) against the inviscid panel solution at the corrected α. Runs: the flagged and rejected runs${args.cpRuns?.length ? ' and those picked by the engineer' : ''}.${left.length ? ` Left out for room: ${escapeHtml(runsWord(left))}.` : ''}</p>`;
+  const intro = `<p class="sub">Main tap row, measured Cp (not wall-corrected) against the inviscid panel solution at the corrected α. Runs: the flagged and rejected runs${args.cpRuns?.length ? ' and those picked by the engineer' : ''}.${left.length ? ` Left out for room: ${escapeHtml(runsWord(left))}.` : ''}${notPlotted}</p>`;
   const plotRows: string[] = [];
   for (let k = 0; k < figs.length; k += 2) plotRows.push(`<div class="plots plot-row">${figs.slice(k, k + 2).join('\n')}</div>`);
   // The heading and its note stay with the first row of plots.
