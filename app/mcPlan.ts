@@ -28,7 +28,7 @@
 import { freeStream } from './air';
 import { applyCorrections, wallCorrections } from './corrections';
 import { correctionOf, type CorrectionPlan } from './correctionChoice';
-import type { SignaturePlan } from './wallSignature';
+import { signatureInterference, type SignaturePlan } from './wallSignature';
 import { ADJ, adjustedCorrection, correctedLift } from './reductionErrors';
 import { applyStencil, linearStencil, trapezoid } from './quadrature';
 import { compareUpper, contourIntegrals, type ContourRule } from './surface';
@@ -408,8 +408,8 @@ export function inputStages(P: McPlan, count: number): { channel: Uint8Array; ta
 }
 
 /** The correction's parts that do not depend on the draw (σ, ε_sb and the factor of cd_u in ε_wb
- *  of the formula methods), found once by wallCorrections itself; null where correctionOf is
- *  called every draw (wall signature, no correction, or a geometry wallCorrections refuses).
+ *  of the formula methods; σ of the wall signature), found once by wallCorrections itself; null
+ *  where correctionOf is called every draw (no correction, or a geometry wallCorrections refuses).
  *  ε_wb = kWb·cd_u is the product wallCorrections forms: ((c/h)/4)·cd_u, or (½·θ·(c/h))·cd_u. */
 interface FixedCorrection {
   method: CorrectionPlan['method'];
@@ -422,12 +422,14 @@ interface FixedCorrection {
 
 function fixedCorrection(P: Pick<McPlan, 'correct' | 'chord' | 'height' | 'width' | 'areaC2'>): FixedCorrection | null {
   const c = P.correct;
-  if (c.method === 'wall-signature' || c.method === 'none') return null;
+  if (c.method === 'none') return null;
   try {
     const g = { chord: P.chord, height: P.height, width: P.width, sectionAreaC2: P.areaC2, cdU: 1 };
+    // The wall signature takes σ from the classical formula (correctionOf), which depends on the
+    // geometry only; ε comes from the walls every draw.
     const w = c.method === 'maskell'
       ? wallCorrections({ ...g, method: 'maskell', maskellTheta: c.maskellTheta })
-      : wallCorrections({ ...g, method: c.method });
+      : wallCorrections({ ...g, method: c.method === 'wall-signature' ? 'barlow-rae-pope' : c.method });
     // With cd_u = 1, ε_wb is wallCorrections' own factor of cd_u, exactly (x·1 = x).
     return {
       method: c.method,
@@ -642,7 +644,21 @@ export function evalPlanStages(
  *  numbers wallCorrections gives, ε_wb by the same product), else by correctionOf itself. */
 function planCorrection(P: McPlan, W: McPlan['walls'], cdU: number, cdp: number) {
   const f = P.fixed;
-  if (f) {
+  if (f && f.method === 'wall-signature') {
+    // correctionOf's wall-signature case; its σ call refuses a non-finite drag (left to it).
+    const sig = P.signature;
+    if (W && sig && !sig.unusable && Number.isFinite(Number.isFinite(cdU) ? cdU : cdp)) {
+      const s = signatureInterference(sig, P.fcp, P.ccp);
+      return {
+        method: f.method,
+        sigma: f.sigma,
+        epsSb: s.epsSb,
+        epsWb: s.epsWb,
+        eps: s.epsSb + s.epsWb,
+        measured: { dAlphaDeg: s.dAlphaDeg, dCl: s.dCl, dCm: s.dCm },
+      };
+    }
+  } else if (f) {
     const cd = f.method === 'maskell' ? (f.maskellWake && Number.isFinite(cdU) ? cdU : cdp) : Number.isFinite(cdU) ? cdU : cdp;
     if (Number.isFinite(cd)) {
       const epsWb = f.kWb * cd;
