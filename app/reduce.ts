@@ -25,7 +25,7 @@ import { gammaFromCl, liftCrossCheck } from './crosscheck';
 import { sectionArea, wallCorrections, applyCorrections } from './corrections';
 import { correctionFor, correctionSet, type CorrectionInputs, type CorrectionPlan } from './correctionChoice';
 import { signaturePlan, type SignaturePlan } from './wallSignature';
-import { coverageInterval, instrumentStd, monteCarlo, normalDeviates } from './uncertainty';
+import { coverageInterval, instrumentStd, monteCarlo, NormalStream } from './uncertainty';
 import { addGroupErrors, channelSd, instrumentModel, type InstrumentModel } from './instruments';
 import {
   ADJ, ADJ_LENGTH, adjustedCorrection, adjustmentSd, correctedLift, reductionErrors, type ReductionErrors,
@@ -768,15 +768,18 @@ function planLayout(L: Layout): PlanLayout {
 }
 
 const KEYS_MC: UKey[] = ['cl', 'cd', 'cdp', 'cmc4', 'clMom', 'gammaPressure', 'gammaMomentum', 'gammaWall'];
-/** The deviates of a run's draws and the output columns (grown as needed, reused from run to run
- *  on this thread). */
+/** The deviates of a block of draws and the output columns (grown as needed, reused from run to
+ *  run on this thread). */
 let deviates = new Float64Array(0);
 let columns: Float64Array[] = [];
 
-/** JCGM 101 Monte Carlo of one run (the draw order of runUncertaintyPerDraw, which see): every
- *  standard normal deviate of every draw first, in one pass over the seeded stream
- *  (app/uncertainty.ts normalDeviates), then each draw's inputs as mean + u·z from its block of
- *  deviates and its outputs straight into one Float64Array column per output — no per-draw objects.
+/** Draws whose deviates are made in one pass (bounds the buffer: ~0.75 MB for the bench's run). */
+const MC_BLOCK = 256;
+
+/** JCGM 101 Monte Carlo of one run (the draw order of runUncertaintyPerDraw, which see): the
+ *  standard normal deviates of a block of draws first, in one pass over the seeded stream
+ *  (app/uncertainty.ts NormalStream), then each draw's inputs as mean + u·z from its part of the
+ *  block and its outputs straight into one Float64Array column per output — no per-draw objects.
  *  The same draws in the same order with the same arithmetic, so the same numbers. */
 function runUncertainty(m: McModel, settings: Settings, run: ZeroedRun, nominal: Record<UKey, number>): Partial<Record<UKey, Interval>> {
   const draws = settings.mcDraws;
@@ -790,10 +793,10 @@ function runUncertainty(m: McModel, settings: Settings, run: ZeroedRun, nominal:
   const nG = groups.length;
   const withKq = m.kqSd > 0;
   const per = nCh + nTap + 1 + (withKq ? 1 : 0) + 2 * nG + ADJ_LENGTH;
-  const total = draws * per;
-  if (deviates.length < total) deviates = new Float64Array(total);
+  const block = Math.min(draws, MC_BLOCK);
+  if (deviates.length < block * per) deviates = new Float64Array(block * per);
   const z = deviates;
-  normalDeviates(settings.mcSeed + run.info.run, total, z);
+  const stream = new NormalStream(settings.mcSeed + run.info.run);
   if (!columns.length || columns[0].length < draws) columns = KEYS_MC.map(() => new Float64Array(draws));
   const [cCl, cCd, cCdp, cCm, cMom, cGp, cGm, cGw] = columns;
   const vals = new Float64Array(nCh);
@@ -805,6 +808,10 @@ function runUncertainty(m: McModel, settings: Settings, run: ZeroedRun, nominal:
   const alpha0 = run.info.alphaDeg;
   const { alphaSd, kq: kq0, kqSd } = m;
   for (let d = 0, o = 0; d < draws; d++) {
+    if (d % block === 0) {
+      stream.fill(z, Math.min(block, draws - d) * per);
+      o = 0;
+    }
     for (let k = 0; k < nCh; k++) vals[k] = mean[k] + sd[k] * z[o++];
     for (let i = 0; i < nTap; i++) tapDx[i] = 0 + tapSd * z[o++];
     const alphaDeg = alpha0 + alphaSd * z[o++];

@@ -9,7 +9,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { demoSession } from '../resources/demo/scenario';
 import { averageRuns, prepareRuns, reduceRun, resolveSettings } from '../app/reduce';
-import { createRng, normalDeviates, type Draw } from '../app/uncertainty';
+import { createRng, normalDeviates, NormalStream, type Draw } from '../app/uncertainty';
 import { monteCarlo } from '../app/uncertainty';
 import type { RawRun, Settings, Setup, ZeroedRun } from '../app/types';
 import { miniRuns, miniSetup } from './helpers/mini-session';
@@ -133,7 +133,7 @@ describe('columns Monte Carlo and staged budget = the per-draw reference, bit fo
   });
 });
 
-describe('normalDeviates: the z of successive Draw.normal calls', () => {
+describe('normalDeviates and NormalStream: the z of successive Draw.normal calls', () => {
   it('equals monteCarlo\'s Draw on the same seed, odd counts included', () => {
     for (const [seed, count] of [[1, 1], [42, 7], [987654321, 1000], [-5, 333]] as const) {
       const got = new Float64Array(count);
@@ -144,6 +144,16 @@ describe('normalDeviates: the z of successive Draw.normal calls', () => {
         return { x: 0 };
       });
       expect(Array.from(got)).toEqual(want);
+      // The same deviates in blocks of odd and even sizes (the spare of a pair carried over).
+      const stream = new NormalStream(seed);
+      const blocks: number[] = [];
+      for (let at = 0, size = 1; at < count; size = (size % 5) + 1) {
+        const part = new Float64Array(Math.min(size, count - at));
+        stream.fill(part, part.length);
+        blocks.push(...part);
+        at += part.length;
+      }
+      expect(blocks).toEqual(want);
     }
     // Not a constant: the deviates of two seeds differ and look standard normal (mean ≈ 0, sd ≈ 1
     // for 20000 of them: 5 standard errors; common practice, no source).
