@@ -12,7 +12,7 @@ import { afterAll, describe, expect, it, vi } from 'vitest';
 import fc from 'fast-check';
 import { createRunParser } from '../app/log/runParser';
 import { createRunParser as referenceParser } from './helpers/runParserBefore';
-import { BufferPool } from '../app/bufferPool';
+import { BufferPool, sizeClass } from '../app/bufferPool';
 import { miniSetup } from './helpers/mini-session';
 import { cleanupTempDirs, comparableContents, miniFolder, tempDir } from './helpers/store-fixtures';
 import type { Setup } from '../app/types';
@@ -230,4 +230,29 @@ describe('a whole session stores the same rows as with the earlier scanner', () 
     const ref = await importedWithReference(f.dir, join(dir, 'ref.sqlite'));
     expect(await importedNow(f.dir, join(dir, 'now.sqlite'), 0)).toEqual(ref);
   }, 60_000);
+});
+
+describe('buffer size classes (app/bufferPool.ts)', () => {
+  it('a class holds the bytes asked for, wastes at most 1/8, and nearby sizes share a class', () => {
+    for (let n = 1; n < 5e7; n = Math.ceil(n * 1.37) + 1) {
+      const c = sizeClass(n);
+      expect(c).toBeGreaterThanOrEqual(n);
+      if (n > 4096) expect(c).toBeLessThanOrEqual(n * 1.125);
+    }
+    expect(sizeClass(2000 * 8)).toBe(sizeClass(2010 * 8)); // run logs a few samples apart
+    // 243 columns of one file taken, given back, and the next file's (a few samples longer) fit.
+    const pool = new BufferPool();
+    const first = Array.from({ length: 243 }, () => new ArrayBuffer(sizeClass(2000 * 8)));
+    for (const b of first) pool.give(b);
+    const taken = Array.from({ length: 243 }, () => pool.take(2011 * 8));
+    expect(taken.every((b) => b !== null && first.includes(b))).toBe(true);
+    expect(pool.keptBytes).toBe(0);
+  });
+
+  it('a pool keeps no more bytes than its bound', () => {
+    const pool = new BufferPool(4096, 100_000);
+    for (let k = 0; k < 50; k++) pool.give(new ArrayBuffer(16_384));
+    expect(pool.keptBytes).toBeLessThanOrEqual(100_000);
+    expect(pool.keptBytes).toBe(6 * 16_384);
+  });
 });

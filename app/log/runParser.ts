@@ -15,7 +15,7 @@ import type { Setup } from '../types';
 import { channelToSI } from '../units';
 import { LogError, shown } from './errors';
 import { parseHeaderLine } from './csv';
-import type { BufferPool } from '../bufferPool';
+import { sizeClass, type BufferPool } from '../bufferPool';
 
 export const TIME_COLUMN = 't_s';
 export const RUN_COLUMN = 'run';
@@ -83,8 +83,9 @@ class RunBuffers {
   }
   /** A column of cap samples, on a buffer from the arena if it has one large enough. */
   private alloc(cap: number): Float64Array {
-    const b = this.arena?.take(cap * 8);
-    return b ? new Float64Array(b, 0, cap) : new Float64Array(cap);
+    if (!this.arena) return new Float64Array(cap);
+    const b = this.arena.take(cap * 8) ?? new ArrayBuffer(sizeClass(cap * 8));
+    return new Float64Array(b, 0, cap);
   }
   grow(): void {
     const cap = this.cap * 2;
