@@ -395,11 +395,12 @@ class Scanner {
           const start = i;
           c = b[i];
           while (c === SP || c === TAB) c = b[++i];
-          let neg = false;
-          if (c === 45) {
-            neg = true;
-            c = b[++i];
-          } else if (c === 43) c = b[++i];
+          // The sign without a branch (half the cells of a pressure log are negative: a branch
+          // on it mispredicts at random); a '+' is rare.
+          const neg = +(c === 45);
+          i += neg;
+          c = b[i];
+          if (c === 43 && neg === 0) c = b[++i];
           let m = 0;
           const d0 = i;
           let d = c - 48;
@@ -444,8 +445,7 @@ class Scanner {
           e -= frac;
           let v: number;
           if (nd <= 15 && e >= -22 && e <= 22) {
-            v = e >= 0 ? m * POW10[e] : m / POW10[-e];
-            if (neg) v = -v;
+            v = (e >= 0 ? m * POW10[e] : m / POW10[-e]) * (1 - 2 * neg); // ×(−1) is exact: −v
           } else {
             v = Number(decoder.decode(b.subarray(start, i)));
             if (!Number.isFinite(v)) this.badCell(b, start, col, lineNo);
