@@ -132,6 +132,9 @@ describe('the scanner reads what the earlier one read, bit for bit', () => {
       ['CR inside', [header, good.replace(',', '\r,')].join('\n') + '\n'],
       ['lone exponent', [header, line('0', (k) => (k === 0 ? '1e' : '1'))].join('\n') + '\n'],
       ['sign only', [header, line('0', (k) => (k === 5 ? '-' : '1'))].join('\n') + '\n'],
+      ['two signs', [header, line('0', (k) => (k === 5 ? '-+5' : '1'))].join('\n') + '\n'],
+      ['two signs, other order', [header, line('0', (k) => (k === 6 ? '+-5' : '1'))].join('\n') + '\n'],
+      ['double minus', [header, line('0', (k) => (k === 2 ? '--5' : '1'))].join('\n') + '\n'],
       ['no samples', header + '\n'],
       ['empty', ''],
     ];
