@@ -297,7 +297,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
               ? <>Lift cross-check: c<sub>l</sub> mom − c<sub>l</sub> p = {fix(dCl, 4)}; allowed ±{fix(tol, 4)} → <b>{Math.abs(dCl) > tol ? '✖ the methods disagree' : '✔ the methods agree'}</b>.</>
               : 'Lift cross-check not possible (no wall taps).'}
           </p>
-          {result.spanwise ? <p className="small">Spanwise: CL = {fix(result.spanwise.CL, 4)}, spread of row cl = {fix(result.spanwise.spread, 4)}.</p> : null}
+          {result.spanwise ? <p className="small">Spanwise (uncorrected): c<sub>l</sub> spanwise mean of rows = {fix(result.spanwise.CL, 4)}, spread of the rows' c<sub>l</sub> = {fix(result.spanwise.spread, 4)}.</p> : null}
         </section>
 
         <section className="panel" aria-label="Wake profile">
@@ -376,7 +376,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
         <section className="panel" aria-label="Reduction history">
           <h3>Reduction history</h3>
           <table className="history">
-            <thead><tr><th scope="col">reduced</th><th scope="col">core</th><th scope="col" className="num">c<sub>l</sub></th><th scope="col" className="num">c<sub>d</sub></th><th scope="col">flags</th></tr></thead>
+            <thead><tr><th scope="col">reduced</th><th scope="col">core</th><th scope="col" className="num">c<sub>l</sub> p, corr.</th><th scope="col" className="num">c<sub>d</sub> wake, corr.</th><th scope="col">flags</th></tr></thead>
             <tbody>
               {got.history.map((h) => (
                 <tr key={h.resultId}><td>{when(h.reducedAt)}</td><td>{h.coreVersion}</td><td className="num">{fix(h.cl, 4)}</td><td className="num">{fix(h.cd, 5)}</td><td>{h.flags.map((f) => flagLine(f, 'short')).join('; ') || '–'}</td></tr>
