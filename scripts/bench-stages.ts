@@ -4,7 +4,8 @@
 // scanner (bytes → SI doubles), the channel statistics (app/samples.ts channelStats at the
 // session's spike threshold) and the packing (main/sampleCodec.ts) — plus the fused reader
 // (main/runFile.ts RunFileReader: hash, scan, statistics and packing as the import threads run
-// them). Each figure is the second of two passes (the first lets the JIT compile). Figures
+// them). Each figure is CPU time (process.cpuUsage; the wall time of a stage stretches with the
+// other jobs on shared cores), the second of two passes (the first lets the JIT compile). Figures
 // printed, never asserted.
 import { closeSync, openSync, readdirSync, readFileSync, readSync, statSync } from 'node:fs';
 import { createHash } from 'node:crypto';
@@ -20,6 +21,12 @@ import { BufferPool } from '../app/bufferPool';
 import { PackedRun, packSamples } from '../main/sampleCodec';
 import { RunFileReader } from '../main/runFile';
 
+/** CPU time of this process, ms (one thread here): other jobs on the shared cores stretch the
+ *  wall time of a stage, much less its CPU time. */
+const cpuMs = () => {
+  const u = process.cpuUsage();
+  return (u.user + u.system) / 1000;
+};
 const load = () => loadavg().map((v) => v.toFixed(2)).join(' ');
 const CHUNK = 1 << 20;
 
@@ -51,40 +58,40 @@ export function benchStages(folder: string, maxFiles: number): void {
   for (let pass = 0; pass < 2; pass++) {
     for (const k of Object.keys(ms) as (keyof typeof ms)[]) ms[k] = 0;
     for (let f = 0; f < paths.length; f++) {
-      let t0 = performance.now();
+      let t0 = cpuMs();
       const chunks = chunksOf(paths[f]);
-      ms.read += performance.now() - t0;
-      t0 = performance.now();
+      ms.read += cpuMs() - t0;
+      t0 = cpuMs();
       const h = createHash('sha256');
       for (const c of chunks) h.update(c);
       h.digest();
-      ms.hash += performance.now() - t0;
-      t0 = performance.now();
+      ms.hash += cpuMs() - t0;
+      t0 = cpuMs();
       const parser = createRunParser(plans[f].file, setup, { runColumn: false, expectedBytes: statSync(paths[f]).size, arena });
       for (const c of chunks) parser.push(c);
       const channels = parser.end() as RunChannels;
-      ms.scan += performance.now() - t0;
+      ms.scan += cpuMs() - t0;
       const info = infos.get(plans[f].runs[0])!;
-      t0 = performance.now();
+      t0 = cpuMs();
       averageRun({ info, channels }, spikeK);
-      ms.stats += performance.now() - t0;
-      t0 = performance.now();
+      ms.stats += cpuMs() - t0;
+      t0 = cpuMs();
       const n = channels[setup.channels[0].name].length;
       const packed = new PackedRun(setup.channels.length * n * 3 + 64);
       for (const c of setup.channels) packSamples(packed, channels[c.name], channelToSI(1, c.unit));
-      ms.pack += performance.now() - t0;
+      ms.pack += cpuMs() - t0;
       for (const x of Object.values(channels)) arena.give(x.buffer);
-      t0 = performance.now();
+      t0 = cpuMs();
       const reader = new RunFileReader(plans[f], setup, infos, spikeK, { expectedBytes: statSync(paths[f]).size, arena });
       for (const c of chunks) reader.push(c);
       reader.end();
-      ms.fused += performance.now() - t0;
+      ms.fused += cpuMs() - t0;
     }
   }
   const mb = bytes / 1e6;
   const row = (label: string, t: number) =>
     console.log(`${label.padEnd(40)} ${(t / 1000).toFixed(2).padStart(6)} s  ${(mb / (t / 1000)).toFixed(0).padStart(6)} MB/s`);
-  console.log(`import stages, one thread, ${paths.length} run logs (${mb.toFixed(0)} MB) of ${folder} (load ${load()})`);
+  console.log(`import stages, one thread, CPU time, ${paths.length} run logs (${mb.toFixed(0)} MB) of ${folder} (load ${load()})`);
   row('read (1 MiB chunks, page cache)', ms.read);
   row('SHA-256', ms.hash);
   row('scan (bytes → SI doubles)', ms.scan);
