@@ -1085,7 +1085,11 @@ export class ImportWriter {
         if (stored.sha256 === start.setupSource.sha256) this.report.unchangedFiles.push(SETUP_FILE);
       } else {
         this.report.unchangedFiles.push(SETUP_FILE);
-        this.indexChanged = store.latestSource(sid, INDEX_FILE)?.sha256 !== start.indexSource.sha256;
+        // Unchanged when these bytes are the latest stored copy, or were stored once before under
+        // this name (A → B → A again: the earlier source row serves, as for run logs).
+        this.indexChanged =
+          store.latestSource(sid, INDEX_FILE)?.sha256 !== start.indexSource.sha256 &&
+          store.sourceWithHash(sid, INDEX_FILE, start.indexSource.sha256) === undefined;
         if (!this.indexChanged) this.report.unchangedFiles.push(INDEX_FILE);
         else store.addSource(sid, start.indexSource, 'index', this.at);
         this.posBase = (db.prepare('SELECT COALESCE(MAX(index_pos), -1) + 1 AS p FROM runs WHERE session_id = ?').get(sid) as { p: number }).p;
