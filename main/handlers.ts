@@ -22,6 +22,7 @@ import type { Store, RunRow, ImportProgress, ImportReport } from './store';
 import { folderSource, importSession, importSessionFolder, type SessionSource } from './import';
 import { reduceStoredSessionAsync, sessionSummary } from './reduceService';
 import { runsNeedingReduction } from './repair';
+import { verifyResults } from './verify';
 import { zeroRunsFor } from '../app/samples';
 import { storedDaySheet } from './daysheetData';
 import { listRunsMarked, staleMarks, staleRuns, withStale } from './stale';
@@ -601,7 +602,9 @@ export function createHandlers(ctx: HandlerContext): Handlers {
       return { reduced: results.length, summary };
     },
     'runs.saveResults': async ({ sessionId, results }) => {
-      const checked = checkResults(store, sessionId, results);
+      // Never stored on the page's word: main reduces again and stores its own results when they
+      // agree (main/verify.ts); a result that differs refuses the request, nothing stored.
+      const checked = verifyResults(store, sessionId, checkResults(store, sessionId, results));
       const saved = store.saveResults(sessionId, checked, actor);
       changed('sessions');
       return { saved };

@@ -9,8 +9,9 @@ import { ImportPool } from './importPool';
 
 type ReduceOpts = { runs?: number[]; settings?: Partial<Settings>; actor?: string; onProgress?: (p: ImportProgress) => void };
 
-/** What a reduction needs from the store: the setup, the settings and the runs with zeros applied. */
-function reductionInputs(store: Store, sessionId: number, opts: ReduceOpts): { setup: Setup; settings: Settings; zeroed: ZeroedRun[] } {
+/** What a reduction needs from the store: the setup, the settings and the runs with zeros applied
+ *  (also used by main/verify.ts to re-run a reduction the page sends). */
+export function reductionInputs(store: Store, sessionId: number, opts: ReduceOpts): { setup: Setup; settings: Settings; zeroed: ZeroedRun[] } {
   const setup = store.getSetup(sessionId);
   const stored = store.getSettings(sessionId);
   const settings: Settings = { ...stored, ...(opts.settings ?? {}) };
