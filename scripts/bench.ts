@@ -30,11 +30,16 @@ if (args.has('--vs-numpy')) {
   const { benchVsNumpy } = await import('./bench-vs-numpy');
   process.exit(await benchVsNumpy(argv));
 }
+if (args.has('--verify')) {
+  const { benchVerify } = await import('./bench-verify');
+  process.exit(await benchVerify());
+}
 const quick = args.has('--quick');
 const keep = args.has('--keep');
 if (args.has('--help')) {
   console.log('usage: npm run bench -- [--quick] [--keep] [--digits N]   or   npm run bench -- --vs-numpy [--sizes 30,100,300] [--rounds 3]\n' +
     '  --vs-numpy  Rakeline against the numpy/pandas baseline (../shared/bench/baseline_numpy.py), whole processes, interleaved\n' +
+    '  --verify    what main/verify.ts costs a run (main re-reduces the results the page sends)\n' +
     '  --quick     a small session (smoke run)\n' +
     '  --keep      keep the generated files and databases (path printed)\n' +
     '  --digits N  significant digits of the logged sample values (default 6, like a scanner log; 0 = exact)\n' +
