@@ -581,7 +581,7 @@ export async function main(argv: string[] = process.argv): Promise<number> {
       return 1;
     }
     let msg = e instanceof Error ? e.message : String(e);
-    if (deps && deps.isDiskFull(e) && !(e instanceof deps.StoreFullError)) msg = new deps.StoreFullError(dbPath(program.opts<GlobalOpts>()), msg).message;
+    if (deps && deps.isDiskFull(e, dbPath(program.opts<GlobalOpts>())) && !(e instanceof deps.StoreFullError)) msg = new deps.StoreFullError(dbPath(program.opts<GlobalOpts>()), msg).message;
     note(`rakeline: ${msg}`);
     if (process.env.RAKELINE_DEBUG && e instanceof Error && e.stack) note(e.stack);
     return 1;

@@ -278,7 +278,7 @@ export async function importSession(store: Store, src: SessionSource, opts: Impo
     return report;
   } catch (e) {
     writer.abort();
-    if (isDiskFull(e) && !(e instanceof StoreFullError)) throw new StoreFullError(store.file, e instanceof Error ? e.message : String(e), 'import');
+    if (isDiskFull(e, store.file) && !(e instanceof StoreFullError)) throw new StoreFullError(store.file, e instanceof Error ? e.message : String(e), 'import');
     throw e;
   } finally {
     if (pool) void pool.close();

@@ -40,7 +40,7 @@ function storeResults(store: Store, sessionId: number, results: RunResult[], opt
       store.saveResults(sessionId, results, opts.actor ?? 'reduce');
     } catch (e) {
       // Nothing of the reduction was stored; the next ingest (or start of the app) redoes it.
-      if (isDiskFull(e)) throw new StoreFullError(store.file, e instanceof Error ? e.message : String(e), 'saving the results');
+      if (isDiskFull(e, store.file)) throw new StoreFullError(store.file, e instanceof Error ? e.message : String(e), 'saving the results');
       throw e;
     }
   }

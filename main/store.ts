@@ -17,7 +17,7 @@
 // start of the new file: a log still being written when it was imported), in which case its runs
 // are replaced by the grown log's (audited, replacedRuns) and reduced again; a runs.csv that only
 // grew by appended lines (live acquisition) is accepted and its new runs are imported.
-import { accessSync, constants as fsConstants, copyFileSync, existsSync, mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+import { accessSync, constants as fsConstants, copyFileSync, existsSync, mkdirSync, mkdtempSync, rmSync, statfsSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { basename, dirname, join, resolve } from 'node:path';
 import Database from 'better-sqlite3';
@@ -327,7 +327,7 @@ function storeOpenError(path: string, e: unknown): Error {
   const msg = e instanceof Error ? e.message : String(e);
   if (code === 'SQLITE_NOTADB') return new Error(`${path}: not an SQLite database (${msg})`);
   if (typeof code === 'string' && code.startsWith('SQLITE_READONLY')) return new StoreReadOnlyError(path, `cannot be written (${msg})`);
-  if (isDiskFull(e)) return new StoreFullError(path, msg);
+  if (isDiskFull(e, path)) return new StoreFullError(path, msg);
   if (msg.includes(path)) return e as Error;
   const out = new Error(`${path}: ${msg}`);
   (out as { code?: unknown }).code = code;
@@ -335,11 +335,30 @@ function storeOpenError(path: string, e: unknown): Error {
 }
 
 /** SQLITE_FULL or ENOSPC, however it was wrapped. */
-export function isDiskFull(e: unknown): boolean {
+export function isDiskFull(e: unknown, file?: string): boolean {
   const code = (e as { code?: unknown } | null)?.code;
   if (code === 'SQLITE_FULL' || code === 'ENOSPC') return true;
   const msg = e instanceof Error ? e.message : String(e);
-  return /database or disk is full|ENOSPC|no space left on device/i.test(msg);
+  if (/database or disk is full|ENOSPC|no space left on device/i.test(msg)) return true;
+  // SQLite says only "disk I/O error" when the -shm index or the -wal cannot grow on a full disk
+  // (it keeps no errno): an I/O error with next to no room left where the database lies is that.
+  if (file !== undefined && typeof code === 'string' && code.startsWith('SQLITE_IOERR')) {
+    const free = freeBytes(dirname(file));
+    return free !== null && free < DISK_NEARLY_FULL;
+  }
+  return false;
+}
+
+/** Free space below which an SQLite I/O error is taken as a full disk (a few database pages). */
+const DISK_NEARLY_FULL = 1024 * 1024;
+
+function freeBytes(dir: string): number | null {
+  try {
+    const s = statfsSync(dir);
+    return s.bavail * s.bsize;
+  } catch {
+    return null;
+  }
 }
 
 /** A database newer than this program, or older than a reading command can use. */
@@ -400,10 +419,19 @@ export class Store {
       const why = notWritable(dirname(path));
       if (why) throw new StoreReadOnlyError(path, `its folder ${why}`);
     }
+    // A failed open (a full disk: the -shm index could not be sized) must not leave the -wal and
+    // -shm files it began: the ones that were not there before, while the -wal holds nothing.
+    const sideFiles = [`${path}-wal`, `${path}-shm`].filter((f) => !existsSync(f));
+    const dropSideFiles = () => {
+      const wal = `${path}-wal`;
+      if (existsSync(wal) && (!sideFiles.includes(wal) || statSync(wal).size > 0)) return;
+      for (const f of sideFiles) rmSync(f, { force: true });
+    };
     let db: Database.Database;
     try {
       db = new Database(path);
     } catch (e) {
+      dropSideFiles();
       throw storeOpenError(path, e);
     }
     try {
@@ -414,6 +442,7 @@ export class Store {
       return s;
     } catch (e) {
       db.close();
+      dropSideFiles();
       throw storeOpenError(path, e);
     }
   }
