@@ -102,7 +102,7 @@ export const FLAGS = {
     short: 'leaking tap',
     severity: 'warn',
     reason: (p) =>
-      `Leaking ${plural(p.taps.length, 'tap')} ${p.taps.join(', ')}: the wind-off zero sits more than ${p.leakPa} Pa from the other taps'; dropped and bridged.`,
+      `Leaking ${plural(p.taps.length, 'tap')} ${p.taps.join(', ')}: the wind-off zero sits more than ${p.leakPa} Pa from the other taps' zeros; dropped and bridged.`,
     example: { taps: ['U07'], leakPa: 3 },
   }),
   'bad-tap': entry<{ taps: { id: string; reason: string; predicted?: number; residual?: number; u?: number; score?: number }[] }>({

@@ -3,6 +3,7 @@
 // channel), 2 usage errors (unknown command or option, bad option value, ambiguous session).
 import { existsSync, rmSync, writeFileSync } from 'node:fs';
 import { relative, resolve } from 'node:path';
+import { userInfo } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { Command, CommanderError, InvalidArgumentError, Option } from 'commander';
 import type { Store, RunRow, ImportProgress } from './store';
@@ -32,7 +33,7 @@ export class UsageError extends Error { override name = 'UsageError'; }
 /** Bad input: missing database or session, unreadable folder (exit 1). */
 export class InputError extends Error { override name = 'InputError'; }
 
-interface GlobalOpts { db?: string; session?: string; actor?: string }
+interface GlobalOpts { db?: string; session?: string; actor?: string; reviewer?: string }
 
 // ---------------------------------------------------------------------------------------------
 // Option parsers (throwing InvalidArgumentError makes commander report a usage error).
@@ -121,8 +122,26 @@ export function pickSession(store: Store, g: GlobalOpts): number {
   return all[0].id;
 }
 
+/** The operating-system user's login name, without any prefix ('' when it cannot be told). */
+function osUserName(): string {
+  try {
+    return userInfo().username;
+  } catch {
+    return process.env.USER ?? process.env.USERNAME ?? '';
+  }
+}
+
+/** Who is acting, as a name (recorded with every review, tap override and setting change, and
+ *  printed on the day sheet — what browser mode asks for once per launch): --reviewer, --actor,
+ *  $RAKELINE_REVIEWER, $RAKELINE_ACTOR, else the OS user's name. `given` is false for the last. */
+export function reviewerOf(g: GlobalOpts, env: NodeJS.ProcessEnv = process.env): { name: string; given: boolean } {
+  const given = [g.reviewer, g.actor, env.RAKELINE_REVIEWER, env.RAKELINE_ACTOR].map((x) => x?.trim()).find((x) => x);
+  if (given) return { name: given, given: true };
+  return { name: osUserName() || 'unnamed command-line user', given: false };
+}
+
 function actorOf(g: GlobalOpts): string {
-  return g.actor ?? process.env.RAKELINE_ACTOR ?? `cli:${process.env.USER ?? process.env.USERNAME ?? 'user'}`;
+  return reviewerOf(g).name;
 }
 
 async function withStore<T>(g: GlobalOpts, access: Access, fn: (store: Store) => Promise<T> | T): Promise<T> {
@@ -182,21 +201,31 @@ function progress(): { onProgress?: (p: ImportProgress) => void; stop(): void } 
 const n = (v: number | undefined | null, d: number, w: number) =>
   (v === undefined || v === null || !Number.isFinite(v) ? '-' : v.toFixed(d)).padStart(w);
 
-/** The run list as a fixed-width text table. */
-export function runsTable(rows: RunRow[]): string {
-  const head = `${'run'.padStart(4)} ${'kind'.padEnd(4)} ${'time'.padEnd(8)} ${'a_geo'.padStart(6)} ${'a_cor'.padStart(6)} ${'q_Pa'.padStart(7)} ${'Re_1e6'.padStart(6)} ${'cl_p'.padStart(7)} ${'cl_mom'.padStart(7)} ${'cd_wake'.padStart(8)} ${'cm_c4'.padStart(7)}  flags`;
+/** Short names of the wall-correction methods for the `runs` table's `wall` column (the method a
+ *  run was corrected with, 'auto' resolved; docs/WALL-CORRECTIONS.md). */
+export const METHOD_COLUMN: Record<string, string> = {
+  'wall-signature': 'signature', maskell: 'Maskell', 'barlow-rae-pope': 'BRP', 'allen-vincenti': 'A&V', none: 'none',
+};
+
+/** The run list as a fixed-width text table; `methods` (run → applied wall-correction method)
+ *  fills the `wall` column ('-' where a run has no result). */
+export function runsTable(rows: RunRow[], methods: ReadonlyMap<number, string> = new Map()): string {
+  const head = `${'run'.padStart(4)} ${'kind'.padEnd(4)} ${'time'.padEnd(8)} ${'a_geo'.padStart(6)} ${'a_cor'.padStart(6)} ${'q_Pa'.padStart(7)} ${'Re_1e6'.padStart(6)} ${'cl_p'.padStart(7)} ${'cl_mom'.padStart(7)} ${'cd_wake'.padStart(8)} ${'cm_c4'.padStart(7)} ${'wall'.padEnd(9)}  flags`;
   const lines = rows.map((r) => {
     const x = r.result;
     const t = (/T(\d{2}:\d{2}:\d{2})/.exec(r.time)?.[1] ?? r.time).padEnd(8);
     const status = r.kind === 'zero' ? 'wind-off zero' : x ? flagsLine(x.flags, 'short') : 'not reduced';
     const review = `${r.review ? ` [${r.review.verdict} by ${r.review.actor}]` : ''}${r.stale ? ' [stale]' : ''}`;
-    return `${String(r.run).padStart(4)} ${r.kind.padEnd(4)} ${t} ${n(r.alphaDeg, 2, 6)} ${n(x?.alphaCorrDeg, 2, 6)} ${n(x?.q, 1, 7)} ${n(x ? x.Re / 1e6 : undefined, 3, 6)} ${n(x?.cl, 4, 7)} ${n(x?.clMom, 4, 7)} ${n(x?.cd, 5, 8)} ${n(x?.cmc4, 4, 7)}  ${status}${review}`;
+    const m = x ? methods.get(r.run) : undefined;
+    const wall = (m ? METHOD_COLUMN[m] ?? m : '-').padEnd(9);
+    return `${String(r.run).padStart(4)} ${r.kind.padEnd(4)} ${t} ${n(r.alphaDeg, 2, 6)} ${n(x?.alphaCorrDeg, 2, 6)} ${n(x?.q, 1, 7)} ${n(x ? x.Re / 1e6 : undefined, 3, 6)} ${n(x?.cl, 4, 7)} ${n(x?.clMom, 4, 7)} ${n(x?.cd, 5, 8)} ${n(x?.cmc4, 4, 7)} ${wall}  ${status}${review}`;
   });
+  const key = 'wall: the wall-correction method of each run (signature = wall-pressure signature, Maskell, BRP = Barlow, Rae & Pope, A&V = Allen & Vincenti, none = uncorrected); a_cor, q, Re, cl, cd and cm are on that corrected basis';
   const stale = staleRunNumbers(rows);
   const note = stale.length
     ? [`${stale.length} stale result(s), reduced with other settings, bad taps or zeros than the session's now: runs ${stale.join(", ")} (\`reduce --stale\` re-reduces them)`]
     : [];
-  return [head, ...lines, ...note].join('\n');
+  return [head, ...lines, ...note, ...(rows.some((r) => r.result) ? [key] : [])].join('\n');
 }
 
 /** One line for a reduced run (used by `reduce` and `follow`). */
@@ -339,7 +368,8 @@ export function buildProgram(): Command {
     .configureHelp({ subcommandTerm: (cmd) => `${cmd.name()} ${cmd.usage()}`.trim() })
     .option('--db <file>', `SQLite database file (default: ./${DEFAULT_DB} in the current directory, or $RAKELINE_DB)`)
     .option('--session <id>', 'session id, needed when the database holds several sessions')
-    .option('--actor <name>', 'name recorded in the audit trail (default: cli:$USER, or $RAKELINE_ACTOR)')
+    .option('--reviewer <name>', 'your name, recorded with every review, tap override and setting change and printed on the day sheet (default: $RAKELINE_REVIEWER, else the OS user name)')
+    .option('--actor <name>', 'the same as --reviewer (kept for scripts; default $RAKELINE_ACTOR)')
     .addHelpText('after', `
 Exit codes: 0 ok, 1 bad input (the message names file, line and channel), 2 usage error.
 Examples:
@@ -347,6 +377,7 @@ Examples:
   rakeline runs --format csv > runs.csv
   rakeline reduce --runs 3,5-9 --set liftTolAbs=0.03 --set mcDraws=200
   rakeline tap C17 --bad --note "tube pinched"
+  rakeline --reviewer "T. Lindqvist" review 31 --reject --note "stall cell on the tufts"
   rakeline sheet --out day.html --paper Letter
   rakeline follow ./live-session`);
 
@@ -413,7 +444,7 @@ Examples:
 
   program
     .command('reduce')
-    .description('reduce all data runs of the session, or the listed ones, and store the results (history kept)')
+    .description('reduce all data runs of the session, the listed ones or the stale ones, and store the results (history kept)')
     .option('--runs <list>', 'runs to reduce, e.g. 3,5-9', parseRunList)
     .option('--set <key=value>', 'reduction setting for this reduction, repeatable (e.g. liftTolAbs=0.03, mcDraws=200, badTaps=C3,C4)', parseSetting)
     .option('--save', 'keep the --set values as the session settings (audited)')
@@ -488,14 +519,16 @@ Examples:
       await withStore(g(), 'write', (store) => {
         const sid = pickSession(store, g());
         if (!store.listRuns(sid).some((r) => r.run === run)) throw new InputError(`session ${sid} has no run ${run}`);
-        store.setReview(sid, run, o.accept ? 'accepted' : o.reject ? 'rejected' : null, o.note, actorOf(g()));
-        out(`session ${sid}: run ${run} ${o.accept ? 'accepted' : o.reject ? 'rejected' : 'decision cleared'}`);
+        const who = reviewerOf(g());
+        store.setReview(sid, run, o.accept ? 'accepted' : o.reject ? 'rejected' : null, o.note, who.name);
+        out(`session ${sid}: run ${run} ${o.accept ? 'accepted' : o.reject ? 'rejected' : 'decision cleared'} by ${who.name}`);
+        if (!who.given) note(`note: recorded as reviewer "${who.name}" (the OS user name); give --reviewer "Your Name" to record your name`);
       });
     });
 
   program
     .command('runs')
-    .description('list the runs with their latest coefficients and flags')
+    .description('list the runs with their latest coefficients, wall-correction method, flags, verdicts and stale marks')
     .addOption(new Option('--format <format>', 'output format').choices(['table', 'csv', 'json']).default('table'))
     .option('--flagged', 'only runs with flags')
     .option('--stale', 'only runs whose result is stale')
@@ -507,7 +540,7 @@ Examples:
         if (o.stale) rows = rows.filter((r) => r.stale);
         if (o.format === 'json') return out(JSON.stringify(rows, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2));
         if (o.format === 'csv') return void process.stdout.write(D().exportResultsCsv(rows, store.getSetup(sid), store.latestResults(sid)));
-        out(runsTable(rows));
+        out(runsTable(rows, new Map(store.latestDigests(sid).map((d) => [d.run, d.correction.method]))));
       });
     });
 
@@ -544,6 +577,9 @@ Examples:
         const sid = pickSession(store, g());
         const html = D().storedDaySheet(store, sid, { paper: o.paper, appVersion: pkg.version, ...(o.cpRuns ? { cpRuns: o.cpRuns } : {}) });
         writeOut(html, o.out, 'day sheet');
+        const data = new Set(dataRunsOf(store, sid));
+        const missing = (o.cpRuns ?? []).filter((r) => !data.has(r));
+        if (missing.length) note(`note: --cp-runs: session ${sid} has no data run ${D().runRanges(missing)}; the sheet names ${missing.length > 1 ? 'them' : 'it'} as not plotted`);
       });
     });
 

@@ -11,6 +11,7 @@ import type { Flag, Interval, PolarPoint, RunResult, SessionSummary, Settings, S
 import { CORE_VERSION, DEFAULT_SETTINGS } from '../app/types';
 import { badTapWords, flagLabel, flagShort, severityWord, SEVERITY } from '../app/flags';
 import { sweepDirections } from '../app/sweeps';
+import type { StaleMark } from '../app/stale';
 import { escapeHtml, OKABE_ITO, offScalePoints, svgPlot, type PlotPoint, type PlotSeries, type PlotSpec } from './svgplot';
 
 /** A finding about the whole session rather than one run (a tap faulty all day, say). The
@@ -31,6 +32,9 @@ export interface TapNote {
   comment: string;
   actor: string;
   at: string;
+  /** An automatic drop the engineer settled (docs/TAP-JUDGEMENT.md §5): 'confirm' (then `bad`),
+   *  'keep' or 'release' in `run`, with the drop's reason as the reduction gave it. */
+  settled?: { decision: 'confirm' | 'keep' | 'release'; run: number; reason: string | null; residual: number | null; u: number | null };
 }
 
 export interface DaySheetArgs {
@@ -145,6 +149,7 @@ const SETTING_WORDS: { key: keyof Settings; words: string; show: (s: Settings) =
   { key: 'mcDraws', words: 'Uncertainty', show: (s) => (s.mcDraws ? `Monte Carlo, ${s.mcDraws} draws, seed ${s.mcSeed}` : 'not computed') },
   { key: 'mcSeed', words: 'Monte Carlo seed', show: (s) => String(s.mcSeed) },
   { key: 'badTaps', words: 'Taps marked bad', show: (s) => (s.badTaps.length ? [...s.badTaps].sort().join(', ') : 'none') },
+  { key: 'keptTaps', words: 'Taps kept against the automatic test (tap@run)', show: (s) => ((s.keptTaps ?? []).length ? [...s.keptTaps].sort().join(', ') : 'none') },
   { key: 'maskellTheta', words: 'Maskell blockage factor θ', show: (s) => String(s.maskellTheta) },
   { key: 'wallFitResidualCp', words: 'Wall-signature fit used up to', show: (s) => `rms residual ${s.wallFitResidualCp} in Cp` },
   { key: 'stallTeCp', words: 'Past stall (automatic choice) when', show: (s) => `rearmost upper tap Cp ≤ ${s.stallTeCp}` },
@@ -152,21 +157,53 @@ const SETTING_WORDS: { key: keyof Settings; words: string; show: (s: Settings) =
   { key: 'correctionTolAlphaDeg', words: 'Correction methods disagree above', show: (s) => `Δα = ${s.correctionTolAlphaDeg}°` },
 ];
 
-/**
- * The settings in which a stored result's reduction differs from the session's current ones, in
- * words ("Lift cross-check, absolute: 0.03 in cl (now 0.02 in cl)"). Empty: reduced with the
- * current settings. This is the sheet's own rule for results reduced with other settings until
- * the stale-result rule of issue 13 lands (then that rule should replace this one).
- */
-export function settingsDifferences(used: Partial<Settings> | undefined, current: Settings): string[] {
+/** The settings in which a stored result's reduction differs from the current ones, by key, in
+ *  words ("Lift cross-check, absolute: 0.03 in cl (now 0.02 in cl)"). `run`: keep decisions
+ *  (keptTaps, tap@run) of other runs do not count. */
+function settingsDiffs(used: Partial<Settings> | undefined, current: Settings, run?: number): { key: keyof Settings; text: string }[] {
   const u = { ...DEFAULT_SETTINGS, ...(used ?? {}) } as Settings;
+  // Keep decisions (tap@run) of other runs do not concern this run's result.
+  const kept = (list: readonly string[] | undefined) => [...(list ?? [])]
+    .filter((e) => run === undefined || e.endsWith(`@${run}`)).sort().join();
   const same = (k: keyof Settings) => (k === 'badTaps'
     ? [...u.badTaps].sort().join() === [...current.badTaps].sort().join()
-    : JSON.stringify(u[k]) === JSON.stringify(current[k]));
+    : k === 'keptTaps' ? kept(u.keptTaps) === kept(current.keptTaps)
+      : JSON.stringify(u[k]) === JSON.stringify(current[k]));
   return settingWords(current)
     .filter((w) => !(w.key === 'mcSeed' && u.mcDraws === 0 && current.mcDraws === 0))
     .filter((w) => !same(w.key))
-    .map((w) => `${w.words}: ${w.show(u)} (now ${w.show(current)})`);
+    .map((w) => ({ key: w.key, text: `${w.words}: ${w.show(u)} (now ${w.show(current)})` }));
+}
+
+/**
+ * The settings in which a stored result's reduction differs from the session's current ones, in
+ * words ("Lift cross-check, absolute: 0.03 in cl (now 0.02 in cl)"). Empty: reduced with the
+ * current settings.
+ */
+export function settingsDifferences(used: Partial<Settings> | undefined, current: Settings, run?: number): string[] {
+  return settingsDiffs(used, current, run).map((d) => d.text);
+}
+
+/** Why one stored result is stale, by cause (app/stale.ts's mark where the row carries one, and
+ *  the settings printed on this sheet): `short` for the run table's status cell, `long` in words
+ *  for the settings section. Both empty when the result is current. */
+export function staleCauses(mark: StaleMark | null | undefined, used: Partial<Settings> | undefined, current: Settings, run?: number):
+{ short: string[]; long: string[] } {
+  const diffs = used ? settingsDiffs(used, current, run) : [];
+  const tapKey = (k: keyof Settings) => k === 'badTaps' || k === 'keptTaps';
+  const settingDiffs = diffs.filter((d) => !tapKey(d.key)).map((d) => d.text);
+  // The mark's own words for settings this sheet did not compare (no full result at hand).
+  const markSettings = (mark?.settings ?? []).filter((k) => !diffs.some((d) => d.key === k));
+  const settingsLong = [...settingDiffs, ...(mark?.reasons ?? []).filter((r) => markSettings.some((k) => r.startsWith(`${k} was `)))];
+  const tapLong = mark
+    ? mark.reasons.filter((r) => /^taps? .* (marked bad since|no longer marked bad|kept in this run against the automatic test since|no longer kept in this run)$/.test(r))
+    : diffs.filter((d) => tapKey(d.key)).map((d) => d.text);
+  const zeroLong = mark?.zeros.length ? mark.reasons.filter((r) => /^wind-off zero runs? /.test(r)) : [];
+  const short: string[] = [];
+  if (settingsLong.length) short.push('other settings');
+  if (tapLong.length) short.push('bad taps changed since');
+  if (zeroLong.length) short.push(`wind-off zero${mark!.zeros.length > 1 ? 's' : ''} ${runRanges(mark!.zeros)} stored since`);
+  return { short, long: [...settingsLong, ...tapLong, ...zeroLong] };
 }
 
 /** The words of every setting: those above, then any other key of the settings by its name (a
@@ -178,20 +215,31 @@ function settingWords(current: Settings): typeof SETTING_WORDS {
   return [...SETTING_WORDS, ...more];
 }
 
+/** Run → why its result is stale (only the stale runs), in run order: the rows' marks
+ *  (app/stale.ts: settings, bad taps, zeros) and the settings printed on this sheet. */
+function staleByRun(args: DaySheetArgs, settings: Settings): Map<number, { short: string[]; long: string[] }> {
+  const used = new Map((args.results ?? []).map((r) => [r.run, r.settings]));
+  const out = new Map<number, { short: string[]; long: string[] }>();
+  for (const row of args.runs) {
+    if (row.kind !== 'data' || !row.result) continue;
+    const c = staleCauses(row.stale, used.get(row.run), settings, row.run);
+    if (c.short.length) out.set(row.run, c);
+  }
+  return out;
+}
+
 function settingsSection(args: DaySheetArgs, settings: Settings): string {
   const rows = settingWords(settings).filter((w) => w.key !== 'mcSeed')
     .map((w) => `<tr><th scope="row">${escapeHtml(w.words)}</th><td>${escapeHtml(w.show(settings))}</td></tr>`).join('');
   const groups = new Map<string, number[]>();
-  for (const r of args.results ?? []) {
-    const d = settingsDifferences(r.settings, settings);
-    if (!d.length) continue;
-    const k = d.join('; ');
-    groups.set(k, [...(groups.get(k) ?? []), r.run]);
+  for (const [run, c] of staleByRun(args, settings)) {
+    const k = c.long.join('; ');
+    groups.set(k, [...(groups.get(k) ?? []), run]);
   }
   const other = groups.size
-    ? `<p class="stale"><b>Reduced with other settings</b> than those in force (their numbers on this sheet are as stored; reduce them again to bring them in line):</p><ul class="stale">${[...groups]
+    ? `<p class="stale"><b>Stale results</b>, reduced with other settings, bad taps or wind-off zeros than the session holds now (their numbers on this sheet are as stored; re-reduce the stale runs to bring them in line):</p><ul class="stale">${[...groups]
       .map(([d, runs]) => `<li><b>${escapeHtml(runsWord(runs))}:</b> ${escapeHtml(d)}</li>`).join('')}</ul>`
-    : '<p class="sub">Every stored result was reduced with the settings in force.</p>';
+    : '<p class="sub">Every stored result was reduced with the settings, bad taps and wind-off zeros in force.</p>';
   return `<table class="settings"><tbody>${rows}</tbody></table>${other}`;
 }
 
@@ -232,6 +280,8 @@ h3 { font-size: 9pt; margin: 2mm 0 1mm; break-after: avoid; }
 .caution strong { text-transform: uppercase; letter-spacing: 0.03em; }
 .plots { display: flex; flex-wrap: wrap; justify-content: space-between; row-gap: 2mm; }
 .plots figure { margin: 0; break-inside: avoid; page-break-inside: avoid; }
+.plot-row { break-inside: avoid; page-break-inside: avoid; margin-bottom: 2mm; }
+tbody.tail { break-inside: avoid; page-break-inside: avoid; }
 .plots figcaption { font-size: 8pt; max-width: 91mm; }
 table { border-collapse: collapse; width: 100%; }
 thead { display: table-header-group; } tfoot { display: table-footer-group; }
@@ -287,14 +337,14 @@ function rowSeverity(row: RunRow): 'reject' | 'warn' | null {
 
 /** Words of one run's status cell: flags (severity and words), the reviewer's verdict beside
  *  them, and a note when the run was reduced with other settings. */
-function statusCell(row: RunRow, stale: boolean): string {
+function statusCell(row: RunRow, stale: string[] | undefined): string {
   const parts: string[] = [];
   if (row.kind === 'zero') parts.push('wind-off zero');
   else if (!row.result) parts.push('not reduced');
   else if (!row.result.flags.length) parts.push('no flags');
   for (const f of row.result?.flags ?? []) parts.push(`<b>${severityWord(f.severity)}:</b> ${escapeHtml(flagShort(f.code))}`);
   if (row.review) parts.push(`<b>${escapeHtml(row.review.verdict)}</b> by ${escapeHtml(personName(row.review.actor))}`);
-  if (stale) parts.push('other settings');
+  if (stale?.length) parts.push(`<b>stale:</b> ${escapeHtml(stale.join(', '))}`);
   return parts.join('; ');
 }
 
@@ -304,7 +354,32 @@ function halfWidth(iv: Interval | undefined, d: number): string {
   return `<span class="u">±${fmt((iv.hi - iv.lo) / 2, d)}</span>`;
 }
 
-function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Set<number>): string {
+/** Height of a page's body (paper less the @page margins, 15 mm + 13 mm), pt. */
+export const PAGE_BODY_PT: Record<DaySheetArgs['paper'], number> = { A4: (297 - 28) / 25.4 * 72, Letter: (279.4 - 28) / 25.4 * 72 };
+/** The least share of a page the last page of the sheet holds (the run table's kept tail). */
+export const TAIL_FRACTION = 0.4;
+
+/** Estimated printed height of one run-table row, pt (common practice, no source: 7 pt values
+ *  at line height 1.3, one more 6 pt line for the interval half-widths; the status column is
+ *  19.1 % of the table, about 27 characters of 6.6 pt text a line; 0.8 mm of padding). */
+export function rowHeightPt(statusHtml: string, withIntervals: boolean): number {
+  const text = statusHtml.replace(/<[^>]*>/g, '').replace(/&[a-z#0-9]+;/g, 'x');
+  const statusLines = Math.max(1, Math.ceil(text.length / 27));
+  const values = 7 * 1.3 + (withIntervals ? 6 * 1.3 : 0);
+  return Math.max(values, statusLines * 6.6 * 1.3) + 0.8 / 25.4 * 72 + 0.6;
+}
+
+/** How many rows from the end make up at least `minPt` (all of them when the table is shorter). */
+export function tailRows(heights: readonly number[], minPt: number): number {
+  let sum = 0;
+  for (let k = heights.length - 1; k >= 0; k--) {
+    sum += heights[k];
+    if (sum >= minPt) return heights.length - k;
+  }
+  return heights.length;
+}
+
+function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Map<number, { short: string[] }>): string {
   const byRun = new Map((args.results ?? []).map((r) => [r.run, r]));
   const widths = [4.6, 6.6, 4.6, 4.6, 4.8, 4.4, 4.4, 6.8, 6.8, 7.4, 6.8, 6.6, 5.8, 5.8, 19.1];
   const cols = `<colgroup>${widths.map((w) => `<col style="width:${w}%">`).join('')}</colgroup>`;
@@ -312,6 +387,7 @@ function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Set
 <th>Run</th><th>Time</th><th>α geom °</th><th>α corr °</th><th>q Pa</th><th>V m/s</th><th>Re ×10⁶</th>
 <th>cl pres&shy;sure</th><th>cl mo&shy;men&shy;tum</th><th>cd wake</th><th>cd pres&shy;sure</th><th>cm c/4</th>
 <th>Γ pres&shy;sure m²/s</th><th>Γ mo&shy;men&shy;tum m²/s</th><th>Status, flags and verdict</th></tr></thead>`;
+  const heights: number[] = [];
   const body = args.runs.map((row) => {
     const r = row.result;
     const sev = rowSeverity(row);
@@ -326,11 +402,20 @@ function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Set
           fmt(r.gammaPressure, 3) + halfWidth(u?.gammaPressure, 3), fmt(r.gammaMomentum, 3) + halfWidth(u?.gammaMomentum, 3),
         ]
       : [fmt(row.alphaDeg, 2), '–', '–', '–', '–', '–', '–', '–', '–', '–', '–', '–'];
+    const status = `${statusCell(row, stale.get(row.run)?.short)}${methodNote(byRun.get(row.run))}`;
+    heights.push(rowHeightPt(status, cells.some((c) => c.includes('class="u"'))));
     return `<tr${cls ? ` class="${cls}"` : ''} data-run="${row.run}"><td class="n">${mark}${row.run}</td><td class="n">${escapeHtml(localTime(row.time, tz, true))}</td>${cells
       .map((c) => `<td class="n">${c}</td>`)
-      .join('')}<td class="status">${statusCell(row, stale.has(row.run))}${methodNote(byRun.get(row.run))}</td></tr>`;
+      .join('')}<td class="status">${status}</td></tr>`;
   });
-  return `<table class="runs">${head}<tbody>${body.join('\n')}</tbody></table>
+  // Balanced pagination: the table ends the sheet, so its last rows are kept together in a
+  // tbody that does not break (Chromium honours break-inside on table sections): the last page
+  // then holds at least TAIL_FRACTION of a page of rows instead of a line or two.
+  const n = tailRows(heights, PAGE_BODY_PT[args.paper] * TAIL_FRACTION);
+  const tbody = n < body.length
+    ? `<tbody>${body.slice(0, body.length - n).join('\n')}</tbody><tbody class="tail">${body.slice(body.length - n).join('\n')}</tbody>`
+    : `<tbody class="tail">${body.join('\n')}</tbody>`;
+  return `<table class="runs">${head}${tbody}</table>
 <p class="sub">${SEVERITY.reject.glyph} and a solid left bar: at least one ${SEVERITY.reject.word} flag (${SEVERITY.reject.meaning.toLowerCase()}); ${SEVERITY.warn.glyph} and a dashed bar: ${SEVERITY.warn.word} flags only (${SEVERITY.warn.meaning.toLowerCase()}). Times are local (${escapeHtml(zoneOffset(new Date(args.generatedAt), tz))}).
 α corr, q, V, Re, cl, cd and cm are wall-corrected (${escapeHtml(CORRECTION_WORDS[settings.correction] ?? settings.correction)}); the status column names each run's method.
 cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl with V and cl corrected.${args.results?.length ? ' Small figures under a value: half the width of its 95 % Monte Carlo coverage interval (JCGM 101:2008), same basis as the value.' : ''}</p>`;
@@ -430,14 +515,16 @@ function polars(args: DaySheetArgs): string {
   const fig = (spec: PlotSpec, caption = '') => `<figure>${svgPlot(spec)}${caption ? `<figcaption>${caption}</figcaption>` : ''}</figure>`;
   const plotted = new Set(p.map((q) => q.run));
   const notPlotted = args.runs.filter((r) => r.review?.verdict === 'rejected' && !plotted.has(r.run)).map((r) => r.run);
-  return `<div class="plots">
-${fig(lift)}
-${fig(drag, offNote(drag, (q) => `cd ${span(q.map((o) => o.x), 4)}`))}
-${fig(cm)}
-${fig(cdA, offNote(cdA, (q) => `cd ${span(q.map((o) => o.y), 4)}`))}
-</div>
-<p class="sub">Corrected values. Filled markers and solid lines: up-sweep (α rising); open markers and dashed lines: down-sweep (α falling).
+  const legend = `<p class="sub">Corrected values. Filled markers and solid lines: up-sweep (α rising); open markers and dashed lines: down-sweep (α falling).
 Bars: 95 % coverage intervals. Lines join the runs of each sweep in time order and break at runs with a ${severityWord('reject')} flag.${notPlotted.length ? ` Not plotted (rejected by the reviewer): ${runsWord(notPlotted)}.` : ''}</p>`;
+  // The heading stays with the first row of plots, the legend with the last (no heading or
+  // legend alone at a page's foot or head).
+  return `<div class="keep"><h2>Polars</h2>
+<div class="plots plot-row">${fig(lift)}
+${fig(drag, offNote(drag, (q) => `cd ${span(q.map((o) => o.x), 4)}`))}</div></div>
+<div class="keep"><div class="plots plot-row">${fig(cm)}
+${fig(cdA, offNote(cdA, (q) => `cd ${span(q.map((o) => o.y), 4)}`))}</div>
+${legend}</div>`;
 }
 
 /** Cp(x/c) of one run's main tap row, for the Cp pages. */
@@ -465,7 +552,7 @@ export function cpPlotSpec(r: RunResult, title: string, opts: Partial<PlotSpec> 
 
 /** Runs that get a Cp plot: every run with a hold flag, a flag of its own (not one raised
  *  identically on several runs) or a reviewer's rejection, and the runs the engineer picked. */
-export function cpPlotRuns(args: DaySheetArgs, common: Set<string>): { runs: number[]; left: number[] } {
+export function cpPlotRuns(args: DaySheetArgs, common: Set<string>): { runs: number[]; left: number[]; missing: number[] } {
   const picked = new Set(args.cpRuns ?? []);
   const want = args.runs.filter((row) => row.kind === 'data' && row.result && (
     picked.has(row.run)
@@ -475,12 +562,16 @@ export function cpPlotRuns(args: DaySheetArgs, common: Set<string>): { runs: num
   const have = new Set((args.results ?? []).filter((r) => Array.isArray(r.taps) && r.taps.length).map((r) => r.run));
   const runs = want.filter((r) => have.has(r));
   const MAX = 24;
-  return { runs: runs.slice(0, MAX), left: runs.slice(MAX) };
+  // Runs picked that get no plot: not in the session, a wind-off zero, or not reduced.
+  const plottable = new Set(args.runs.filter((row) => row.kind === 'data' && row.result).map((r) => r.run));
+  const missing = [...picked].filter((r) => !plottable.has(r) || !have.has(r)).sort((a, b) => a - b);
+  return { runs: runs.slice(0, MAX), left: runs.slice(MAX), missing };
 }
 
 function cpPages(args: DaySheetArgs, common: Set<string>): string {
-  const { runs, left } = cpPlotRuns(args, common);
-  if (!runs.length) return '<p>No flagged run and no run picked: no Cp plots.</p>';
+  const { runs, left, missing } = cpPlotRuns(args, common);
+  const notPlotted = missing.length ? ` Picked but not plotted (no such data run, or not reduced): ${escapeHtml(runsWord(missing))}.` : '';
+  if (!runs.length) return `<h2>Cp distributions</h2>\n<p>No flagged run and no run picked: no Cp plots.${notPlotted}</p>`;
   const byRun = new Map((args.results ?? []).map((r) => [r.run, r]));
   const rows = new Map(args.runs.map((r) => [r.run, r]));
   const figs = runs.map((run) => {
@@ -492,8 +583,11 @@ function cpPages(args: DaySheetArgs, common: Set<string>): string {
     const spec = cpPlotSpec(r, title, { width: PLOT_W, height: CP_H, unit: 'pt' });
     return `<figure>${svgPlot(spec)}<figcaption>${escapeHtml(words.length ? words.join('; ') : 'picked by the engineer, no flags')}</figcaption></figure>`;
   });
-  return `<p class="sub keep-next">Main tap row, measured Cp (not wall-corrected) against the inviscid panel solution at the corrected α. Runs: the flagged and rejected runs${args.cpRuns?.length ? ' and those picked by the engineer' : ''}.${left.length ? ` Left out for room: ${escapeHtml(runsWord(left))}.` : ''}</p>
-<div class="plots">${figs.join('\n')}</div>`;
+  const intro = `<p class="sub">Main tap row, measured Cp (not wall-corrected) against the inviscid panel solution at the corrected α. Runs: the flagged and rejected runs${args.cpRuns?.length ? ' and those picked by the engineer' : ''}.${left.length ? ` Left out for room: ${escapeHtml(runsWord(left))}.` : ''}${notPlotted}</p>`;
+  const plotRows: string[] = [];
+  for (let k = 0; k < figs.length; k += 2) plotRows.push(`<div class="plots plot-row">${figs.slice(k, k + 2).join('\n')}</div>`);
+  // The heading and its note stay with the first row of plots.
+  return `<div class="keep"><h2>Cp distributions</h2>\n${intro}\n${plotRows[0]}</div>\n${plotRows.slice(1).join('\n')}`;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -589,21 +683,41 @@ function flaggedList(args: DaySheetArgs, tz: string): string {
   return parts.join('\n');
 }
 
+/** An automatic drop in words: "outlier: residual +0.210, k·u 0.048" or "leak at wind-off". */
+function droppedWords(s: NonNullable<TapNote['settled']>): string {
+  const what = s.reason ? badTapWords(s.reason) : 'dropped';
+  return s.residual !== null && s.u !== null && Number.isFinite(s.residual) && Number.isFinite(s.u)
+    ? `${what}: residual ${s.residual >= 0 ? '+' : '−'}${Math.abs(s.residual).toFixed(3)} Cp, u ${s.u.toFixed(3)} Cp`
+    : what;
+}
+
 /** Every bad tap: those the engineer marked (with the reason given and who gave it), and those
  *  the reduction dropped by itself (with its reason and the runs). */
 function badTaps(args: DaySheetArgs, settings: Settings, tz: string): string {
   const latest = new Map<string, TapNote>();
-  for (const n of args.tapNotes ?? []) latest.set(n.tapId, n);
+  // Keep decisions (tap@run) are per run; the latest of each tap and run counts.
+  const keeps = new Map<string, TapNote>();
+  for (const n of args.tapNotes ?? []) {
+    if (n.settled && n.settled.decision !== 'confirm') keeps.set(`${n.tapId}@${n.settled.run}`, n);
+    else latest.set(n.tapId, n);
+  }
   const marked = [...settings.badTaps].sort();
   const items = marked.map((id) => {
     const n = latest.get(id);
     const why = n?.bad ? (n.comment ? escapeHtml(n.comment) : 'no reason given') : 'in the session settings (no note)';
     const who = n?.bad ? ` — ${escapeHtml(personName(n.actor))}, ${escapeHtml(localTime(n.at, tz))}` : '';
-    return `<li><b>${escapeHtml(id)}</b>, marked bad by the engineer: ${why}${who}</li>`;
+    const s = n?.bad ? n.settled : undefined;
+    const confirmed = s ? `, confirming the reduction's automatic drop in run ${s.run} (${escapeHtml(droppedWords(s))})` : '';
+    return `<li><b>${escapeHtml(id)}</b>, marked bad by the engineer${confirmed}: ${why}${who}</li>`;
   });
   const restored = [...latest.values()].filter((n) => !n.bad && !settings.badTaps.includes(n.tapId));
   for (const n of restored) {
     items.push(`<li><b>${escapeHtml(n.tapId)}</b>, restored to good: ${n.comment ? escapeHtml(n.comment) : 'no reason given'} — ${escapeHtml(personName(n.actor))}, ${escapeHtml(localTime(n.at, tz))}</li>`);
+  }
+  const keptNow = new Set(settings.keptTaps ?? []);
+  for (const [key, n] of [...keeps].sort((a, b) => a[0].localeCompare(b[0]))) {
+    if (!keptNow.has(key) || !n.settled) continue;
+    items.push(`<li><b>${escapeHtml(n.tapId)}</b>, kept in run ${n.settled.run} by the engineer against the reduction's automatic drop (${escapeHtml(droppedWords(n.settled))}): ${n.comment ? escapeHtml(n.comment) : 'no reason given'} — ${escapeHtml(personName(n.actor))}, ${escapeHtml(localTime(n.at, tz))}</li>`);
   }
   const auto = new Map<string, { reason: string; runs: number[] }>();
   for (const r of args.results ?? []) {
@@ -634,12 +748,7 @@ export function daySheetHtml(args: DaySheetArgs): string {
   const settings: Settings = args.settings ?? { ...DEFAULT_SETTINGS, ...setup.settings };
   const flaggedCount = dataRuns.filter((r) => r.result?.flags.length).length;
   const rejectedCount = dataRuns.filter((r) => r.review?.verdict === 'rejected').length;
-  // Stale runs: the rows' marks (app/stale.ts: settings, bad taps, zeros), and any result whose
-  // settings differ from those printed here.
-  const stale = new Set([
-    ...(args.results ?? []).filter((r) => settingsDifferences(r.settings, settings).length).map((r) => r.run),
-    ...args.runs.filter((r) => r.stale).map((r) => r.run),
-  ]);
+  const stale = staleByRun(args, settings);
   const common = new Set(commonFlags(args.runs).map((g) => flagKey(g.flag)));
   const fact = (k: string, v: string) => `<div><dt>${escapeHtml(k)}</dt><dd>${escapeHtml(v)}</dd></div>`;
   const facts = [
@@ -685,7 +794,7 @@ ${notes}
 engineer has to review it before it is used for any design work or decision. The facility's safety rules
 and the local test practice take precedence over anything printed here.</p>
 </section>
-<section><h2>Polars</h2>
+<section>
 ${polars(args)}
 </section>
 <section class="keep"><h2>Session statistics</h2>
@@ -709,7 +818,7 @@ ${badTaps(args, settings, tz)}
 <section><h2>Settings in force</h2>
 ${settingsSection(args, settings)}
 </section>
-<section><h2>Cp distributions</h2>
+<section>
 ${cpPages(args, common)}
 </section>
 <section><h2>Runs</h2>

@@ -365,7 +365,7 @@ const SPAN_MARKERS: PointStyle[] = ['circle', 'triangle', 'rect', 'rectRot', 'st
 
 /** Span loading: section cl of each row against its spanwise station. */
 export function spanConfig(span: { run: number; alphaDeg: number; z: number[]; cl: number[] }[]): PlotConfig {
-  const options = base('spanwise station z [m] (from centreline)', 'section cl');
+  const options = base('spanwise station z [m] (from centreline)', 'section cl, uncorrected');
   polarTooltip(options, 'z', 'cl', 3, 4);
   return {
     data: {

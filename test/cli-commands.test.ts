@@ -2,10 +2,11 @@
 // exit codes 0 / 1 / 2, --help everywhere, the machine-readable outputs, the files it writes.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { cpSync, existsSync, mkdtempSync, readFileSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { tmpdir, userInfo } from 'node:os';
 import { join, relative } from 'node:path';
 import { parse } from 'csv-parse/sync';
 import { makeTinySession, runCli, TINY, TINY_RUNS } from './helpers/cliSession';
+import { METHOD_COLUMN } from '../main/cli';
 
 let dir: string;
 let folder: string;
@@ -110,8 +111,19 @@ describe('a session from import to sheet', () => {
 
     const table = await cli('runs');
     expect(table.code).toBe(0);
-    expect(table.stdout.split('\n')[0]).toMatch(/run\s+kind\s+time.*cl_p\s+cl_mom\s+cd_wake\s+cm_c4\s+flags/);
+    expect(table.stdout.split('\n')[0]).toMatch(/run\s+kind\s+time.*cl_p\s+cl_mom\s+cd_wake\s+cm_c4\s+wall\s+flags/);
     expect(table.stdout).toContain('wind-off zero');
+    // the wall column: each run's applied method, as the full result in the CSV export names it
+    const exported = parse((await cli('export', '--format', 'csv')).stdout, { columns: true }) as Record<string, string>[];
+    const lines = table.stdout.split('\n');
+    const wallAt = lines[0].indexOf('wall');
+    for (const e of exported) {
+      const line = lines.find((l) => l.startsWith(String(e.run).padStart(4)))!;
+      const cell = line.slice(wallAt, wallAt + 9).trim();
+      expect(cell, `run ${e.run}`).toBe(e.correction_method ? METHOD_COLUMN[e.correction_method] : '-');
+    }
+    expect(exported.some((e) => e.correction_method)).toBe(true);
+    expect(table.stdout).toContain('wall: the wall-correction method of each run');
 
     const csv = await cli('runs', '--format', 'csv');
     expect(csv.code).toBe(0);
@@ -123,9 +135,16 @@ describe('a session from import to sheet', () => {
   it('reduce with --runs and --set reduces just those runs; a bad run number is an input error', async () => {
     const runs = JSON.parse((await cli('runs', '--format', 'json')).stdout) as { run: number; kind: string }[];
     const two = runs.filter((r) => r.kind === 'data').slice(0, 2).map((r) => r.run);
-    const r = await cli('reduce', '--runs', two.join(','), '--set', 'mcDraws=20', '--set', 'liftTolAbs=0.03');
+    const r = await cli('reduce', '--runs', two.join(','), '--set', 'mcDraws=20', '--set', 'liftTolAbs=0.03', '--set', 'correction=maskell');
     expect(r.code, r.stderr).toBe(0);
     expect(r.stdout).toMatch(/reduced 2 run\(s\)/);
+    // the runs table says which runs were corrected by Maskell's method now
+    const lines = (await cli('runs')).stdout.split('\n');
+    const wallAt = lines[0].indexOf('wall');
+    const wallOf = (run: number) => lines.find((l) => l.startsWith(String(run).padStart(4)))!.slice(wallAt, wallAt + 9).trim();
+    for (const run of two) expect(wallOf(run)).toBe('Maskell');
+    const other = runs.find((x) => x.kind === 'data' && !two.includes(x.run))!.run;
+    expect(wallOf(other)).not.toBe('Maskell');
     const missing = await cli('reduce', '--runs', '900');
     expect(missing.code).toBe(1);
     expect(missing.stderr).toContain('900');
@@ -164,6 +183,26 @@ describe('a session from import to sheet', () => {
     const after = JSON.parse((await cli('runs', '--format', 'json')).stdout) as { run: number; review: { verdict: string; actor: string } | null }[];
     expect(after.find((x) => x.run === run)!.review).toMatchObject({ verdict: 'rejected', actor: 'T. Lindqvist' });
     expect((await cli('review', String(run))).code).toBe(2);
+  });
+
+  it('the reviewer is a name: --reviewer NAME, else the OS user name without any prefix (with a note saying so); the sheet prints it', async () => {
+    const runs = JSON.parse((await cli('runs', '--format', 'json')).stdout) as { run: number; kind: string }[];
+    const [a, b] = runs.filter((r) => r.kind === 'data').slice(1, 3).map((r) => r.run);
+    const noName = { RAKELINE_ACTOR: '', RAKELINE_REVIEWER: '' };
+    const named = await runCli(['--db', db, '--reviewer', 'A. Farrow', 'review', String(a), '--accept'], { env: noName });
+    expect(named.code, named.stderr).toBe(0);
+    expect(named.stdout).toContain(`run ${a} accepted by A. Farrow`);
+    expect(named.stderr).not.toContain('note:');
+    const os = userInfo().username;
+    const plain = await runCli(['--db', db, 'review', String(b), '--accept'], { env: noName });
+    expect(plain.code, plain.stderr).toBe(0);
+    expect(plain.stderr).toContain(`recorded as reviewer "${os}" (the OS user name); give --reviewer`);
+    const after = JSON.parse((await cli('runs', '--format', 'json')).stdout) as { run: number; review: { actor: string } | null }[];
+    expect(after.find((x) => x.run === a)!.review!.actor).toBe('A. Farrow');
+    expect(after.find((x) => x.run === b)!.review!.actor).toBe(os);
+    const sheet = (await cli('sheet')).stdout;
+    expect(sheet).toContain('accepted</b> by A. Farrow');
+    expect(sheet).not.toContain('cli:');
   });
 
   it('export writes CSV and JSON files; sheet writes the day sheet for the chosen paper', async () => {

@@ -119,6 +119,11 @@ describe('day sheet of a stored session', () => {
     const withPick = titles(sheet({ cpRuns: [picked] }).doc as unknown as Document);
     expect(withPick.some((t) => t.startsWith(`Run ${picked}:`))).toBe(true);
     expect(withPick.length).toBe(without.length + 1);
+    // a picked run that cannot be plotted (no such run; a wind-off zero) is named, not dropped silently
+    const zero = store.listRuns(1).find((r) => r.kind === 'zero')!.run;
+    const { doc } = sheet({ cpRuns: [picked, zero, 999] });
+    expect(doc.body.textContent).toContain(`Picked but not plotted (no such data run, or not reduced): runs ${zero}, 999.`);
+    expect(titles(doc as unknown as Document).some((t) => t.startsWith(`Run ${picked}:`))).toBe(true);
   });
 
   it('the session-level findings: the leaking tap of every wind-off zero reported once, as the summary words it', () => {

@@ -137,6 +137,11 @@ describe('Intake import', () => {
     const where = ui.container.querySelector('.errors .err-where')!.textContent!;
     expect(where).toMatch(/^runs\.csv, line \d+/);
     expect(ui.container.querySelector('.errors')!.textContent).toContain('not-an-angle');
+    // the place is said once: the reason beside it does not repeat the file and line
+    expect(where).toMatch(/^runs\.csv, line \d+, channel alpha_deg$/);
+    const msg = ui.container.querySelector('.errors .err-msg')!.textContent!;
+    expect(msg).toContain('not-an-angle');
+    expect(msg).not.toContain('runs.csv');
     expect(m.calls.some((x) => x.channel === 'sessions.importFiles')).toBe(false);
   });
 });

@@ -6,7 +6,6 @@
 //     the disk is full and names the database, no file is left behind, and once space is freed
 //     the same command gives what an undisturbed import gives — on the calling thread (CLI) and
 //     on import threads (workers: 2).
-import { spawn } from 'node:child_process';
 import { readdirSync, rmSync, statfsSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -17,7 +16,7 @@ import { runsNeedingReduction } from '../main/repair';
 import { reduceStoredSession } from '../main/reduceService';
 import { makeTinySession, REPO, runCli } from './helpers/cliSession';
 import { cleanupTempDirs, tempDir } from './helpers/store-fixtures';
-import { dbHolds, folderFiles, mountTmpfs, unmount } from './helpers/robust';
+import { dbHolds, folderFiles, killAtMarker, mountTmpfs, unmount } from './helpers/robust';
 
 const mounts: string[] = [];
 afterAll(() => {
@@ -41,22 +40,8 @@ describe('(2) kill -9 after the import commits', () => {
     const dir = tempDir('rk-kill-');
     const folder = makeTinySession(join(dir, 'session'));
     const db = join(dir, 'killed.sqlite');
-    const child = spawn(process.execPath, ['--import', 'tsx', FIXTURE, db, folder], { cwd: REPO, stdio: ['ignore', 'pipe', 'pipe'] });
-    let out = '';
-    let err = '';
-    child.stderr.on('data', (d) => (err += d));
-    const exited = new Promise<NodeJS.Signals | null>((res) => child.on('exit', (_c, s) => res(s)));
-    await new Promise<void>((res, rej) => {
-      child.stdout.on('data', (d) => {
-        out += d;
-        if (out.includes('committed')) {
-          child.kill('SIGKILL');
-          res();
-        }
-      });
-      child.on('exit', () => rej(new Error(`the child stopped before its commit:\n${out}\n${err}`)));
-    });
-    expect(await exited).toBe('SIGKILL');
+    const child = await killAtMarker(FIXTURE, [db, folder], 'committed', REPO);
+    expect(child.signal).toBe('SIGKILL');
 
     // The state the issue describes: runs stored, none reduced, integrity intact.
     const killed = Store.open(db, { readOnly: true });

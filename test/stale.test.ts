@@ -14,12 +14,27 @@ import { listRunsMarked, staleMarks, staleRuns } from '../main/stale';
 import { writeSessionFolder } from '../main/logwriter';
 import { exportResultsCsv, exportResultsJson } from '../main/export';
 import { runsTable } from '../main/cli';
-import { daySheetHtml } from '../main/daysheet';
+import { daySheetHtml, runRanges as runRangesOf } from '../main/daysheet';
 import { sessionSummary } from '../main/reduceService';
 import { demoSession } from '../resources/demo/scenario';
 import { cleanupTempDirs, tempDir } from './helpers/store-fixtures';
 
 const S: Settings = { ...DEFAULT_SETTINGS, badTaps: ['U03'] };
+
+/** The day sheet of a stored session, parsed: the status cell of a run and the settings section's
+ *  stale list (the sheet names each run's own cause: settings, bad taps or zeros). */
+function sheetOf(store: Store, sid: number) {
+  const html = daySheetHtml({
+    session: store.getSession(sid), setup: store.getSetup(sid), runs: listRunsMarked(store, sid), summary: sessionSummary(store, sid), paper: 'A4',
+    generatedAt: '2026-11-18T18:00:00Z', settings: store.getSettings(sid), results: store.latestResults(sid),
+  });
+  const doc = new DOMParser().parseFromString(html, 'text/html');
+  return {
+    html,
+    status: (run: number) => doc.querySelector(`table.runs tr[data-run="${run}"] .status`)!.textContent!,
+    staleList: () => [...doc.querySelectorAll('ul.stale li')].map((li) => li.textContent!),
+  };
+}
 const at = '2026-11-18T10:00:00.000Z';
 
 describe('the stale rule', () => {
@@ -116,6 +131,14 @@ describe('stale results in a stored session', () => {
     const marks = staleMarks(store, sid);
     expect([...marks.keys()].sort((a, b) => a - b)).toEqual(bracketed.filter((r) => dataRuns.includes(r)));
     for (const m of marks.values()) expect(m.zeros).toEqual([zeroRun]);
+    // The sheet says the cause: the later zero, not other settings.
+    const sheet = sheetOf(store, sid);
+    for (const run of marks.keys()) {
+      expect(sheet.status(run)).toContain(`stale: wind-off zero ${zeroRun} stored since`);
+      expect(sheet.status(run)).not.toContain('other settings');
+    }
+    expect(sheet.status(dataRuns.find((r) => !marks.has(r))!)).not.toContain('stale');
+    expect(sheet.staleList()).toEqual([`${marks.size > 1 ? 'runs' : 'run'} ${runRangesOf([...marks.keys()])}: wind-off zero run ${zeroRun} stored after this reduction`]);
     // Re-reducing the stale runs clears them.
     reduceStoredSession(store, sid, { runs: staleRuns(store, sid), actor: 'M. Okonkwo' });
     expect(staleRuns(store, sid)).toEqual([]);
@@ -134,7 +157,7 @@ describe('stale results in a stored session', () => {
 
     const table = runsTable(rows).split('\n');
     for (const run of some) expect(table.find((l) => l.startsWith(String(run).padStart(4)))).toContain('[stale]');
-    expect(table.at(-1)).toContain('2 stale result(s)');
+    expect(table.find((l) => l.includes('stale result(s)'))).toContain('2 stale result(s)');
 
     const csv = exportResultsCsv(rows, store.getSetup(sid)).split('\r\n');
     const col = csv[0].split(',').indexOf('stale');
@@ -153,9 +176,11 @@ describe('stale results in a stored session', () => {
     });
     const doc = new DOMParser().parseFromString(html, 'text/html');
     const status = (run: number) => doc.querySelector(`table.runs tr[data-run="${run}"] .status`)!.textContent!;
-    for (const run of some) expect(status(run)).toContain('other settings');
-    expect(status(all[0])).not.toContain('other settings');
-    expect(html).toContain('Reduced with other settings');
+    for (const run of some) expect(status(run)).toContain('stale: other settings');
+    for (const run of some) expect(status(run)).not.toContain('bad taps');
+    expect(status(all[0])).not.toContain('stale');
+    expect(html).toContain('<b>Stale results</b>');
+    expect(sheetOf(store, sid).staleList()).toEqual([`runs ${runRangesOf(some)}: Lift cross-check, absolute: 0.03 in cl (now ${store.getSettings(sid).liftTolAbs} in cl)`]);
   });
 
   it('saving a setting marks every reduced run stale; a tap override too; re-reducing the stale ones clears them', () => {
@@ -171,6 +196,13 @@ describe('stale results in a stored session', () => {
     const m = staleMarks(store, sid);
     expect([...m.keys()]).toEqual(all);
     expect(m.get(all[0])!.reasons).toEqual([`tap ${tap} marked bad since`]);
+    // The sheet says the cause: the bad tap, not other settings.
+    const sheet = sheetOf(store, sid);
+    for (const run of all) {
+      expect(sheet.status(run)).toContain('stale: bad taps changed since');
+      expect(sheet.status(run)).not.toContain('other settings');
+    }
+    expect(sheet.staleList()).toEqual([`runs ${runRangesOf(all)}: tap ${tap} marked bad since`]);
     reduceStoredSession(store, sid, { runs: staleRuns(store, sid), actor: 'M. Okonkwo' });
     expect(staleRuns(store, sid)).toEqual([]);
     // Saving the same value again changes nothing.

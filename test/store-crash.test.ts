@@ -2,13 +2,13 @@
 // the import transaction. The database must then open cleanly (integrity_check = ok) and hold
 // either none or all of that import — here none, since the kill lands mid-transaction — while the
 // session committed before is intact.
-import { spawn } from 'node:child_process';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { afterAll, expect, it } from 'vitest';
 import { Store } from '../main/store';
 import { cleanupTempDirs, tempDir } from './helpers/store-fixtures';
 import { parsedMini } from './fixtures/crash-import';
+import { killAtMarker } from './helpers/robust';
 
 afterAll(() => cleanupTempDirs());
 
@@ -17,22 +17,7 @@ const FIXTURE = fileURLToPath(new URL('./fixtures/crash-import.ts', import.meta.
 
 it('SIGKILL mid-import leaves a consistent database with none of that import', async () => {
   const db = join(tempDir(), 'crash.sqlite');
-  const child = spawn(process.execPath, ['--import', 'tsx', FIXTURE, db], { cwd: REPO, stdio: ['ignore', 'pipe', 'pipe'] });
-  let out = '';
-  let err = '';
-  child.stderr.on('data', (d) => (err += d));
-  const exited = new Promise<{ code: number | null; signal: NodeJS.Signals | null }>((res) => child.on('exit', (code, signal) => res({ code, signal })));
-  await new Promise<void>((res, rej) => {
-    child.stdout.on('data', (d) => {
-      out += d;
-      if (out.includes('B-started')) {
-        child.kill('SIGKILL');
-        res();
-      }
-    });
-    child.on('exit', () => rej(new Error(`child exited before starting the transaction:\n${out}\n${err}`)));
-  });
-  const { signal } = await exited;
+  const { out, signal } = await killAtMarker(FIXTURE, [db], 'B-started', REPO);
   expect(signal).toBe('SIGKILL');
   expect(out).toContain('A-committed');
   expect(out).not.toContain('B-committed');

@@ -107,7 +107,7 @@ export function DayLog({ data, selected, onSelect, onOpen, reload, live }: DayLo
         <label><input type="checkbox" checked={flaggedOnly} onChange={(e) => setFlaggedOnly(e.target.checked)} /> flagged only</label>
         <span className="toolbar-gap" />
         {liveHere ? <span className="live-chip" title={live.folder ?? undefined}><span aria-hidden="true">●</span> Live: watching {live.folder}{live.lastRun !== null ? `, last run ${live.lastRun}` : ''}</span> : null}
-        <span className="hint">↑/↓ select · Enter opens · click a header to sort</span>
+        <span className="hint">α<sub>c</sub>, q, Re, c<sub>l</sub>, c<sub>d</sub>, c<sub>m</sub> and Γ wall-corrected · ↑/↓ select · Enter opens · click a header to sort</span>
         <button type="button" onClick={() => reduce('stale')} disabled={!stale.length || task !== null} title={stale.length ? `Runs ${stale.join(', ')}: reduced with other settings, bad taps or zeros than the session's now` : 'Every result is up to date'}>
           Re-reduce stale runs ({stale.length})
         </button>

@@ -43,6 +43,14 @@ async function walkEntry(entry: FileSystemEntry, prefix: string, out: Picked[]):
 
 const SKIP = /(^|\/)(\.DS_Store|Thumbs\.db|desktop\.ini)$|(^|\/)\./;
 
+/** An error's words without the place the line before it already names ("runs/x.csv line 5,
+ *  channel REF_DP: expected a number" → "expected a number"). */
+export function errorReason(e: PlainError): string {
+  if (!e.file || !e.message.startsWith(e.file)) return e.message;
+  const at = e.message.indexOf(': ');
+  return at < 0 ? e.message : e.message.slice(at + 2);
+}
+
 export function Intake({ mode, live, onImported, onOpenSession, setLive }: IntakeProps) {
   const api = useApi();
   const { track, notify } = useStatus();
@@ -270,8 +278,8 @@ export function Intake({ mode, live, onImported, onOpenSession, setLive }: Intak
           <ul>
             {errors.map((e, i) => (
               <li key={i}>
-                <span className="err-where">{e.file ?? 'input'}{e.line !== undefined ? `, line ${e.line}` : ''}{e.column ? `, ${e.column}` : ''}</span>
-                <span className="err-msg">{e.message}</span>
+                <span className="err-where">{e.file ?? 'input'}{e.line !== undefined ? `, line ${e.line}` : ''}{e.column ? `, channel ${e.column}` : ''}</span>
+                <span className="err-msg">{errorReason(e)}</span>
               </li>
             ))}
           </ul>
@@ -287,7 +295,7 @@ export function Intake({ mode, live, onImported, onOpenSession, setLive }: Intak
               <tbody>
                 {[...check.files].sort((a, b) => a.chosen.localeCompare(b.chosen, undefined, { numeric: true })).map((f) => (
                   <tr key={f.chosen} className={f.status === 'error' ? 'row-reject' : undefined}>
-                    <td>{f.chosen}</td><td>{f.status === 'unused' ? '–' : f.name}</td><td className="num">{(f.bytes / 1024).toFixed(1)}</td>
+                    <td className="fname">{f.chosen}</td><td className="fname">{f.status === 'unused' ? '–' : f.name}</td><td className="num">{(f.bytes / 1024).toFixed(1)}</td>
                     <td>{f.status === 'ok' ? '✔ ok' : f.status === 'error' ? '✖ error' : f.status === 'unused' ? '○ not used' : '– not checked'}</td>
                     <td className="small">{f.note}</td>
                   </tr>

@@ -66,8 +66,9 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
         </section>
         {span.length ? (
           <section className="panel" aria-label="Span loading">
-            <h3>Span loading (section c<sub>l</sub> of each tap row)</h3>
-            <Plot config={spanCfg} label="Section lift coefficient against spanwise station" height={300} />
+            <h3>Span loading (section c<sub>l</sub> of each tap row, uncorrected)</h3>
+            <Plot config={spanCfg} label="Section lift coefficient (uncorrected) against spanwise station" height={300} />
+            <p className="small muted">Measured c<sub>l</sub> of each row (not wall-corrected); the spanwise mean of rows is the span integral of the row c<sub>l</sub> over the model span, ends held to the walls.</p>
             <fieldset className="span-pick">
               <legend>Runs shown</legend>
               {span.map((s) => (
@@ -77,7 +78,7 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
                     checked={chosen.includes(s.run)}
                     onChange={(e) => setSpanRuns(e.target.checked ? [...chosen, s.run] : chosen.filter((r) => r !== s.run))}
                   />{' '}
-                  {s.run} (α {fix(s.alphaDeg, 1)}°, CL {fix(s.CL, 3)})
+                  {s.run} (α {fix(s.alphaDeg, 1)}° corr.; cl, spanwise mean of rows, uncorrected: {fix(s.CL, 3)})
                 </label>
               ))}
             </fieldset>
@@ -89,17 +90,17 @@ export function Polars({ data, onOpen }: { data: SessionData; onOpen(run: number
         <h3>Points</h3>
         <div className="table-scroll short">
           <table className="runs compact">
-            <thead><tr><th scope="col">run</th><th scope="col">sweep</th><th scope="col" className="num">α<sub>c</sub> [°]</th><th scope="col" className="num">c<sub>l</sub> p</th><th scope="col" className="num">c<sub>l</sub> mom</th><th scope="col" className="num">c<sub>d</sub> wake</th><th scope="col" className="num">c<sub>d</sub> p</th><th scope="col" className="num">c<sub>m c/4</sub></th><th scope="col">flags and reasons</th></tr></thead>
+            <thead><tr><th scope="col">run</th><th scope="col">sweep</th><th scope="col" className="flags-col">flags and reasons</th><th scope="col" className="num">α<sub>c</sub> [°]</th><th scope="col" className="num">c<sub>l</sub> p</th><th scope="col" className="num">c<sub>l</sub> mom</th><th scope="col" className="num">c<sub>d</sub> wake</th><th scope="col" className="num">c<sub>d</sub> p</th><th scope="col" className="num">c<sub>m c/4</sub></th></tr></thead>
             <tbody>
               {pts.map((p, i) => (
                 <tr key={p.run} className={held.has(p.run) ? 'row-reject' : p.flagged ? 'row-warn' : undefined}>
                   <td><button type="button" className="link" onClick={() => onOpen(p.run)}>{p.run}</button></td>
                   <td>{dirs[i] === 'up' ? '↗ up' : '↘ down'}</td>
-                  <td className="num">{fix(p.alphaDeg, 2)}</td><td className="num">{fix(p.cl, 4)}</td><td className="num">{fix(p.clMom, 4)}</td>
-                  <td className="num">{fix(p.cd, 5)}</td><td className="num">{fix(p.cdp, 5)}</td><td className="num">{fix(p.cmc4, 4)}</td>
-                  <td className="flag-reasons">{(flagsOf.get(p.run) ?? []).map((f, k) => (
+                  <td className="flag-reasons flags-col">{(flagsOf.get(p.run) ?? []).map((f, k) => (
                     <div key={k}><b>{SEVERITY[f.severity].glyph} {SEVERITY[f.severity].word}:</b> {f.reason}</div>
                   ))}{staleOf.has(p.run) ? <StaleBadge mark={staleOf.get(p.run)!} /> : null}</td>
+                  <td className="num">{fix(p.alphaDeg, 2)}</td><td className="num">{fix(p.cl, 4)}</td><td className="num">{fix(p.clMom, 4)}</td>
+                  <td className="num">{fix(p.cd, 5)}</td><td className="num">{fix(p.cdp, 5)}</td><td className="num">{fix(p.cmc4, 4)}</td>
                 </tr>
               ))}
             </tbody>

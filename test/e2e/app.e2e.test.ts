@@ -392,10 +392,99 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
       expect(r11).toContain('Reviewer M. Okonkwo rejected this run: wake off the rake; traverse the rake and repeat');
       expect(flat).not.toContain('Run 11 (no flags)');
       expect(flat).toMatch(/Run 9: α 0\.01° corr\./); // the picked run's Cp plot
+      // balanced pages: the last page is not a short, nearly empty one (main/daysheet.ts tail rule)
+      const bbox = execFileSync('pdftotext', ['-bbox', pdfPath, '-'], { encoding: 'utf8', maxBuffer: 1e8 });
+      const lastPage = [...bbox.matchAll(/<page width="[\d.]+" height="([\d.]+)">([^]*?)<\/page>/g)].at(-1)!;
+      const pageH = Number(lastPage[1]);
+      const lowest = Math.max(...[...lastPage[2].matchAll(/yMax="([\d.]+)"/g)].map((y) => Number(y[1])).filter((y) => y < pageH - (13 / 25.4) * 72));
+      expect(lowest / pageH, `last page of ${pages} on ${paper}`).toBeGreaterThanOrEqual(0.35);
       execFileSync('pdftoppm', ['-png', '-r', '60', pdfPath, path.join(out, `daysheet-${paper}`)]);
       expect(readdirSync(out).filter((n) => n.startsWith(`daysheet-${paper}-`) && n.endsWith('.png')).length).toBe(pages);
     }
 
+    const problems = (page as unknown as { problems: string[] }).problems;
+    expect(problems, problems.join('\n')).toEqual([]);
+  }
+
+  it('at 1024 px wide every screen keeps its flags column in view, and nothing spills past the window', () => guarded('failure-1024', narrow), 120_000);
+
+  async function narrow(shot: (name: string) => Promise<unknown>): Promise<void> {
+    const W = 1024;
+    await page.setViewportSize({ width: W, height: 768 });
+    /** The element's box lies inside the window and inside every scrolling box around it. */
+    const inView = async (loc: ReturnType<Page['locator']>, what: string) => {
+      await loc.waitFor();
+      const box = await loc.boundingBox();
+      expect(box, what).not.toBeNull();
+      expect(box!.x, `${what}: left edge`).toBeGreaterThanOrEqual(0);
+      expect(box!.x + box!.width, `${what}: right edge`).toBeLessThanOrEqual(W);
+      const clippedBy = await loc.evaluate((el) => {
+        const b = el.getBoundingClientRect();
+        for (let p = el.parentElement; p; p = p.parentElement) {
+          if (!/(auto|scroll|hidden|clip)/.test(getComputedStyle(p).overflowX)) continue;
+          const r = p.getBoundingClientRect();
+          if (b.right > r.right + 1 || b.left < r.left - 1) return `${p.tagName.toLowerCase()}.${p.className}`;
+        }
+        return '';
+      });
+      expect(clippedBy, `${what} is cut off by its scrolling box`).toBe('');
+    };
+    const noSpill = async (what: string) => {
+      const w = await page.evaluate(() => document.scrollingElement!.scrollWidth);
+      expect(w, `${what}: the page is wider than the window`).toBeLessThanOrEqual(W);
+    };
+    try {
+      await page.locator('.sessions li button', { hasText: '2026-11-18' }).click();
+      await page.getByRole('button', { name: 'Day log', exact: true }).click();
+      const grid = page.getByRole('grid');
+      await grid.waitFor();
+      const flagCell = grid.locator('tbody tr[data-run="11"] td', { has: page.locator('[data-flag="wake-not-captured"]') });
+      await inView(flagCell, 'Day log: the flags cell of run 11');
+      await inView(grid.locator('thead th', { hasText: 'Flags' }), 'Day log: the Flags header');
+      await noSpill('Day log');
+      await shot('narrow-daylog');
+
+      await page.locator('tr[data-run="11"]').click();
+      await page.locator('.side-panel').getByRole('button', { name: /Open in Run inspector/ }).click();
+      await inView(page.locator('.flags-box .flag-reason').first(), 'Run inspector: the first flag');
+      await noSpill('Run inspector');
+      await shot('narrow-inspector');
+
+      await page.getByRole('button', { name: 'Polars', exact: true }).click();
+      // run 11 is rejected by now (left out of the polars): the first flagged point's cell
+      const pointsFlag = page.getByRole('region', { name: 'Polar points' }).locator('tbody td.flags-col', { hasText: 'check:' }).first();
+      await pointsFlag.scrollIntoViewIfNeeded();
+      await inView(pointsFlag, 'Polars: the first flags and reasons cell');
+      await inView(page.getByRole('region', { name: 'Polar points' }).locator('thead th.flags-col'), 'Polars: the flags header');
+      await noSpill('Polars');
+      await shot('narrow-polars');
+
+      await page.getByRole('button', { name: 'Side by side', exact: true }).click();
+      const list = page.getByRole('table', { name: 'Runs matching the filters' });
+      await inView(list.locator('thead th', { hasText: 'flags' }), 'Side by side: the flags header');
+      await inView(list.locator('tbody tr').first().locator('td').nth(4), 'Side by side: the first flags cell');
+      await inView(list.getByRole('button', { name: /^Add run/ }).first(), 'Side by side: the first add button');
+      await noSpill('Side by side');
+      await shot('narrow-side-by-side');
+
+      await page.getByRole('button', { name: 'Session settings', exact: true }).click();
+      await inView(page.getByRole('button', { name: /^Save/ }), 'Settings: the Save button');
+      await noSpill('Session settings');
+      await shot('narrow-settings');
+
+      await page.getByRole('button', { name: 'Intake', exact: true }).click();
+      await page.getByRole('heading', { name: 'Intake' }).waitFor();
+      await noSpill('Intake');
+      await shot('narrow-intake');
+
+      await page.getByRole('button', { name: 'Day sheet', exact: true }).click();
+      await inView(page.getByRole('button', { name: /^Print/ }), 'Day sheet: the Print button');
+      await inView(page.locator('iframe.sheet-frame'), 'Day sheet: the sheet');
+      await noSpill('Day sheet');
+      await shot('narrow-daysheet');
+    } finally {
+      await page.setViewportSize({ width: 1500, height: 950 });
+    }
     const problems = (page as unknown as { problems: string[] }).problems;
     expect(problems, problems.join('\n')).toEqual([]);
   }

@@ -1,8 +1,9 @@
 // Helpers of the robustness tests (issue 12): what a database holds, times left out, so that a
 // database repaired by running a command again can be compared with one from an undisturbed run;
 // the files of a folder with their hashes; small mounts (tmpfs, read-only bind) where the test
-// process may mount (root with CAP_SYS_ADMIN), else null.
-import { execFileSync } from 'node:child_process';
+// process may mount (root with CAP_SYS_ADMIN), else null; a child killed with SIGKILL once it
+// prints a marker (the crash tests).
+import { execFileSync, spawn } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { mkdirSync, readdirSync, readFileSync, statSync } from 'node:fs';
 import { join } from 'node:path';
@@ -75,4 +76,38 @@ export function unmount(dir: string): void {
   } catch {
     /* not mounted */
   }
+}
+
+export interface KilledChild {
+  /** Everything the child wrote to standard output and error before it died. */
+  out: string;
+  err: string;
+  /** How it ended (SIGKILL when the marker came). */
+  code: number | null;
+  signal: NodeJS.Signals | null;
+}
+
+/**
+ * Run a TypeScript script in a child Node (through tsx) and kill it with SIGKILL the moment its
+ * standard output contains `marker`. Rejects when the child ends before printing the marker (the
+ * message names the marker and carries what the child wrote).
+ */
+export async function killAtMarker(script: string, args: string[], marker: string, cwd: string): Promise<KilledChild> {
+  const child = spawn(process.execPath, ['--import', 'tsx', script, ...args], { cwd, stdio: ['ignore', 'pipe', 'pipe'] });
+  let out = '';
+  let err = '';
+  child.stderr.on('data', (d) => (err += d));
+  const exited = new Promise<{ code: number | null; signal: NodeJS.Signals | null }>((res) => child.on('exit', (code, signal) => res({ code, signal })));
+  await new Promise<void>((res, rej) => {
+    child.stdout.on('data', (d) => {
+      out += d;
+      if (out.includes(marker)) {
+        child.kill('SIGKILL');
+        res();
+      }
+    });
+    child.on('exit', () => rej(new Error(`the child ended before it printed "${marker}":\n${out}\n${err}`)));
+  });
+  const { code, signal } = await exited;
+  return { out, err, code, signal };
 }
