@@ -21,6 +21,9 @@ export const VERIFY_ABS_TOL = 1e-12;
 
 /** The first path at which two result trees differ, or null when they agree. */
 export function firstDifference(page: unknown, main: unknown, at = ''): string | null {
+  // Structured clone (Electron IPC) keeps typed arrays; compare them as the plain arrays they stand for.
+  if (ArrayBuffer.isView(page) && !(page instanceof DataView)) page = Array.from(page as unknown as ArrayLike<number>);
+  if (ArrayBuffer.isView(main) && !(main instanceof DataView)) main = Array.from(main as unknown as ArrayLike<number>);
   if (typeof main === 'number' || typeof page === 'number') {
     if (typeof main !== 'number' || typeof page !== 'number') return `${at || '(result)'}: ${show(page)} where the reduction gives ${show(main)}`;
     if (Number.isNaN(main) || Number.isNaN(page)) return Number.isNaN(main) && Number.isNaN(page) ? null : `${at}: ${show(page)} where the reduction gives ${show(main)}`;
