@@ -52,6 +52,7 @@ describe(`coverage of the exact value, ${REPLICATES} replicate runs each (binomi
       it(`${taps} taps, ${alphaAndKq ? 'channel errors + α (0.05°) + k_q (0.003)' : 'channel errors only'}: cl, cm, cd in 88 … 98 %`, () => {
         const c = coverage(taps, alphaAndKq);
         found[`${taps}${alphaAndKq}`] = c;
+        console.log(`coverage ${taps} taps, α and k_q errors ${alphaAndKq}: cl ${c.cl} cm ${c.cmc4} cd ${c.cd}`);
         for (const k of ['cl', 'cmc4', 'cd'] as const) {
           expect(c[k], `${k}: ${c[k]}`).toBeGreaterThanOrEqual(0.88);
           expect(c[k], `${k}: ${c[k]}`).toBeLessThanOrEqual(0.98);
