@@ -6,7 +6,7 @@
 //   cl = cn cos α − ca sin α,  cd_p = cn sin α + ca cos α.
 // Anderson, Fundamentals of Aerodynamics, ch. 1 §1.5, eqs. 1.7–1.22 (memory). The trailing edge is
 // closed by extrapolating each surface linearly to x/c = 1 and taking the mean (common practice,
-// no source). The 'spline' contour rule is app/contourSpline.ts; bad-tap detection (leave-one-out
+// no source). The 'spline' contour rule (the settings' default) is app/contourSpline.ts; bad-tap detection (leave-one-out
 // prediction test, app/tapCheck.ts; wind-off leak) is common practice, no source.
 
 import { DEFAULT_SETTINGS } from './types';
@@ -97,13 +97,14 @@ export type ContourIntegrals = Pick<SurfaceLoads, 'cn' | 'ca' | 'cl' | 'cdp' | '
 };
 
 /** How Cp (and the contour between taps) is interpolated for the integrals: 'linear' — straight
- *  segments between taps, Cp linear along each; 'spline' — cubic splines of x/c, y/c and Cp in
- *  chord length through the taps (app/contourSpline.ts). */
+ *  segments between taps, Cp linear along each; 'spline' — cubic splines of the contour and the
+ *  surface speed in the square-root plane of the nose, through the taps (app/contourSpline.ts;
+ *  Settings.contourRule's default). The functions here default to 'linear' when no rule is given. */
 export type ContourRule = 'spline' | 'linear';
 
 /** The words a result uses for each rule. */
 export const CONTOUR_RULE_TEXT: Record<ContourRule, string> = {
-  spline: 'cubic spline of Cp, x/c and y/c in arc length (not-a-knot, trailing edge at both ends)',
+  spline: 'cubic splines of the contour and the surface speed in the square-root plane of the nose (not-a-knot, trailing edge at both ends)',
   linear: 'Cp linear between taps on straight segments',
 };
 

@@ -12,7 +12,7 @@
  *  the contour rule named in each row's loads; 0.5.0: the reduction's own errors and the
  *  transducer groups in the uncertainty, every interval on the corrected basis, corrected Γ, the
  *  per-run budget, the wake's q∞ = H∞ − p∞ when H∞ is measured). */
-export const CORE_VERSION = '0.5.0';
+export const CORE_VERSION = '0.6.0';
 
 export type PressureUnit =
   | 'Pa' | 'kPa' | 'hPa' | 'mbar' | 'psi' | 'inH2O' | 'mmH2O' | 'mmHg' | 'torr';
@@ -189,8 +189,9 @@ export interface Settings {
   /** Stagnation check: the row's highest Cp above the isentropic Cp_stag by more than stagnationK
    *  standard uncertainties gives a reference flag (the tap is kept). */
   stagnationK: number;
-  /** Contour rule of the surface integration: 'linear' (Cp linear between taps) or 'spline'
-   *  (cubic splines in arc length with the stagnation region resolved, app/contourSpline.ts). */
+  /** Contour rule of the surface integration: 'spline' (the default since core 0.6.0: cubic
+   *  splines of the contour and the surface speed in the square-root plane of the nose,
+   *  app/contourSpline.ts) or 'linear' (Cp linear between taps on straight segments). */
   contourRule: 'linear' | 'spline';
   /** Wind-off leak: a tap whose wind-off zero departs from the median zero of the taps by more
    *  than this many Pa is flagged as leaking. */
@@ -230,7 +231,7 @@ export const DEFAULT_SETTINGS: Settings = {
   tapCheckK: 4,
   tapCheckMinU: 0.005,
   stagnationK: 2,
-  contourRule: 'linear',
+  contourRule: 'spline',
   leakPa: 15,
   zeroDriftFraction: 0.01,
   machLimit: 0.3,
