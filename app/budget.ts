@@ -14,6 +14,7 @@
 
 import type { McModel } from './reduce';
 import { ADJ, ADJ_LENGTH } from './reductionErrors';
+import { STAGE_ALL, STAGE_CONTOUR } from './mcPlan';
 import type { BudgetLine, Setup, UncertaintyBudget, UncertaintyKey } from './types';
 
 const KEYS: UncertaintyKey[] = ['cl', 'cd', 'cdp', 'cmc4', 'clMom', 'gammaPressure', 'gammaMomentum', 'gammaWall'];
@@ -48,15 +49,26 @@ function rangeText(values: number[], unit: string): string {
   return lo === hi || hi / lo < 1.05 ? fmtU(hi, unit) : `${fmtU(lo, unit)} – ${fmtU(hi, unit)}`;
 }
 
-/** The budget of one run (see the module comment). `nominal`: the outputs at the nominal inputs. */
-export function runBudget(setup: Setup, m: McModel, alphaDeg: number, nominal: Record<UncertaintyKey, number>): UncertaintyBudget {
+/** The budget of one run (see the module comment). `nominal`: the outputs at the nominal inputs.
+ *  `staged` (default): each moved input re-runs only the stages of the model it reaches
+ *  (McModel.evaluateStages: a tap channel the contour, a rake channel the wake, a wall channel the
+ *  walls, an adjustment none but the corrections) and reuses the base point's others — the same
+ *  arithmetic on the same numbers, so the same deltas as evaluating in full (staged: false). */
+export function runBudget(
+  setup: Setup, m: McModel, alphaDeg: number, nominal: Record<UncertaintyKey, number>, opts: { staged?: boolean } = {},
+): UncertaintyBudget {
+  const staged = opts.staged !== false;
   const vals = Float64Array.from(m.mean);
   const tapDx = new Float64Array(m.tapCount);
   const adj = new Float64Array(ADJ_LENGTH);
-  const base = m.evaluate(vals, tapDx, alphaDeg, m.kq, adj);
+  const base = staged ? m.evaluateBase(vals, tapDx, alphaDeg, m.kq, adj) : m.evaluate(vals, tapDx, alphaDeg, m.kq, adj);
+  const at = (stages: number, a: number, kq: number) =>
+    staged ? m.evaluateStages(stages, vals, tapDx, a, kq, adj) : m.evaluate(vals, tapDx, a, kq, adj);
   const lines: BudgetLine[] = [];
-  const delta = (): Record<UncertaintyKey, number> => {
-    const y = m.evaluate(vals, tapDx, alphaDeg, m.kq, adj);
+  /** The outputs' changes from the base with the inputs as they are now; `stages`: what the
+   *  moved input reaches (app/mcPlan.ts STAGE_*). */
+  const delta = (stages: number): Record<UncertaintyKey, number> => {
+    const y = at(stages, alphaDeg, m.kq);
     const d = {} as Record<UncertaintyKey, number>;
     for (const k of KEYS) d[k] = y[k] - base[k];
     return d;
@@ -94,7 +106,7 @@ export function runBudget(setup: Setup, m: McModel, alphaDeg: number, nominal: R
   for (const [c, ks] of byClass) {
     const deltas = ks.map((k) => {
       vals[k] = m.mean[k] + m.sd[k];
-      const d = delta();
+      const d = delta(m.stages.channel[k]);
       vals[k] = m.mean[k];
       return d;
     });
@@ -108,12 +120,13 @@ export function runBudget(setup: Setup, m: McModel, alphaDeg: number, nominal: R
   }
 
   // Transducer groups: gain and zero, each one input common to the group's channels.
+  const reach = (ks: number[]) => ks.reduce((s, k) => s | m.stages.channel[k], 0);
   m.instruments.groups.forEach((g, gi) => {
     const members = m.names.map((_, k) => k).filter((k) => grouped[k] === gi);
     if (!members.length) return;
     if (g.gain > 0) {
       for (const k of members) vals[k] = m.mean[k] * (1 + g.gain);
-      const d = delta();
+      const d = delta(reach(members));
       for (const k of members) vals[k] = m.mean[k];
       line(`group ${g.id}: gain`, 'instrument', `${Number((g.gain * 100).toPrecision(2))} % of reading`,
         `common to its ${members.length} channels (correlated)`, [d], g.gain * 100);
@@ -121,7 +134,7 @@ export function runBudget(setup: Setup, m: McModel, alphaDeg: number, nominal: R
     const counted = members.filter((k) => m.instruments.zeroCounts[k]);
     if (g.zeroPa > 0 && counted.length) {
       for (const k of counted) vals[k] = m.mean[k] + g.zeroPa;
-      const d = delta();
+      const d = delta(reach(counted));
       for (const k of counted) vals[k] = m.mean[k];
       line(`group ${g.id}: zero`, 'instrument', fmtU(g.zeroPa, 'Pa'),
         'common to the group; not removed (no wind-off zero on both sides of the run)', [d], g.zeroPa);
@@ -133,19 +146,19 @@ export function runBudget(setup: Setup, m: McModel, alphaDeg: number, nominal: R
     const deltas: Record<UncertaintyKey, number>[] = [];
     for (let i = 0; i < m.tapCount; i++) {
       tapDx[i] = m.tapSd;
-      deltas.push(delta());
+      deltas.push(delta(m.stages.tap[i]));
       tapDx[i] = 0;
     }
     line('tap positions x/c', 'geometry', `${m.tapSd} x/c each`, 'independent per tap (setup)', deltas);
   }
   if (m.alphaSd > 0) {
-    const y = m.evaluate(vals, tapDx, alphaDeg + m.alphaSd, m.kq, adj);
+    const y = at(STAGE_CONTOUR, alphaDeg + m.alphaSd, m.kq);
     const d = {} as Record<UncertaintyKey, number>;
     for (const k of KEYS) d[k] = y[k] - base[k];
     line('angle of attack α', 'geometry', `${m.alphaSd}°`, 'setup', [d], m.alphaSd);
   }
   if (m.kqSd > 0) {
-    const y = m.evaluate(vals, tapDx, alphaDeg, m.kq + m.kqSd, adj);
+    const y = at(STAGE_ALL, alphaDeg, m.kq + m.kqSd);
     const d = {} as Record<UncertaintyKey, number>;
     for (const k of KEYS) d[k] = y[k] - base[k];
     line('tunnel calibration k_q', 'reference', `${m.kqSd}`, 'setup', [d], m.kqSd);
@@ -156,7 +169,7 @@ export function runBudget(setup: Setup, m: McModel, alphaDeg: number, nominal: R
   const adjLine = (source: string, kind: BudgetLine['kind'], u: string, basis: string, parts: [number, number][]) => {
     const deltas = parts.filter(([, v]) => v > 0).map(([j, v]) => {
       adj[j] = v;
-      const d = delta();
+      const d = delta(0);
       adj[j] = 0;
       return d;
     });

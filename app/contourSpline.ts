@@ -1,5 +1,5 @@
 // Higher-order contour integration of one chordwise row (REDUCTION.md §3), the 'spline' contour rule
-// (the default since core 0.6.0): the same three contour integrals as the linear rule,
+// (the default since core 0.7.0): the same three contour integrals as the linear rule,
 //   ∮ Cp dx,  ∮ Cp dy,  ∮ Cp (x dx + y dy),
 // over the closed contour trailing-edge closure point → taps in contour order → trailing edge, with
 // the contour and Cp interpolated in a square-root plane that straightens the leading edge:

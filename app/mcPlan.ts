@@ -26,9 +26,9 @@
 // source).
 
 import { freeStream } from './air';
-import { applyCorrections } from './corrections';
+import { applyCorrections, wallCorrections } from './corrections';
 import { correctionOf, type CorrectionPlan } from './correctionChoice';
-import type { SignaturePlan } from './wallSignature';
+import { signatureInterference, type SignaturePlan } from './wallSignature';
 import { ADJ, adjustedCorrection, correctedLift } from './reductionErrors';
 import { applyStencil, linearStencil, trapezoid } from './quadrature';
 import { compareUpper, contourIntegrals, type ContourRule } from './surface';
@@ -152,6 +152,8 @@ export interface McPlan {
   du: Float64Array;
   /** Set by evalMcPlan: the contour order of this draw differs from the nominal one. */
   reordered: boolean;
+  /** The correction's fixed parts (formula methods), or null. */
+  fixed: FixedCorrection | null;
 }
 
 /** Indices of `items` in the order of a stable sort by key. */
@@ -265,7 +267,7 @@ export function buildMcPlan(
   const nT = tVal.length;
   const nA = aVal.length;
   const nG = walls ? walls.gx.length : 0;
-  return {
+  const plan: McPlan = {
     chord: setup.model.chord,
     height: setup.facility.sectionHeight,
     width: setup.facility.sectionWidth,
@@ -313,7 +315,10 @@ export function buildMcPlan(
     dcp: new Float64Array(nG),
     du: new Float64Array(walls ? walls.wx.length : 0),
     reordered: false,
+    fixed: null,
   };
+  plan.fixed = fixedCorrection(plan);
+  return plan;
 }
 
 /** Sums of |value| beyond this are left to runCore (nothing downstream can overflow below it). */
@@ -340,6 +345,104 @@ function sortSurface(P: McPlan, from: number, to: number, upper: boolean): boole
   return moved;
 }
 
+/** Stages of a plan evaluation (evalPlanStages): what an input reaches. The free stream (Δp_ref,
+ *  p∞, k_q) reaches everything (STAGE_ALL); the tail (uncorrected → corrected → Γ) always runs. */
+export const STAGE_CONTOUR = 1;
+export const STAGE_WAKE = 2;
+export const STAGE_WALLS = 4;
+export const STAGE_FREE = 8;
+export const STAGE_ALL = 15;
+
+/** The intermediate results of a full plan evaluation, kept so that an evaluation with one input
+ *  moved can reuse the stages that input does not reach (the budget's sensitivities). Re-running
+ *  a stage on bitwise equal inputs gives bitwise equal results, so reusing one is exact. */
+export interface PlanSnapshot {
+  fs: ReturnType<typeof freeStream>;
+  main: ReturnType<typeof contourIntegrals>;
+  reordered: boolean;
+  cdU: number;
+  angleCl: number;
+  cpt: Float64Array;
+  clMom: number;
+  gammaWall: number;
+  fcp: Float64Array;
+  ccp: Float64Array;
+}
+
+/** A snapshot holder for `P` (filled by evalPlanStages with `keep`). */
+export function planSnapshot(P: McPlan): PlanSnapshot {
+  return {
+    fs: freeStream({ dpRef: 1, kq: 1, p: 1e5, T: 288, rh: 0, chord: 1 }),
+    main: { cn: NaN, ca: NaN, cl: NaN, cdp: NaN, cmLE: NaN, cmc4: NaN, teCp: NaN } as ReturnType<typeof contourIntegrals>,
+    reordered: false,
+    cdU: NaN,
+    angleCl: 0,
+    cpt: new Float64Array(P.cpt.length),
+    clMom: NaN,
+    gammaWall: NaN,
+    fcp: new Float64Array(P.fcp.length),
+    ccp: new Float64Array(P.ccp.length),
+  };
+}
+
+/** Which stages each drawn channel (by value index, `count` of them) and each tap's x/c offset
+ *  reach: the references everything, a main-row tap the contour, rake channels the wake, wall
+ *  channels the walls; other-row and dropped taps only the bound checks (0). */
+export function inputStages(P: McPlan, count: number): { channel: Uint8Array; tap: Uint8Array } {
+  const channel = new Uint8Array(count);
+  const mark = (k: number, s: number) => { if (k >= 0 && k < count) channel[k] |= s; };
+  mark(P.iDp, STAGE_ALL);
+  mark(P.iPs, STAGE_ALL);
+  mark(P.iPt, STAGE_WAKE);
+  for (let s = 0; s < P.n; s++) mark(P.slotVal[s], STAGE_CONTOUR);
+  for (const k of P.tVal) mark(k, STAGE_WAKE);
+  if (P.sVal) for (const k of P.sVal) mark(k, STAGE_WAKE);
+  for (const k of P.aVal) mark(k, STAGE_WAKE);
+  if (P.walls) {
+    for (const k of P.walls.fVal) mark(k, STAGE_WALLS);
+    for (const k of P.walls.cVal) mark(k, STAGE_WALLS);
+  }
+  const tap = new Uint8Array(P.allVal.length);
+  for (let s = 0; s < P.n; s++) tap[P.slotTap[s]] = STAGE_CONTOUR;
+  return { channel, tap };
+}
+
+/** The correction's parts that do not depend on the draw (σ, ε_sb and the factor of cd_u in ε_wb
+ *  of the formula methods; σ of the wall signature), found once by wallCorrections itself; null
+ *  where correctionOf is called every draw (no correction, or a geometry wallCorrections refuses).
+ *  ε_wb = kWb·cd_u is the product wallCorrections forms: ((c/h)/4)·cd_u, or (½·θ·(c/h))·cd_u. */
+interface FixedCorrection {
+  method: CorrectionPlan['method'];
+  sigma: number;
+  epsSb: number;
+  /** ε_wb per unit cd_u. */
+  kWb: number;
+  maskellWake: boolean;
+}
+
+function fixedCorrection(P: Pick<McPlan, 'correct' | 'chord' | 'height' | 'width' | 'areaC2'>): FixedCorrection | null {
+  const c = P.correct;
+  if (c.method === 'none') return null;
+  try {
+    const g = { chord: P.chord, height: P.height, width: P.width, sectionAreaC2: P.areaC2, cdU: 1 };
+    // The wall signature takes σ from the classical formula (correctionOf), which depends on the
+    // geometry only; ε comes from the walls every draw.
+    const w = c.method === 'maskell'
+      ? wallCorrections({ ...g, method: 'maskell', maskellTheta: c.maskellTheta })
+      : wallCorrections({ ...g, method: c.method === 'wall-signature' ? 'barlow-rae-pope' : c.method });
+    // With cd_u = 1, ε_wb is wallCorrections' own factor of cd_u, exactly (x·1 = x).
+    return {
+      method: c.method,
+      sigma: w.sigma,
+      epsSb: w.epsSb,
+      kWb: w.epsWb,
+      maskellWake: c.method === 'maskell' && c.maskellSource === 'wake',
+    };
+  } catch {
+    return null;
+  }
+}
+
 /**
  * One draw by the plan: channel values in `vals` (by the plan's index), tap x/c offsets in `tapDx`
  * (by tap), α, k_q and the reduction's own errors `adj` (app/reductionErrors.ts ADJ order; none: 0).
@@ -350,6 +453,23 @@ export function evalMcPlan(
   P: McPlan, vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number, out: McValues,
   adj?: Float64Array,
 ): boolean {
+  return evalPlanStages(P, vals, tapDx, alphaDeg, kq, out, adj, STAGE_ALL, null, false);
+}
+
+/**
+ * evalMcPlan with only the stages in `stages` run afresh and the others taken from `snap` (a
+ * snapshot of a full evaluation whose inputs differ from these only in what those stages read;
+ * STAGE_ALL needs no snapshot). `keep`: write this evaluation's stages into `snap`. The bound
+ * checks are always made on the whole input, in the same order as a full evaluation.
+ */
+export function evalPlanStages(
+  P: McPlan, vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number, out: McValues,
+  adj: Float64Array | undefined, stages: number, snap: PlanSnapshot | null, keep: boolean,
+): boolean {
+  if (stages & STAGE_FREE) stages = STAGE_ALL;
+  else if (!snap) throw new Error('evalPlanStages: a partial evaluation needs a snapshot');
+  // The angle-flux term of the wake enters cl_mom.
+  if (stages & STAGE_WAKE && P.angleSetup) stages |= STAGE_WALLS;
   P.reordered = false;
   if (!Number.isFinite(alphaDeg) || !Number.isFinite(kq)) return false;
   let bound = 0;
@@ -358,13 +478,18 @@ export function evalMcPlan(
   if (adj) for (let j = 0; j < adj.length; j++) bound += Math.abs(adj[j]);
   if (!(bound < BOUND)) return false;
 
+  let fs: ReturnType<typeof freeStream>;
+  if (stages & STAGE_FREE) {
+    const p = P.baro + vals[P.iPs];
+    if (!(p > 0)) return false;
+    fs = freeStream({ dpRef: vals[P.iDp], kq, p, T: P.T, rh: P.rh, chord: P.chord });
+    if (!(fs.qu > 0) || !(fs.V > 0) || !Number.isFinite(fs.V)) return false;
+  } else {
+    fs = snap!.fs;
+  }
   const pInf = vals[P.iPs];
-  const p = P.baro + pInf;
-  if (!(p > 0)) return false;
-  const fs = freeStream({ dpRef: vals[P.iDp], kq, p, T: P.T, rh: P.rh, chord: P.chord });
   const q = fs.qu;
   const V = fs.V;
-  if (!(q > 0) || !(V > 0) || !Number.isFinite(V)) return false;
 
   // Every tap's Cp stays bounded (the other rows are integrated by runCore too).
   let cpBound = 0;
@@ -372,47 +497,60 @@ export function evalMcPlan(
   for (let i = 0; i < allVal.length; i++) cpBound += Math.abs((vals[allVal[i]] - pInf) / q);
 
   // Main row: x/c and Cp by slot, contour order of this draw, loads.
-  const { n, nU, x, cp, perm, ox, oy, ocp, slotY } = P;
-  for (let s = 0; s < n; s++) {
-    x[s] = P.slotX0[s] + tapDx[P.slotTap[s]];
-    cp[s] = (vals[P.slotVal[s]] - pInf) / q;
-    perm[s] = s;
+  let main: ReturnType<typeof contourIntegrals>;
+  if (stages & STAGE_CONTOUR) {
+    const { n, nU, x, cp, perm, ox, oy, ocp, slotY } = P;
+    for (let s = 0; s < n; s++) {
+      x[s] = P.slotX0[s] + tapDx[P.slotTap[s]];
+      cp[s] = (vals[P.slotVal[s]] - pInf) / q;
+      perm[s] = s;
+    }
+    const movedU = sortSurface(P, 0, nU, true);
+    const movedL = sortSurface(P, nU, n, false);
+    P.reordered = movedU || movedL;
+    for (let k = 0; k < n; k++) {
+      const s = perm[k];
+      ox[k] = x[s];
+      oy[k] = slotY[s];
+      ocp[k] = cp[s];
+    }
+    main = contourIntegrals(ox, oy, ocp, n, nU, alphaDeg, P.rule);
+  } else {
+    main = snap!.main;
+    P.reordered = snap!.reordered;
   }
-  const movedU = sortSurface(P, 0, nU, true);
-  const movedL = sortSurface(P, nU, n, false);
-  P.reordered = movedU || movedL;
-  for (let k = 0; k < n; k++) {
-    const s = perm[k];
-    ox[k] = x[s];
-    oy[k] = slotY[s];
-    ocp[k] = cp[s];
-  }
-  const main = contourIntegrals(ox, oy, ocp, n, nU, alphaDeg, P.rule);
 
   // Wake.
   let cdU = NaN;
   let angleCl = 0;
   if (P.nT > 0) {
     const { nT, tVal, cpt, jones, statics } = P;
-    const qW = P.iPt >= 0 ? vals[P.iPt] - pInf : q;
-    if (!(qW > 0)) return false;
-    const st = P.tStatic;
-    if (st && P.sVal) for (let j = 0; j < statics.length; j++) statics[j] = vals[P.sVal[j]];
-    for (let i = 0; i < nT; i++) {
-      const H = vals[tVal[i]];
-      const pw = st ? applyStencil(st.lo[i], st.hi[i], st.t[i], statics) : pInf;
-      cpt[i] = (H - pInf) / qW;
-      cpBound += Math.abs(cpt[i]);
-      jones[i] = jonesTerm((H - pw) / qW, cpt[i]);
-    }
-    cdU = jonesIntegral(P.tY, jones, P.chord);
-    const ac = P.aCpt;
-    if (ac) {
-      const { nA, aVal, uv } = P;
-      for (let j = 0; j < nA; j++) {
-        uv[j] = angleFluxTerm(vals[aVal[j]], applyStencil(ac.lo[j], ac.hi[j], ac.t[j], cpt));
+    if (stages & STAGE_WAKE) {
+      const qW = P.iPt >= 0 ? vals[P.iPt] - pInf : q;
+      if (!(qW > 0)) return false;
+      const st = P.tStatic;
+      if (st && P.sVal) for (let j = 0; j < statics.length; j++) statics[j] = vals[P.sVal[j]];
+      for (let i = 0; i < nT; i++) {
+        const H = vals[tVal[i]];
+        const pw = st ? applyStencil(st.lo[i], st.hi[i], st.t[i], statics) : pInf;
+        cpt[i] = (H - pInf) / qW;
+        cpBound += Math.abs(cpt[i]);
+        jones[i] = jonesTerm((H - pw) / qW, cpt[i]);
       }
-      angleCl = angleFluxIntegral(P.aY, uv, P.chord);
+      cdU = jonesIntegral(P.tY, jones, P.chord);
+      const ac = P.aCpt;
+      if (ac) {
+        const { nA, aVal, uv } = P;
+        for (let j = 0; j < nA; j++) {
+          uv[j] = angleFluxTerm(vals[aVal[j]], applyStencil(ac.lo[j], ac.hi[j], ac.t[j], cpt));
+        }
+        angleCl = angleFluxIntegral(P.aY, uv, P.chord);
+      }
+    } else {
+      cpt.set(snap!.cpt);
+      for (let i = 0; i < nT; i++) cpBound += Math.abs(cpt[i]);
+      cdU = snap!.cdU;
+      angleCl = snap!.angleCl;
     }
   }
 
@@ -422,29 +560,50 @@ export function evalMcPlan(
   const W = P.walls;
   if (W) {
     const { fcp, ccp, dcp } = P;
-    for (let j = 0; j < fcp.length; j++) {
-      fcp[j] = (vals[W.fVal[j]] - pInf) / q;
-      cpBound += Math.abs(fcp[j]);
+    if (stages & STAGE_WALLS) {
+      for (let j = 0; j < fcp.length; j++) {
+        fcp[j] = (vals[W.fVal[j]] - pInf) / q;
+        cpBound += Math.abs(fcp[j]);
+      }
+      for (let j = 0; j < ccp.length; j++) {
+        ccp[j] = (vals[W.cVal[j]] - pInf) / q;
+        cpBound += Math.abs(ccp[j]);
+      }
+      const { gf, gc } = W;
+      for (let k = 0; k < dcp.length; k++) {
+        dcp[k] = applyStencil(gf.lo[k], gf.hi[k], gf.t[k], fcp) - applyStencil(gc.lo[k], gc.hi[k], gc.t[k], ccp);
+      }
+      clMom = momentumCl(trapezoid(W.gx, dcp), P.chord, W.F, P.angleSetup ? angleCl : 0);
+      const du = P.du;
+      const { wf, wc } = W;
+      for (let k = 0; k < du.length; k++) {
+        du[k] = V * (speedRatio(applyStencil(wc.lo[k], wc.hi[k], wc.t[k], ccp)) - speedRatio(applyStencil(wf.lo[k], wf.hi[k], wf.t[k], fcp)));
+      }
+      gammaWall = trapezoid(W.wx, du) / W.FW;
+    } else {
+      fcp.set(snap!.fcp);
+      ccp.set(snap!.ccp);
+      for (let j = 0; j < fcp.length; j++) cpBound += Math.abs(fcp[j]);
+      for (let j = 0; j < ccp.length; j++) cpBound += Math.abs(ccp[j]);
+      clMom = snap!.clMom;
+      gammaWall = snap!.gammaWall;
     }
-    for (let j = 0; j < ccp.length; j++) {
-      ccp[j] = (vals[W.cVal[j]] - pInf) / q;
-      cpBound += Math.abs(ccp[j]);
-    }
-    const { gf, gc } = W;
-    for (let k = 0; k < dcp.length; k++) {
-      dcp[k] = applyStencil(gf.lo[k], gf.hi[k], gf.t[k], fcp) - applyStencil(gc.lo[k], gc.hi[k], gc.t[k], ccp);
-    }
-    clMom = momentumCl(trapezoid(W.gx, dcp), P.chord, W.F, P.angleSetup ? angleCl : 0);
-    const du = P.du;
-    const { wf, wc } = W;
-    for (let k = 0; k < du.length; k++) {
-      du[k] = V * (speedRatio(applyStencil(wc.lo[k], wc.hi[k], wc.t[k], ccp)) - speedRatio(applyStencil(wf.lo[k], wf.hi[k], wf.t[k], fcp)));
-    }
-    gammaWall = trapezoid(W.wx, du) / W.FW;
-    if (adj) {
-      clMom *= 1 + adj[ADJ.walls];
-      gammaWall *= 1 + adj[ADJ.walls];
-    }
+  }
+  if (keep && snap) {
+    snap.fs = fs;
+    snap.main = main;
+    snap.reordered = P.reordered;
+    snap.cdU = cdU;
+    snap.angleCl = angleCl;
+    snap.cpt.set(P.cpt);
+    snap.clMom = clMom;
+    snap.gammaWall = gammaWall;
+    snap.fcp.set(P.fcp);
+    snap.ccp.set(P.ccp);
+  }
+  if (W && adj) {
+    clMom *= 1 + adj[ADJ.walls];
+    gammaWall *= 1 + adj[ADJ.walls];
   }
   if (!(cpBound < BOUND)) return false;
 
@@ -461,9 +620,7 @@ export function evalMcPlan(
   };
   // The same parameters as runCore's (correctionOf, app/correctionChoice.ts), the draw's
   // correction-model errors applied as runCore applies them.
-  const chosen = correctionOf(
-    P.correct, { chord: P.chord, height: P.height, width: P.width, sectionAreaC2: P.areaC2 }, cdU, uncorrected.cdp, P.signature, W ? P.fcp : null, W ? P.ccp : null,
-  );
+  const chosen = planCorrection(P, W, cdU, uncorrected.cdp);
   if (!chosen) return false;
   const correction = adjustedCorrection(chosen, adj);
   const corrected = applyCorrections(uncorrected, correction, uncorrected.cmc4);
@@ -481,4 +638,34 @@ export function evalMcPlan(
   if (P.nT > 0 && !Number.isFinite(out.cd + angleCl)) return false;
   if (W && !Number.isFinite(out.clMom + out.gammaMomentum + out.gammaWall)) return false;
   return true;
+}
+
+/** correctionOf(P.correct, …) of this draw: for the formula methods from the fixed parts (the same
+ *  numbers wallCorrections gives, ε_wb by the same product), else by correctionOf itself. */
+function planCorrection(P: McPlan, W: McPlan['walls'], cdU: number, cdp: number) {
+  const f = P.fixed;
+  if (f && f.method === 'wall-signature') {
+    // correctionOf's wall-signature case; its σ call refuses a non-finite drag (left to it).
+    const sig = P.signature;
+    if (W && sig && !sig.unusable && Number.isFinite(Number.isFinite(cdU) ? cdU : cdp)) {
+      const s = signatureInterference(sig, P.fcp, P.ccp);
+      return {
+        method: f.method,
+        sigma: f.sigma,
+        epsSb: s.epsSb,
+        epsWb: s.epsWb,
+        eps: s.epsSb + s.epsWb,
+        measured: { dAlphaDeg: s.dAlphaDeg, dCl: s.dCl, dCm: s.dCm },
+      };
+    }
+  } else if (f) {
+    const cd = f.method === 'maskell' ? (f.maskellWake && Number.isFinite(cdU) ? cdU : cdp) : Number.isFinite(cdU) ? cdU : cdp;
+    if (Number.isFinite(cd)) {
+      const epsWb = f.kWb * cd;
+      return { method: f.method, sigma: f.sigma, epsSb: f.epsSb, epsWb, eps: f.epsSb + epsWb };
+    }
+  }
+  return correctionOf(
+    P.correct, { chord: P.chord, height: P.height, width: P.width, sectionAreaC2: P.areaC2 }, cdU, cdp, P.signature, W ? P.fcp : null, W ? P.ccp : null,
+  );
 }

@@ -8,14 +8,14 @@
 import {
   CORE_VERSION, DEFAULT_SETTINGS,
   type Channel, type ChannelStats, type Coefficients, type Flag, type Interval, type PolarPoint,
-  type RawRun, type ResultDigest, type RunInfo, type RunResult, type SessionSummary, type Settings, type Setup,
+  type RawRun, type ResultDigest, type RunInfo, type RunResult, type SessionFinding, type SessionSummary, type Settings, type Setup,
   type TapCp, type WakeResult, type WallResult, type ZeroedRun, type RowLoads, type UncertaintyKey, type PolarIntervals,
 } from './types';
 import { freeStream } from './air';
 import { averageRun, applyZeros, unsteadiness } from './samples';
 import { detectBadTaps, reduceSurface, type BadTap } from './surface';
-import { referenceCheck, type ReferenceFinding } from './tapCheck';
-import { sessionFindings } from './sessionFaults';
+import { keptFor, referenceCheck, type ReferenceFinding } from './tapCheck';
+import { channelFindings, sessionFindings, type ChannelRun } from './sessionFaults';
 import { inviscidCp } from './panel';
 import { spanLoading, completeRow } from './spanwise';
 import { jonesDrag, interpolateStatic } from './wake';
@@ -25,14 +25,17 @@ import { gammaFromCl, liftCrossCheck } from './crosscheck';
 import { sectionArea, wallCorrections, applyCorrections } from './corrections';
 import { correctionFor, correctionSet, type CorrectionInputs, type CorrectionPlan } from './correctionChoice';
 import { signaturePlan, type SignaturePlan } from './wallSignature';
-import { instrumentStd, monteCarlo } from './uncertainty';
+import { coverageInterval, instrumentStd, monteCarlo, NormalStream } from './uncertainty';
 import { addGroupErrors, channelSd, instrumentModel, type InstrumentModel } from './instruments';
 import {
   ADJ, ADJ_LENGTH, adjustedCorrection, adjustmentSd, correctedLift, reductionErrors, type ReductionErrors,
 } from './reductionErrors';
 import { runBudget } from './budget';
 import { orderContour } from './surface';
-import { buildMcPlan, evalMcPlan, type McPlan, type McValues, type PlanLayout } from './mcPlan';
+import {
+  buildMcPlan, evalMcPlan, evalPlanStages, inputStages, planSnapshot, STAGE_ALL,
+  type McPlan, type McValues, type PlanLayout, type PlanSnapshot,
+} from './mcPlan';
 import { sessionStats } from './session';
 import { makeFlag } from './flags';
 import { toPascal, isPressureUnit } from './units';
@@ -319,6 +322,13 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
 
 // ---------------------------------------------------------------------------------------------
 
+/** The taps kept in this run against the automatic test (Settings.keptTaps), in setup order. */
+function keptField(setup: Setup, settings: Settings, run: number): { kept?: string[] } {
+  const keep = keptFor(settings.keptTaps, run);
+  const kept = setup.taps.filter((t) => keep.has(t.id)).map((t) => t.id);
+  return kept.length ? { kept } : {};
+}
+
 /** The nominal result of a run: a first pass with no taps dropped finds the bad taps, a second
  *  pass (when there are any) drops and bridges them. */
 function nominalPass(
@@ -361,6 +371,8 @@ function nominalPass(
   const bad = detectBadTaps(first.taps, settings, zeroByTap, settings.leakPa, {
     uCp,
     positionU: setup.model.tapPositionUncertainty,
+    keep: keptFor(settings.keptTaps, info.run),
+    inviscid: { geometry: setup.model.geometry, alphaDeg: info.alphaDeg },
   });
   const nominal = bad.length
     ? runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad, correct: provisional })
@@ -409,6 +421,11 @@ function wallCpUncertainty(L: Layout, run: ZeroedRun, q: number): number {
  *  every draw (the reference the plan is tested against). Both give the same values. */
 export interface ReduceOptions {
   mcPath?: 'plan' | 'core';
+  /** How the draws and the budget are run: 'columns' (default) draws every input of every draw in
+   *  one pass (runUncertainty) and lets the budget reuse the stages an input does not reach;
+   *  'per-draw' is the earlier form (one Draw object, every budget evaluation in full), kept as
+   *  the reference test/mc-columns.test.ts compares the default with (identical numbers). */
+  mcEngine?: 'columns' | 'per-draw';
 }
 
 /** Reduce one data run to its result: every figure, its uncertainty and its flags. */
@@ -491,8 +508,9 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
       gammaMomentum: nominal.lift.momentum,
       gammaWall: nominal.lift.wall,
     };
-    uncertainty = runUncertainty(m, settings, run, nominalOut);
-    budget = runBudget(setup, m, run.info.alphaDeg, nominalOut);
+    const perDraw = options.mcEngine === 'per-draw';
+    uncertainty = perDraw ? runUncertaintyPerDraw(m, settings, run, nominalOut) : runUncertainty(m, settings, run, nominalOut);
+    budget = runBudget(setup, m, run.info.alphaDeg, nominalOut, { staged: !perDraw });
     cpU = tapCpUncertainty(L, m, nominal);
   }
 
@@ -509,6 +527,7 @@ export function reduceRun(setup: Setup, run: ZeroedRun, settings: Settings, opti
       by: b.reason === 'marked' ? ('hand' as const) : ('auto' as const),
       ...(b.verdict ?? {}),
     })),
+    ...keptField(setup, settings, info.run),
     rows: nominal.rows,
     surface: nominal.main,
     wake: nominal.wake,
@@ -599,6 +618,15 @@ export interface McModel {
   /** The model as reduceRun evaluates it (the plan, or runCore where the plan does not cover a
    *  draw or the option asks for runCore). */
   evaluate(vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number, adj?: Float64Array): Record<UKey, number>;
+  /** As `evaluate`, writing the outputs into `out` (no allocation on the plan's path). */
+  evaluateInto(vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number, adj: Float64Array | undefined, out: McValues): void;
+  /** `evaluate` at the budget's base point, keeping its stages (app/mcPlan.ts PlanSnapshot). */
+  evaluateBase(vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number, adj?: Float64Array): Record<UKey, number>;
+  /** `evaluate` of inputs that differ from the last evaluateBase's only in what `stages` read
+   *  (app/mcPlan.ts STAGE_*): the other stages are reused, so the values are those of `evaluate`. */
+  evaluateStages(stages: number, vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number, adj?: Float64Array): Record<UKey, number>;
+  /** The stages each channel (by `names`) and each tap's x/c reach (STAGE_ALL for all without a plan). */
+  stages: { channel: Uint8Array; tap: Uint8Array };
   /** Whether the run has a plan, and how the last `evaluate` went. */
   hasPlan: boolean;
   last: { path: 'plan' | 'core'; reordered: boolean };
@@ -659,6 +687,11 @@ function mcModel(
       }, index)
     : null;
   const o: McValues = { cl: NaN, cd: NaN, cdp: NaN, cmc4: NaN, clMom: NaN, gammaPressure: NaN, gammaMomentum: NaN, gammaWall: NaN };
+  const snap: PlanSnapshot | null = plan ? planSnapshot(plan) : null;
+  let snapValid = false;
+  const stages = plan
+    ? inputStages(plan, names.length)
+    : { channel: new Uint8Array(names.length).fill(STAGE_ALL), tap: new Uint8Array(L.taps.length).fill(STAGE_ALL) };
   const model: McModel = {
     names,
     mean,
@@ -684,6 +717,40 @@ function mcModel(
       model.last.reordered = false;
       return core(vals, tapDx, alphaDeg, kq, adj);
     },
+    evaluateInto(vals, tapDx, alphaDeg, kq, adj, out) {
+      if (plan && evalMcPlan(plan, vals, tapDx, alphaDeg, kq, out, adj)) return;
+      const y = core(vals, tapDx, alphaDeg, kq, adj);
+      out.cl = y.cl;
+      out.cd = y.cd;
+      out.cdp = y.cdp;
+      out.cmc4 = y.cmc4;
+      out.clMom = y.clMom;
+      out.gammaPressure = y.gammaPressure;
+      out.gammaMomentum = y.gammaMomentum;
+      out.gammaWall = y.gammaWall;
+    },
+    evaluateBase(vals, tapDx, alphaDeg, kq, adj) {
+      snapValid = false;
+      if (plan && snap && evalPlanStages(plan, vals, tapDx, alphaDeg, kq, o, adj, STAGE_ALL, snap, true)) {
+        snapValid = true;
+        model.last.path = 'plan';
+        model.last.reordered = plan.reordered;
+        return { ...o };
+      }
+      return model.evaluate(vals, tapDx, alphaDeg, kq, adj);
+    },
+    evaluateStages(st, vals, tapDx, alphaDeg, kq, adj) {
+      if (!(plan && snap && snapValid)) return model.evaluate(vals, tapDx, alphaDeg, kq, adj);
+      if (evalPlanStages(plan, vals, tapDx, alphaDeg, kq, o, adj, st, snap, false)) {
+        model.last.path = 'plan';
+        model.last.reordered = plan.reordered;
+        return { ...o };
+      }
+      model.last.path = 'core';
+      model.last.reordered = false;
+      return core(vals, tapDx, alphaDeg, kq, adj);
+    },
+    stages,
   };
   return model;
 }
@@ -711,12 +778,89 @@ function planLayout(L: Layout): PlanLayout {
   return P;
 }
 
-/** JCGM 101 Monte Carlo of one run, every input drawn from one seeded stream in this order: each
+const KEYS_MC: UKey[] = ['cl', 'cd', 'cdp', 'cmc4', 'clMom', 'gammaPressure', 'gammaMomentum', 'gammaWall'];
+/** The deviates of a block of draws and the output columns (grown as needed, reused from run to
+ *  run on this thread). */
+let deviates = new Float64Array(0);
+let columns: Float64Array[] = [];
+
+/** Draws whose deviates are made in one pass (bounds the buffer: ~0.75 MB for the bench's run). */
+const MC_BLOCK = 256;
+
+/** JCGM 101 Monte Carlo of one run (the draw order of runUncertaintyPerDraw, which see): the
+ *  standard normal deviates of a block of draws first, in one pass over the seeded stream
+ *  (app/uncertainty.ts NormalStream), then each draw's inputs as mean + u·z from its part of the
+ *  block and its outputs straight into one Float64Array column per output — no per-draw objects.
+ *  The same draws in the same order with the same arithmetic, so the same numbers. */
+function runUncertainty(m: McModel, settings: Settings, run: ZeroedRun, nominal: Record<UKey, number>): Partial<Record<UKey, Interval>> {
+  const draws = settings.mcDraws;
+  if (!Number.isInteger(draws) || draws < 2) {
+    throw new RangeError(`monteCarlo: draws must be an integer ≥ 2 (got ${draws})`);
+  }
+  const { mean, sd, tapSd, adjSd } = m;
+  const groups = m.instruments.groups;
+  const nCh = mean.length;
+  const nTap = m.tapCount;
+  const nG = groups.length;
+  const withKq = m.kqSd > 0;
+  const per = nCh + nTap + 1 + (withKq ? 1 : 0) + 2 * nG + ADJ_LENGTH;
+  const block = Math.min(draws, MC_BLOCK);
+  if (deviates.length < block * per) deviates = new Float64Array(block * per);
+  const z = deviates;
+  const stream = new NormalStream(settings.mcSeed + run.info.run);
+  if (!columns.length || columns[0].length < draws) columns = KEYS_MC.map(() => new Float64Array(draws));
+  const [cCl, cCd, cCdp, cCm, cMom, cGp, cGm, cGw] = columns;
+  const vals = new Float64Array(nCh);
+  const tapDx = new Float64Array(nTap);
+  const gain = new Float64Array(nG);
+  const zero = new Float64Array(nG);
+  const adj = new Float64Array(ADJ_LENGTH);
+  const out: McValues = { cl: NaN, cd: NaN, cdp: NaN, cmc4: NaN, clMom: NaN, gammaPressure: NaN, gammaMomentum: NaN, gammaWall: NaN };
+  const alpha0 = run.info.alphaDeg;
+  const { alphaSd, kq: kq0, kqSd } = m;
+  for (let d = 0, o = 0; d < draws; d++) {
+    if (d % block === 0) {
+      stream.fill(z, Math.min(block, draws - d) * per);
+      o = 0;
+    }
+    for (let k = 0; k < nCh; k++) vals[k] = mean[k] + sd[k] * z[o++];
+    for (let i = 0; i < nTap; i++) tapDx[i] = 0 + tapSd * z[o++];
+    const alphaDeg = alpha0 + alphaSd * z[o++];
+    const kq = withKq ? kq0 + kqSd * z[o++] : kq0;
+    if (nG) {
+      for (let g = 0; g < nG; g++) {
+        gain[g] = 0 + groups[g].gain * z[o++];
+        zero[g] = 0 + groups[g].zeroPa * z[o++];
+      }
+      addGroupErrors(m.instruments, mean, vals, gain, zero);
+    }
+    for (let j = 0; j < ADJ_LENGTH; j++) adj[j] = 0 + adjSd[j] * z[o++];
+    m.evaluateInto(vals, tapDx, alphaDeg, kq, adj, out);
+    cCl[d] = out.cl;
+    cCd[d] = out.cd;
+    cCdp[d] = out.cdp;
+    cCm[d] = out.cmc4;
+    cMom[d] = out.clMom;
+    cGp[d] = out.gammaPressure;
+    cGm[d] = out.gammaMomentum;
+    cGw[d] = out.gammaWall;
+  }
+  const result: Partial<Record<UKey, Interval>> = {};
+  for (let k = 0; k < KEYS_MC.length; k++) {
+    const iv = coverageInterval(columns[k].subarray(0, draws));
+    if (!Number.isFinite(iv.value)) continue;
+    result[KEYS_MC[k]] = { value: nominal[KEYS_MC[k]], u: iv.u, lo: iv.lo, hi: iv.hi, mean: iv.value };
+  }
+  return result;
+}
+
+/** The per-draw form of runUncertainty (ReduceOptions.mcEngine 'per-draw'): the same draws
+ *  through one Draw object, a model call per draw. JCGM 101 Monte Carlo of one run, every input drawn from one seeded stream in this order: each
  *  channel's independent error (instrument or linearity, standard error, drift residual), the tap
  *  positions, α, k_q; then, when the setup has transducer groups, each group's gain and zero; then
  *  the reduction's own errors (ADJ order). The intervals sit on the nominal values (`nominal`),
  *  the mean of the draws kept beside them. */
-function runUncertainty(m: McModel, settings: Settings, run: ZeroedRun, nominal: Record<UKey, number>): Partial<Record<UKey, Interval>> {
+function runUncertaintyPerDraw(m: McModel, settings: Settings, run: ZeroedRun, nominal: Record<UKey, number>): Partial<Record<UKey, Interval>> {
   const { mean, sd, tapSd, adjSd } = m;
   const groups = m.instruments.groups;
   const vals = new Float64Array(mean.length);
@@ -788,7 +932,19 @@ function intervalsOf(r: ResultDigest | RunResult): { intervals?: PolarIntervals 
 const timeOrder = new Intl.Collator();
 
 /** Session summary from the results (or their stored digests, ResultDigest) and the run index. */
-export function summariseSession(setup: Setup, results: ResultDigest[], infos: RunInfo[]): SessionSummary {
+function withChannelFindings(
+  taps: ReturnType<typeof sessionFindings>, channels: SessionFinding[],
+): ReturnType<typeof sessionFindings> {
+  if (!channels.length) return taps;
+  // A tap whose channel is dead or saturated gets that finding only: it is the cause (a frozen
+  // output off the other zeros also reads as a leak). Its runs' flags stay explained.
+  const cause = new Set(channels.map((c) => c.tap));
+  return { ...taps, findings: [...taps.findings.filter((f) => !cause.has(f.tap)), ...channels] };
+}
+
+/** The session summary; `channelRuns` (every run's channel statistics, wind-off zeros included)
+ *  adds the dead and saturated channels to the findings (app/sessionFaults.ts channelFindings). */
+export function summariseSession(setup: Setup, results: ResultDigest[], infos: RunInfo[], channelRuns?: readonly ChannelRun[]): SessionSummary {
   const byRun = new Map(infos.map((i) => [i.run, i]));
   const rows = results
     .map((r) => ({ r, info: byRun.get(r.run) }))
@@ -836,7 +992,7 @@ export function summariseSession(setup: Setup, results: ResultDigest[], infos: R
   return {
     stats,
     flagged: rows.filter(({ r }) => r.flags.length).map(({ r }) => ({ run: r.run, flags: r.flags })),
-    ...sessionFindings(rows.map(({ r }) => r)),
+    ...withChannelFindings(sessionFindings(rows.map(({ r }) => r)), channelRuns ? channelFindings(setup, channelRuns) : []),
     conditions: rows.length ? { qMin, qMax, ReMin, ReMax, alphaMin, alphaMax, tempMin, tempMax, baroMin, baroMax } : null,
     polar,
     span,
@@ -848,7 +1004,8 @@ export function reduceRawSession(
   setup: Setup, raws: RawRun[], overrides?: Partial<Settings>,
 ): { results: RunResult[]; summary: SessionSummary } {
   const settings = resolveSettings(setup, overrides);
-  const zeroed = prepareRuns(setup, averageRuns(raws, settings));
+  const averaged = averageRuns(raws, settings);
+  const zeroed = prepareRuns(setup, averaged);
   const results = zeroed.map((z) => reduceRun(setup, z, settings));
-  return { results, summary: summariseSession(setup, results, raws.map((r) => r.info)) };
+  return { results, summary: summariseSession(setup, results, raws.map((r) => r.info), averaged) };
 }

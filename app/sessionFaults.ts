@@ -5,7 +5,13 @@
 // are (the record of each run is unchanged); the summary lists the findings and the runs still
 // needing a decision: those with a flag that no finding explains (a flag is explained when it is a
 // leaking-tap or bad-tap flag all of whose taps are session findings of that code).
-import type { Flag, ResultDigest, SessionFinding } from './types';
+//
+// Dead and saturated channels (channelFindings, also common practice, no source) are read from the
+// statistics of every run's samples (mean and standard deviation of each channel, wind-on and
+// wind-off), see channelFindings below. They are reported, never acted on: the tap test of each
+// run still decides what to drop, and the engineer marks the tap bad.
+import type { ChannelStats, Flag, ResultDigest, RunInfo, SessionFinding, Setup } from './types';
+import { PA_PER_UNIT } from './units';
 
 /** Share of the data runs a tap fault must be seen on to be a session finding. */
 export const FINDING_SHARE = 0.8;
@@ -70,4 +76,113 @@ export function sessionFindings(results: readonly Pick<ResultDigest, 'run' | 'fl
   };
   const needsDecision = results.filter((r) => r.flags.some((f) => !explained(r, f))).map((r) => r.run);
   return { findings, needsDecision };
+}
+
+/** What channelFindings reads of a run: its index entry and its channels' sample statistics. */
+export interface ChannelRun {
+  info: RunInfo;
+  stats: Readonly<Record<string, ChannelStats>>;
+}
+
+/** A channel reads "without scatter" when its samples' standard deviation is at most this times
+ *  max(1 Pa, |mean|): no live pressure transducer in a running tunnel is that quiet; a frozen
+ *  output, a disconnected input logged as a constant or a clipped signal is. */
+export const FROZEN_REL = 1e-9;
+/** A channel "sits at its rail" when |mean| is at least this fraction of its full scale. */
+export const RAIL_FRACTION = 0.995;
+/** A model tap "does not respond" in a data run when its wind-on mean is within this fraction of q
+ *  of its wind-off zero (Cp within ±0.002 of the reference in every run of a sweep does not happen
+ *  on a live tap: the pressures on a section change with α). */
+export const NO_RESPONSE_Q = 0.002;
+
+function median(xs: readonly number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+}
+
+/**
+ * Dead and saturated channels of a session, each one finding (needs FINDING_SHARE of the runs
+ * looked at, and 3 runs or more):
+ * - saturated: |mean| ≥ RAIL_FRACTION × full scale (Channel.uncertainty.fullScale, in the
+ *   channel's unit) in the data runs;
+ * - dead, no scatter: standard deviation ≤ FROZEN_REL·max(1, |mean|) in the runs, wind-on and
+ *   wind-off alike;
+ * - dead, no response (model taps only; references, rake probes and wall taps can rightly read
+ *   about their wind-off value): the wind-on mean within NO_RESPONSE_Q·q of the median of the
+ *   tap's wind-off zeros in the data runs, q from the reference channel (k_q·Δp_ref, its zero
+ *   taken off likewise).
+ * A channel gets at most one finding, in that order. Angle channels (unit 'deg') are left out.
+ */
+export function channelFindings(setup: Setup, runs: readonly ChannelRun[]): SessionFinding[] {
+  const data = runs.filter((r) => r.info.kind === 'data');
+  const zeros = runs.filter((r) => r.info.kind === 'zero');
+  const dpRef = setup.channels.find((c) => c.target.kind === 'reference' && c.target.ref === 'dpRef');
+  const zeroOf = (name: string): number | null => {
+    const m = zeros.map((z) => z.stats[name]?.mean).filter((x): x is number => Number.isFinite(x));
+    return m.length ? median(m) : null;
+  };
+  const dpZero = dpRef ? zeroOf(dpRef.name) ?? 0 : 0;
+  const qOf = (r: ChannelRun): number => {
+    const dp = dpRef ? r.stats[dpRef.name]?.mean : undefined;
+    return Number.isFinite(dp) ? Math.abs((dp as number) - dpZero) * setup.facility.qCalibration : NaN;
+  };
+  const enough = (hits: number, of: number) => hits >= 3 && hits >= FINDING_SHARE * of;
+  const out: SessionFinding[] = [];
+  for (const ch of setup.channels) {
+    if (ch.unit === 'deg') continue;
+    const t = ch.target;
+    const what = t.kind === 'reference' ? ch.name : t.id;
+    const named = t.kind === 'tap' ? `Tap ${t.id} (channel ${ch.name})`
+      : t.kind === 'reference' ? `Reference channel ${ch.name} (${t.ref === 'dpRef' ? 'Δp_ref' : 'p∞'})`
+        : `Channel ${ch.name} (${t.kind} ${t.id})`;
+    const seenIn = (list: readonly ChannelRun[]) => list.filter((r) => r.stats[ch.name] && Number.isFinite(r.stats[ch.name].mean));
+    const finding = (code: SessionFinding['code'], hitRuns: number[], of: number, kind: string, tail: string): SessionFinding => {
+      const all = hitRuns.length === of;
+      return {
+        code, tap: what, channel: ch.name, runs: hitRuns, of,
+        text: `${named} ${tail} in ${all ? `every ${kind}` : `${hitRuns.length} of ${of} ${kind}s`}, runs ${ranges(hitRuns)}`,
+      };
+    };
+    // Saturated: at the rail in the data runs.
+    const fs = ch.uncertainty?.fullScale;
+    const dSeen = seenIn(data);
+    if (fs && fs > 0) {
+      const rail = RAIL_FRACTION * fs * PA_PER_UNIT[ch.unit as keyof typeof PA_PER_UNIT];
+      const hit = dSeen.filter((r) => Math.abs(r.stats[ch.name].mean) >= rail).map((r) => r.info.run);
+      if (enough(hit.length, dSeen.length)) {
+        const f = finding('saturated-channel', hit, dSeen.length, 'data run', `sits at its full scale (±${fs} ${ch.unit})`);
+        f.text += ': the transducer is over range, its reading is the rail and not the pressure; mark what it measures bad, or change the range.';
+        out.push(f);
+        continue;
+      }
+    }
+    // Dead: no scatter at all, wind-on and wind-off.
+    const aSeen = seenIn(runs);
+    const quiet = aSeen.filter((r) => {
+      const s = r.stats[ch.name];
+      return s.std <= FROZEN_REL * Math.max(1, Math.abs(s.mean));
+    }).map((r) => r.info.run);
+    if (enough(quiet.length, aSeen.length)) {
+      const means = aSeen.filter((r) => quiet.includes(r.info.run)).map((r) => r.stats[ch.name].mean);
+      const same = Math.max(...means) - Math.min(...means) <= FROZEN_REL * Math.max(1, ...means.map(Math.abs));
+      const f = finding('dead-channel', quiet, aSeen.length, 'run', `reads ${same ? `the same value (${+means[0].toPrecision(6)} Pa) without any scatter` : 'without any scatter'}`);
+      f.text += ' (wind-on and wind-off): a frozen or disconnected transducer; its readings carry no information.';
+      out.push(f);
+      continue;
+    }
+    // Dead: a model tap that reads with the wind on what it reads in the wind-off zeros.
+    if (t.kind === 'tap') {
+      const z = zeroOf(ch.name);
+      if (z === null) continue;
+      const withQ = dSeen.filter((r) => qOf(r) > 0);
+      const flat = withQ.filter((r) => Math.abs(r.stats[ch.name].mean - z) <= NO_RESPONSE_Q * qOf(r)).map((r) => r.info.run);
+      if (enough(flat.length, withQ.length)) {
+        const f = finding('dead-channel', flat, withQ.length, 'data run', `reads with the wind on what it reads in the wind-off zeros (within ${NO_RESPONSE_Q * 100} % of q)`);
+        f.text += ': a blocked or disconnected tube, or a dead transducer; its Cp is not the surface pressure.';
+        out.push(f);
+      }
+    }
+  }
+  return out;
 }

@@ -14,6 +14,9 @@ export interface StaleMark {
   settings: string[];
   /** Taps bad now but not when reduced, and bad then but not now. */
   taps: { nowBad: string[]; nowGood: string[] };
+  /** Taps kept in this run against the automatic test since, and no longer kept (Settings.keptTaps;
+   *  only the run's own keep decisions count). Absent when none. */
+  kept?: { nowKept: string[]; noLongerKept: string[] };
   /** Wind-off zero runs stored after the result was reduced. */
   zeros: number[];
 }
@@ -45,14 +48,28 @@ export interface StaleInputs {
   reducedAt: string;
   /** The wind-off zeros that bracket the run now, with when each was stored (ISO time). */
   zeros: { run: number; storedAt: string | null }[];
+  /** The run: keep decisions (Settings.keptTaps) of other runs do not make it stale. Without it
+   *  every keep decision counts. */
+  run?: number;
+}
+
+/** The keep decisions (Settings.keptTaps) that concern one run, tap ids sorted. */
+function keptOf(list: readonly string[] | undefined, run: number | undefined): string[] {
+  const out: string[] = [];
+  for (const e of list ?? []) {
+    const at = e.lastIndexOf('@');
+    if (at <= 0) continue;
+    if (run === undefined || Number(e.slice(at + 1)) === run) out.push(run === undefined ? e : e.slice(0, at));
+  }
+  return [...new Set(out)].sort();
 }
 
 /** Why a result is stale, or null when it is current. */
-export function staleMark({ used, current, reducedAt, zeros }: StaleInputs): StaleMark | null {
+export function staleMark({ used, current, reducedAt, zeros, run }: StaleInputs): StaleMark | null {
   const reasons: string[] = [];
   const settings: string[] = [];
   for (const key of Object.keys(current) as (keyof Settings)[]) {
-    if (key === 'badTaps') continue;
+    if (key === 'badTaps' || key === 'keptTaps') continue;
     if (!same(used[key], current[key])) {
       settings.push(key);
       reasons.push(`${key} was ${show(used[key])}, now ${show(current[key])}`);
@@ -64,11 +81,18 @@ export function staleMark({ used, current, reducedAt, zeros }: StaleInputs): Sta
   const nowGood = [...then].filter((t) => !now.has(t)).sort();
   if (nowBad.length) reasons.push(`tap${nowBad.length > 1 ? 's' : ''} ${nowBad.join(', ')} marked bad since`);
   if (nowGood.length) reasons.push(`tap${nowGood.length > 1 ? 's' : ''} ${nowGood.join(', ')} no longer marked bad`);
+  const keptThen = new Set(keptOf(used.keptTaps, run));
+  const keptNow = new Set(keptOf(current.keptTaps, run));
+  const nowKept = [...keptNow].filter((t) => !keptThen.has(t));
+  const noLongerKept = [...keptThen].filter((t) => !keptNow.has(t));
+  const where = run === undefined ? '' : ' in this run';
+  if (nowKept.length) reasons.push(`tap${nowKept.length > 1 ? 's' : ''} ${nowKept.join(', ')} kept${where} against the automatic test since`);
+  if (noLongerKept.length) reasons.push(`tap${noLongerKept.length > 1 ? 's' : ''} ${noLongerKept.join(', ')} no longer kept${where}`);
   const t = Date.parse(reducedAt);
   const late = zeros.filter((z) => z.storedAt !== null && Date.parse(z.storedAt) > t).map((z) => z.run).sort((a, b) => a - b);
   if (late.length) reasons.push(`wind-off zero run${late.length > 1 ? 's' : ''} ${late.join(', ')} stored after this reduction`);
   if (!reasons.length) return null;
-  return { reasons, settings, taps: { nowBad, nowGood }, zeros: late };
+  return { reasons, settings, taps: { nowBad, nowGood }, ...(nowKept.length || noLongerKept.length ? { kept: { nowKept, noLongerKept } } : {}), zeros: late };
 }
 
 /** One line for a stale result: "stale: liftTolAbs was 0.03, now 0.02; tap U07 marked bad since". */

@@ -12,7 +12,8 @@
 import { DEFAULT_SETTINGS } from './types';
 import { splineIntegrals } from './contourSpline';
 import { findRowOutliers, type TapVerdict } from './tapCheck';
-import type { Settings, Surface, SurfaceLoads, TapCp } from './types';
+import { inviscidShape } from './tapShape';
+import type { Geometry, Settings, Surface, SurfaceLoads, TapCp } from './types';
 
 /** A point of the contour: what integrateContour needs of a tap. */
 export interface ContourPoint {
@@ -285,7 +286,18 @@ export interface TapCheckContext {
   uCp?: Record<string, number>;
   /** Standard uncertainty of the tap positions along the contour, in chords. */
   positionU?: number;
+  /** Taps the engineer kept against the automatic test in this run (Settings.keptTaps): never
+   *  dropped as leaking or as outliers. A tap marked bad is dropped all the same. */
+  keep?: ReadonlySet<string>;
+  /** The model's geometry and the run's α: rows of SHAPE_MIN_ROW taps or more are also judged
+   *  against the fitted inviscid shape (app/tapShape.ts, tapCheck.ts findRowOutliers `shape`). */
+  inviscid?: { geometry: Geometry; alphaDeg: number };
 }
+
+/** Fewest taps a row needs for the shape-aided prediction: the fit takes three parameters (α_eff,
+ *  a, b) from the row, and on 16-tap rows it dropped good taps of a viscous-like row more often
+ *  than the plain test (docs/TAP-JUDGEMENT.md §1). */
+export const SHAPE_MIN_ROW = 20;
 
 /** Finds bad taps in any number of rows. Each tap gets at most one reason, in this order:
  *  'marked' (in settings.badTaps), 'leak' (its wind-off zero departs from the median zero of all
@@ -313,7 +325,7 @@ export function detectBadTaps(
     if (withZero.length >= 3) {
       const med = median(withZero.map((t) => zeroRaw[t.id]));
       for (const t of withZero) {
-        if (!reason.has(t.id) && Math.abs(zeroRaw[t.id] - med) > limit) reason.set(t.id, 'leak');
+        if (!reason.has(t.id) && !context.keep?.has(t.id) && Math.abs(zeroRaw[t.id] - med) > limit) reason.set(t.id, 'leak');
       }
     }
   }
@@ -329,7 +341,16 @@ export function detectBadTaps(
     const chain = orderContour(list).map((t) => ({
       id: t.id, x: t.x, y: t.y, cp: t.cp, u: Math.max(floor, context.uCp?.[t.id] ?? 0),
     }));
-    for (const v of findRowOutliers(chain, { k: settings.tapCheckK, positionU: context.positionU })) {
+    let shape: NonNullable<Parameters<typeof findRowOutliers>[1]['shape']> | undefined;
+    if (context.inviscid && chain.length >= SHAPE_MIN_ROW) {
+      try {
+        const sh = inviscidShape(context.inviscid.geometry, chain);
+        shape = { alphaDeg: context.inviscid.alphaDeg, cp: sh.cp, u: sh.u };
+      } catch {
+        shape = undefined; // a geometry the panel method cannot solve: the plain test alone
+      }
+    }
+    for (const v of findRowOutliers(chain, { k: settings.tapCheckK, positionU: context.positionU, keep: context.keep, shape })) {
       reason.set(v.id, 'outlier');
       verdicts.set(v.id, { predicted: v.predicted, residual: v.residual, u: v.u, score: v.score });
     }

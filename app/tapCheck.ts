@@ -74,6 +74,12 @@ export interface OutlierOptions {
   positionU?: number;
   /** At most this fraction of the row is dropped (default ¼). */
   maxFraction?: number;
+  /** Taps the engineer kept against the test (Settings.keptTaps): judged and used to predict their
+   *  neighbours as any tap, never dropped. */
+  keep?: ReadonlySet<string>;
+  /** The inviscid shape at the chain's taps (app/tapShape.ts, in chain order) and the run's α:
+   *  the prediction is then also made on the difference from the fitted shape (withShape). */
+  shape?: { alphaDeg: number; cp(alphaDeg: number): ArrayLike<number>; u(alphaDeg: number): ArrayLike<number> };
 }
 
 /** Fewest taps a row needs to be judged (the test is built and checked for 12–200 taps a row). */
@@ -183,20 +189,90 @@ export function judgeChain(chain: readonly JudgedTap[], positionU = 0): (TapVerd
 export function findRowOutliers(chain: readonly JudgedTap[], o: OutlierOptions): TapVerdict[] {
   if (chain.length < TAP_CHECK_MIN_ROW) return [];
   const active = [...chain];
+  const at = chain.map((_, i) => i); // index in `chain` of each active tap
   const found: TapVerdict[] = [];
   const most = Math.floor(chain.length * (o.maxFraction ?? 0.25));
   while (active.length >= TAP_CHECK_MIN_ROW - 2 && found.length < most) {
-    const verdicts = judgeChain(active, o.positionU ?? 0);
+    const raw = judgeChain(active, o.positionU ?? 0);
+    const verdicts = o.shape ? withShape(active, at, raw, o.shape, o.positionU ?? 0) : raw;
     let worst = -1;
     for (let k = 0; k < verdicts.length; k++) {
       const v = verdicts[k];
-      if (v && v.score > o.k && (worst < 0 || v.score > verdicts[worst]!.score)) worst = k;
+      if (v && !o.keep?.has(v.id) && v.score > o.k && (worst < 0 || v.score > verdicts[worst]!.score)) worst = k;
     }
     if (worst < 0) break;
     found.push(verdicts[worst]!);
     active.splice(worst, 1);
+    at.splice(worst, 1);
   }
   return found;
+}
+
+/** Effective angles tried when the inviscid shape is fitted to a row: the run's α ± this, … */
+export const SHAPE_ALPHA_SPAN = 6;
+/** … in steps of this (degrees). */
+export const SHAPE_ALPHA_STEP = 0.25;
+
+/**
+ * The verdicts of the shape-aided prediction (OutlierOptions.shape): the inviscid Cp at the
+ * run's α, fitted to the row's taps as a + b·Cp_inv(α_eff) (least squares over α_eff within
+ * ±SHAPE_ALPHA_SPAN of the run's α, a and b free: the viscous loss of circulation and suction
+ * peak, an offset in the references), and the same leave-one-out prediction applied to the
+ * difference Cp − fit, which is smooth where Cp itself is steep (behind the leading edge). The
+ * difference's taps carry the channel uncertainty and b times the shape's own (app/tapShape.ts).
+ * Tap by tap, the verdict of the two (on Cp itself or on the difference) with the smaller combined
+ * uncertainty is taken: the choice is made on the uncertainty, never on the residual.
+ */
+function withShape(
+  active: readonly JudgedTap[], at: readonly number[], raw: (TapVerdict | null)[], shape: NonNullable<OutlierOptions['shape']>, positionU: number,
+): (TapVerdict | null)[] {
+  const n = active.length;
+  let best: { sse: number; a: number; b: number; alpha: number; cp: ArrayLike<number> } = { sse: Infinity, a: 0, b: 0, alpha: shape.alphaDeg, cp: [] };
+  for (let ae = shape.alphaDeg - SHAPE_ALPHA_SPAN; ae <= shape.alphaDeg + SHAPE_ALPHA_SPAN + 1e-9; ae += SHAPE_ALPHA_STEP) {
+    const all = shape.cp(ae);
+    let sx = 0; let sy = 0; let sxx = 0; let sxy = 0;
+    for (let i = 0; i < n; i++) {
+      const v = all[at[i]];
+      sx += v; sy += active[i].cp; sxx += v * v; sxy += v * active[i].cp;
+    }
+    const den = n * sxx - sx * sx;
+    if (!(den > 0)) continue;
+    const b = (n * sxy - sx * sy) / den;
+    const a = (sy - b * sx) / n;
+    let sse = 0;
+    for (let i = 0; i < n; i++) sse += (active[i].cp - a - b * all[at[i]]) ** 2;
+    if (sse < best.sse) best = { sse, a, b, alpha: ae, cp: all };
+  }
+  // A shape that does not even rise with the measured Cp (b ≤ 0) says nothing about the row.
+  if (!(best.b > 0) || !Number.isFinite(best.sse)) return raw;
+  const uShape = shape.u(best.alpha);
+  const fit = (i: number) => best.a + best.b * best.cp[at[i]];
+  const diff = active.map((t, i) => ({ ...t, cp: t.cp - fit(i), u: Math.hypot(t.u, best.b * uShape[at[i]]) }));
+  const viaShape = judgeChain(diff, positionU);
+  return raw.map((r, i) => {
+    const v = viaShape[i];
+    if (!v) return r;
+    if (r && !(v.u < r.u)) return r;
+    const predicted = v.predicted + fit(i);
+    const residual = active[i].cp - predicted;
+    return { id: v.id, cp: active[i].cp, predicted, residual, u: v.u, score: v.u > 0 ? Math.abs(residual) / v.u : Infinity };
+  });
+}
+
+/** A keep decision (Settings.keptTaps): "C07@12" keeps tap C07 in run 12 against the automatic
+ *  test. The tap id is everything before the last '@'. */
+export function keptKey(tapId: string, run: number): string {
+  return `${tapId}@${run}`;
+}
+
+/** The taps kept against the automatic test in one run (entries "tap@run" of that run). */
+export function keptFor(keptTaps: readonly string[] | undefined, run: number): Set<string> {
+  const out = new Set<string>();
+  for (const e of keptTaps ?? []) {
+    const at = e.lastIndexOf('@');
+    if (at > 0 && Number(e.slice(at + 1)) === run) out.add(e.slice(0, at));
+  }
+  return out;
 }
 
 /** What a row's highest reading says about the references. */

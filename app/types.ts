@@ -11,8 +11,11 @@
  *  bad-tap test by prediction uncertainty and the stagnation reference check of app/tapCheck.ts,
  *  the contour rule named in each row's loads; 0.5.0: the reduction's own errors and the
  *  transducer groups in the uncertainty, every interval on the corrected basis, corrected Γ, the
- *  per-run budget, the wake's q∞ = H∞ − p∞ when H∞ is measured). */
-export const CORE_VERSION = '0.6.0';
+ *  per-run budget, the wake's q∞ = H∞ − p∞ when H∞ is measured; 0.6.0: the bad-tap test also
+ *  predicts from the fitted inviscid shape (app/tapShape.ts) on rows of 20 taps or more, and keep
+ *  decisions (Settings.keptTaps) with each result's `kept`; 0.7.0: the 'spline' contour rule in the
+ *  square-root plane of the nose (app/contourSpline.ts), the default rule). */
+export const CORE_VERSION = '0.7.0';
 
 export type PressureUnit =
   | 'Pa' | 'kPa' | 'hPa' | 'mbar' | 'psi' | 'inH2O' | 'mmH2O' | 'mmHg' | 'torr';
@@ -189,7 +192,7 @@ export interface Settings {
   /** Stagnation check: the row's highest Cp above the isentropic Cp_stag by more than stagnationK
    *  standard uncertainties gives a reference flag (the tap is kept). */
   stagnationK: number;
-  /** Contour rule of the surface integration: 'spline' (the default since core 0.6.0: cubic
+  /** Contour rule of the surface integration: 'spline' (the default since core 0.7.0: cubic
    *  splines of the contour and the surface speed in the square-root plane of the nose,
    *  app/contourSpline.ts) or 'linear' (Cp linear between taps on straight segments). */
   contourRule: 'linear' | 'spline';
@@ -220,6 +223,10 @@ export interface Settings {
   correctionTolAlphaDeg: number;
   /** Taps the user marked bad (ids). */
   badTaps: string[];
+  /** Keep decisions against the automatic bad-tap test, one per tap and run: "C07@12" keeps tap
+   *  C07 in run 12 (it is no longer dropped there as leaking or as an outlier; docs/TAP-JUDGEMENT.md
+   *  §5). Written by the inspector's keep button (audited as 'tap.keep'). */
+  keptTaps: string[];
 }
 
 export const DEFAULT_SETTINGS: Settings = {
@@ -245,6 +252,7 @@ export const DEFAULT_SETTINGS: Settings = {
   correctionTolEps: 0.006,
   correctionTolAlphaDeg: 0.25,
   badTaps: [],
+  keptTaps: [],
 };
 
 export type RunKind = 'zero' | 'data';
@@ -519,6 +527,9 @@ export interface RunResult {
   taps: TapCp[];
   /** Taps dropped, by hand or automatically (absent in results of core < 0.3.0). */
   dropped?: DroppedTap[];
+  /** Taps the engineer kept in this run against the automatic test (Settings.keptTaps), in setup
+   *  order; absent when none. */
+  kept?: string[];
   /** Section loads of each spanwise row (main row first). */
   rows: RowLoads[];
   /** Loads of the main row (uncorrected). */
@@ -609,8 +620,15 @@ export interface SessionConditions {
 
 /** A fault seen on most runs of a session (app/sessionFaults.ts). */
 export interface SessionFinding {
-  code: 'leaking-tap' | 'bad-tap';
+  /** 'leaking-tap' / 'bad-tap': a tap dropped alike on most runs; 'dead-channel' (no scatter at
+   *  all, or a model tap that reads with the wind on what it reads wind-off) and
+   *  'saturated-channel' (at its full scale): a channel fault seen in the statistics of the runs. */
+  code: 'leaking-tap' | 'bad-tap' | 'dead-channel' | 'saturated-channel';
+  /** The tap (or, for a channel finding, the id of what the channel measures, or the channel's
+   *  name for a reference channel). */
   tap: string;
+  /** Channel findings: the channel's name. */
+  channel?: string;
   /** Runs carrying it, and the data runs it was looked for on. */
   runs: number[];
   of: number;

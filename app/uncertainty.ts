@@ -217,6 +217,85 @@ class StreamDraw implements Draw {
 }
 
 /**
+ * The standard normal deviates of the stream seeded by `seed`, in blocks: exactly the z of
+ * successive Draw.normal calls (normal(mean, std) = mean + std·z), same uniforms, same polar pairs,
+ * same arithmetic, the second of a pair kept across blocks as Draw keeps it across calls — so a
+ * Monte Carlo can draw its inputs a block of draws at a time and keep the per-draw order.
+ */
+export class NormalStream {
+  private a: number;
+  private b: number;
+  private c: number;
+  private d: number;
+  private spare = 0;
+  private hasSpare = false;
+  constructor(seed: number) {
+    const [s0, s1, s2, s3] = seedState(seed);
+    this.a = s0 | 0;
+    this.b = s1 | 0;
+    this.c = s2 | 0;
+    this.d = s3 | 0;
+    if ((this.a | this.b | this.c | this.d) === 0) throw new RangeError('xoshiro128**: the all-zero state is not allowed');
+  }
+
+  /** The next `count` deviates into out[0, count). */
+  fill(out: Float64Array, count: number): void {
+    if (out.length < count) throw new RangeError(`NormalStream: ${count} deviates do not fit in ${out.length}`);
+    let i = 0;
+    if (count > 0 && this.hasSpare) {
+      out[i++] = this.spare;
+      this.hasSpare = false;
+    }
+    let { a, b, c, d } = this;
+    while (i < count) {
+      let u: number;
+      let v: number;
+      let s: number;
+      do {
+        // Two xoshiro128** steps (as StreamDraw.uniform01).
+        let m = Math.imul(b, 5);
+        let r = Math.imul((m << 7) | (m >>> 25), 9) >>> 0;
+        let t = b << 9;
+        c ^= a;
+        d ^= b;
+        b ^= c;
+        a ^= d;
+        c ^= t;
+        d = (d << 11) | (d >>> 21);
+        u = 2 * (r / 4294967296) - 1;
+        m = Math.imul(b, 5);
+        r = Math.imul((m << 7) | (m >>> 25), 9) >>> 0;
+        t = b << 9;
+        c ^= a;
+        d ^= b;
+        b ^= c;
+        a ^= d;
+        c ^= t;
+        d = (d << 11) | (d >>> 21);
+        v = 2 * (r / 4294967296) - 1;
+        s = u * u + v * v;
+      } while (s >= 1 || s === 0);
+      const f = Math.sqrt((-2 * Math.log(s)) / s);
+      out[i++] = u * f;
+      if (i < count) out[i++] = v * f;
+      else {
+        this.spare = v * f;
+        this.hasSpare = true;
+      }
+    }
+    this.a = a;
+    this.b = b;
+    this.c = c;
+    this.d = d;
+  }
+}
+
+/** The first `count` deviates of NormalStream(seed), into `out`. */
+export function normalDeviates(seed: number, count: number, out: Float64Array): void {
+  new NormalStream(seed).fill(out, count);
+}
+
+/**
  * JCGM 101 Monte Carlo: call `model` `draws` times with one reusable Draw on a stream seeded by
  * `seed`, and return the coverage interval (95 %) of each output. The output keys are those of the
  * first draw; a key missing from a later draw counts as a failed (NaN) value for that draw.

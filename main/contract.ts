@@ -46,6 +46,10 @@ export const channels = {
   'runs.saveResults': z.object({ sessionId, results: z.array(z.record(z.string(), z.unknown())).min(1).max(100000) }).strict(),
   'runs.review': z.object({ sessionId, run: runNo, verdict: z.enum(['accepted', 'rejected']).nullable(), comment: z.string().max(4000) }).strict(),
   'taps.setBad': z.object({ sessionId, tapId: z.string().min(1).max(64), bad: z.boolean(), comment: z.string().max(4000).optional() }).strict(),
+  /** Settle a tap the reduction dropped automatically in a run (docs/TAP-JUDGEMENT.md §5): confirm
+   *  (it becomes a session bad tap) or keep it in that run; release takes a keep back. Audited;
+   *  the affected runs are then stale ("runs.reduce" with stale: true re-reduces them). */
+  'taps.settle': z.object({ sessionId, run: runNo, tapId: z.string().min(1).max(64), decision: z.enum(['confirm', 'keep', 'release']), comment: z.string().max(4000).optional() }).strict(),
   'settings.get': z.object({ sessionId }).strict(),
   'settings.update': z.object({ sessionId, patch: settingsPatchSchema, note: z.string().max(4000).optional() }).strict(),
   'session.summary': z.object({ sessionId }).strict(),
@@ -115,6 +119,7 @@ export interface Results {
   'runs.saveResults': { saved: number[] };
   'runs.review': { ok: true };
   'taps.setBad': { settings: Settings };
+  'taps.settle': { settings: Settings; stale: number[] };
   'settings.get': Settings;
   'settings.update': Settings;
   'session.summary': SessionSummary;

@@ -32,6 +32,9 @@ export interface TapNote {
   comment: string;
   actor: string;
   at: string;
+  /** An automatic drop the engineer settled (docs/TAP-JUDGEMENT.md §5): 'confirm' (then `bad`),
+   *  'keep' or 'release' in `run`, with the drop's reason as the reduction gave it. */
+  settled?: { decision: 'confirm' | 'keep' | 'release'; run: number; reason: string | null; residual: number | null; u: number | null };
 }
 
 export interface DaySheetArgs {
@@ -146,6 +149,7 @@ const SETTING_WORDS: { key: keyof Settings; words: string; show: (s: Settings) =
   { key: 'mcDraws', words: 'Uncertainty', show: (s) => (s.mcDraws ? `Monte Carlo, ${s.mcDraws} draws, seed ${s.mcSeed}` : 'not computed') },
   { key: 'mcSeed', words: 'Monte Carlo seed', show: (s) => String(s.mcSeed) },
   { key: 'badTaps', words: 'Taps marked bad', show: (s) => (s.badTaps.length ? [...s.badTaps].sort().join(', ') : 'none') },
+  { key: 'keptTaps', words: 'Taps kept against the automatic test (tap@run)', show: (s) => ((s.keptTaps ?? []).length ? [...s.keptTaps].sort().join(', ') : 'none') },
   { key: 'maskellTheta', words: 'Maskell blockage factor θ', show: (s) => String(s.maskellTheta) },
   { key: 'wallFitResidualCp', words: 'Wall-signature fit used up to', show: (s) => `rms residual ${s.wallFitResidualCp} in Cp` },
   { key: 'stallTeCp', words: 'Past stall (automatic choice) when', show: (s) => `rearmost upper tap Cp ≤ ${s.stallTeCp}` },
@@ -154,12 +158,17 @@ const SETTING_WORDS: { key: keyof Settings; words: string; show: (s: Settings) =
 ];
 
 /** The settings in which a stored result's reduction differs from the current ones, by key, in
- *  words ("Lift cross-check, absolute: 0.03 in cl (now 0.02 in cl)"). */
-function settingsDiffs(used: Partial<Settings> | undefined, current: Settings): { key: keyof Settings; text: string }[] {
+ *  words ("Lift cross-check, absolute: 0.03 in cl (now 0.02 in cl)"). `run`: keep decisions
+ *  (keptTaps, tap@run) of other runs do not count. */
+function settingsDiffs(used: Partial<Settings> | undefined, current: Settings, run?: number): { key: keyof Settings; text: string }[] {
   const u = { ...DEFAULT_SETTINGS, ...(used ?? {}) } as Settings;
+  // Keep decisions (tap@run) of other runs do not concern this run's result.
+  const kept = (list: readonly string[] | undefined) => [...(list ?? [])]
+    .filter((e) => run === undefined || e.endsWith(`@${run}`)).sort().join();
   const same = (k: keyof Settings) => (k === 'badTaps'
     ? [...u.badTaps].sort().join() === [...current.badTaps].sort().join()
-    : JSON.stringify(u[k]) === JSON.stringify(current[k]));
+    : k === 'keptTaps' ? kept(u.keptTaps) === kept(current.keptTaps)
+      : JSON.stringify(u[k]) === JSON.stringify(current[k]));
   return settingWords(current)
     .filter((w) => !(w.key === 'mcSeed' && u.mcDraws === 0 && current.mcDraws === 0))
     .filter((w) => !same(w.key))
@@ -171,23 +180,24 @@ function settingsDiffs(used: Partial<Settings> | undefined, current: Settings): 
  * words ("Lift cross-check, absolute: 0.03 in cl (now 0.02 in cl)"). Empty: reduced with the
  * current settings.
  */
-export function settingsDifferences(used: Partial<Settings> | undefined, current: Settings): string[] {
-  return settingsDiffs(used, current).map((d) => d.text);
+export function settingsDifferences(used: Partial<Settings> | undefined, current: Settings, run?: number): string[] {
+  return settingsDiffs(used, current, run).map((d) => d.text);
 }
 
 /** Why one stored result is stale, by cause (app/stale.ts's mark where the row carries one, and
  *  the settings printed on this sheet): `short` for the run table's status cell, `long` in words
  *  for the settings section. Both empty when the result is current. */
-export function staleCauses(mark: StaleMark | null | undefined, used: Partial<Settings> | undefined, current: Settings):
+export function staleCauses(mark: StaleMark | null | undefined, used: Partial<Settings> | undefined, current: Settings, run?: number):
 { short: string[]; long: string[] } {
-  const diffs = used ? settingsDiffs(used, current) : [];
-  const settingDiffs = diffs.filter((d) => d.key !== 'badTaps').map((d) => d.text);
+  const diffs = used ? settingsDiffs(used, current, run) : [];
+  const tapKey = (k: keyof Settings) => k === 'badTaps' || k === 'keptTaps';
+  const settingDiffs = diffs.filter((d) => !tapKey(d.key)).map((d) => d.text);
   // The mark's own words for settings this sheet did not compare (no full result at hand).
   const markSettings = (mark?.settings ?? []).filter((k) => !diffs.some((d) => d.key === k));
   const settingsLong = [...settingDiffs, ...(mark?.reasons ?? []).filter((r) => markSettings.some((k) => r.startsWith(`${k} was `)))];
   const tapLong = mark
-    ? mark.reasons.filter((r) => /^taps? .* (marked bad since|no longer marked bad)$/.test(r))
-    : diffs.filter((d) => d.key === 'badTaps').map((d) => d.text);
+    ? mark.reasons.filter((r) => /^taps? .* (marked bad since|no longer marked bad|kept in this run against the automatic test since|no longer kept in this run)$/.test(r))
+    : diffs.filter((d) => tapKey(d.key)).map((d) => d.text);
   const zeroLong = mark?.zeros.length ? mark.reasons.filter((r) => /^wind-off zero runs? /.test(r)) : [];
   const short: string[] = [];
   if (settingsLong.length) short.push('other settings');
@@ -212,7 +222,7 @@ function staleByRun(args: DaySheetArgs, settings: Settings): Map<number, { short
   const out = new Map<number, { short: string[]; long: string[] }>();
   for (const row of args.runs) {
     if (row.kind !== 'data' || !row.result) continue;
-    const c = staleCauses(row.stale, used.get(row.run), settings);
+    const c = staleCauses(row.stale, used.get(row.run), settings, row.run);
     if (c.short.length) out.set(row.run, c);
   }
   return out;
@@ -673,21 +683,41 @@ function flaggedList(args: DaySheetArgs, tz: string): string {
   return parts.join('\n');
 }
 
+/** An automatic drop in words: "outlier: residual +0.210, k·u 0.048" or "leak at wind-off". */
+function droppedWords(s: NonNullable<TapNote['settled']>): string {
+  const what = s.reason ? badTapWords(s.reason) : 'dropped';
+  return s.residual !== null && s.u !== null && Number.isFinite(s.residual) && Number.isFinite(s.u)
+    ? `${what}: residual ${s.residual >= 0 ? '+' : '−'}${Math.abs(s.residual).toFixed(3)} Cp, u ${s.u.toFixed(3)} Cp`
+    : what;
+}
+
 /** Every bad tap: those the engineer marked (with the reason given and who gave it), and those
  *  the reduction dropped by itself (with its reason and the runs). */
 function badTaps(args: DaySheetArgs, settings: Settings, tz: string): string {
   const latest = new Map<string, TapNote>();
-  for (const n of args.tapNotes ?? []) latest.set(n.tapId, n);
+  // Keep decisions (tap@run) are per run; the latest of each tap and run counts.
+  const keeps = new Map<string, TapNote>();
+  for (const n of args.tapNotes ?? []) {
+    if (n.settled && n.settled.decision !== 'confirm') keeps.set(`${n.tapId}@${n.settled.run}`, n);
+    else latest.set(n.tapId, n);
+  }
   const marked = [...settings.badTaps].sort();
   const items = marked.map((id) => {
     const n = latest.get(id);
     const why = n?.bad ? (n.comment ? escapeHtml(n.comment) : 'no reason given') : 'in the session settings (no note)';
     const who = n?.bad ? ` — ${escapeHtml(personName(n.actor))}, ${escapeHtml(localTime(n.at, tz))}` : '';
-    return `<li><b>${escapeHtml(id)}</b>, marked bad by the engineer: ${why}${who}</li>`;
+    const s = n?.bad ? n.settled : undefined;
+    const confirmed = s ? `, confirming the reduction's automatic drop in run ${s.run} (${escapeHtml(droppedWords(s))})` : '';
+    return `<li><b>${escapeHtml(id)}</b>, marked bad by the engineer${confirmed}: ${why}${who}</li>`;
   });
   const restored = [...latest.values()].filter((n) => !n.bad && !settings.badTaps.includes(n.tapId));
   for (const n of restored) {
     items.push(`<li><b>${escapeHtml(n.tapId)}</b>, restored to good: ${n.comment ? escapeHtml(n.comment) : 'no reason given'} — ${escapeHtml(personName(n.actor))}, ${escapeHtml(localTime(n.at, tz))}</li>`);
+  }
+  const keptNow = new Set(settings.keptTaps ?? []);
+  for (const [key, n] of [...keeps].sort((a, b) => a[0].localeCompare(b[0]))) {
+    if (!keptNow.has(key) || !n.settled) continue;
+    items.push(`<li><b>${escapeHtml(n.tapId)}</b>, kept in run ${n.settled.run} by the engineer against the reduction's automatic drop (${escapeHtml(droppedWords(n.settled))}): ${n.comment ? escapeHtml(n.comment) : 'no reason given'} — ${escapeHtml(personName(n.actor))}, ${escapeHtml(localTime(n.at, tz))}</li>`);
   }
   const auto = new Map<string, { reason: string; runs: number[] }>();
   for (const r of args.results ?? []) {

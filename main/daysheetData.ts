@@ -9,14 +9,25 @@ import type { SessionSummary } from '../app/types';
 
 /** Tap overrides with the reasons given, oldest first, from the audit trail. */
 export function tapNotes(store: Store, sessionId: number): TapNote[] {
+  const num = (x: unknown) => (typeof x === 'number' && Number.isFinite(x) ? x : null);
   return store.auditTrail(sessionId)
-    .filter((a) => a.action === 'tap.bad' || a.action === 'tap.good')
-    .map((a) => {
-      const d = (a.detail ?? {}) as { tapId?: unknown; bad?: unknown; comment?: unknown };
-      return {
-        tapId: String(d.tapId ?? ''), bad: a.action === 'tap.bad', comment: typeof d.comment === 'string' ? d.comment : '',
+    .filter((a) => a.action === 'tap.bad' || a.action === 'tap.good' || a.action === 'tap.confirm' || a.action === 'tap.keep' || a.action === 'tap.release')
+    .map((a): TapNote => {
+      const d = (a.detail ?? {}) as { tapId?: unknown; bad?: unknown; comment?: unknown; run?: unknown; suggestion?: { reason?: unknown; residual?: unknown; u?: unknown } | null };
+      const note: TapNote = {
+        tapId: String(d.tapId ?? ''), bad: a.action === 'tap.bad' || a.action === 'tap.confirm', comment: typeof d.comment === 'string' ? d.comment : '',
         actor: a.actor, at: a.at,
       };
+      if (a.action === 'tap.confirm' || a.action === 'tap.keep' || a.action === 'tap.release') {
+        note.settled = {
+          decision: a.action.slice(4) as 'confirm' | 'keep' | 'release',
+          run: Number(d.run ?? a.run),
+          reason: typeof d.suggestion?.reason === 'string' ? d.suggestion.reason : null,
+          residual: num(d.suggestion?.residual),
+          u: num(d.suggestion?.u),
+        };
+      }
+      return note;
     })
     .filter((n) => n.tapId !== '');
 }
@@ -31,7 +42,11 @@ export interface SheetOptions {
 
 /** The session-level findings (app/sessionFaults.ts) in the sheet's words: a note each, not a hold. */
 function sheetFindings(summary: SessionSummary): SessionFinding[] {
-  return (summary.findings ?? []).map((f) => ({ severity: 'warn', title: `${flagLabel(f.code)}, tap ${f.tap}`, detail: f.text }));
+  const title = (f: SessionSummary['findings'] extends (infer T)[] | undefined ? T : never) => (
+    f.code === 'dead-channel' ? `Dead channel ${f.channel ?? f.tap}`
+      : f.code === 'saturated-channel' ? `Saturated channel ${f.channel ?? f.tap}`
+        : `${flagLabel(f.code)}, tap ${f.tap}`);
+  return (summary.findings ?? []).map((f) => ({ severity: 'warn', title: title(f), detail: f.text }));
 }
 
 /** The arguments of the day sheet of one stored session. */

@@ -15,6 +15,7 @@ import {
 import type { Envelope } from './wire';
 import { CORE_VERSION, type RunResult } from '../app/types';
 import { prepareRuns } from '../app/reduce';
+import { keptFor } from '../app/tapCheck';
 import { isLogError } from '../app/log/errors';
 import { INDEX_FILE, LONG_LOG_DEFAULT, SETUP_FILE } from '../app/log/session';
 import { parseRunIndexDetailed } from '../app/log/runIndex';
@@ -577,6 +578,24 @@ export function createHandlers(ctx: HandlerContext): Handlers {
       const taps = new Set(store.getSetup(sessionId).taps.map((t) => t.id));
       if (!taps.has(tapId)) fail('validation', `Invalid payload for "taps.setBad": tapId: "${tapId}" is not a tap of session ${sessionId}`);
       return { settings: store.setTapBad(sessionId, tapId, bad, actor, comment) };
+    },
+    'taps.settle': async ({ sessionId, run, tapId, decision, comment }) => {
+      const where = `Invalid payload for "taps.settle"`;
+      if (!store.getSetup(sessionId).taps.some((t) => t.id === tapId)) fail('validation', `${where}: tapId: "${tapId}" is not a tap of session ${sessionId}`);
+      const row = store.listRuns(sessionId).find((r) => r.run === run);
+      if (!row || row.kind !== 'data') fail('validation', `${where}: run: run ${run} is ${row ? 'a wind-off zero' : `not a run of session ${sessionId}`}`);
+      const latest = store.latestResult(sessionId, run);
+      let suggestion: Record<string, unknown> | null = null;
+      if (decision === 'release') {
+        if (!keptFor(store.getSettings(sessionId).keptTaps, run).has(tapId)) fail('validation', `${where}: tap ${tapId} is not kept in run ${run}`);
+      } else {
+        const drop = latest?.dropped?.find((d) => d.id === tapId && d.by === 'auto');
+        if (!drop) fail('validation', `${where}: tap ${tapId} was not dropped automatically in the latest result of run ${run}`);
+        suggestion = { ...drop };
+      }
+      const settings = store.settleTap(sessionId, run, tapId, decision, actor, comment ?? '', suggestion);
+      changed('sessions');
+      return { settings, stale: staleRuns(store, sessionId) };
     },
     'settings.get': async ({ sessionId }) => store.getSettings(sessionId),
     'settings.update': async ({ sessionId, patch, note }) => {

@@ -70,21 +70,29 @@ function reduceHere(setup: Setup, zeroed: ZeroedRun[], settings: Settings, tell:
   });
 }
 
-/** Threads for reducing `runs` runs of `draws` Monte Carlo draws each: none below about a second
- *  of work, nor with fewer than four cores; else one per core, up to four. Measured here (2
- *  cores): new threads start in ~0.2 s bundled (~0.5 s from the sources) and must compile the core
- *  afresh (~0.9 s), so a day of 250 runs took 3.8 s on two threads against 3.0 s on the calling
- *  thread; the threads only pay off with more cores. */
+/** Threads for reducing `runs` runs of `draws` Monte Carlo draws each. With four cores or more and
+ *  about a second of work: one per core, up to four (the calling thread only hands out and
+ *  collects). With fewer cores none: measured here (2 cores, 82 data runs of the 100-run bench
+ *  session, compiled build, other work on the machine, load 3.3–5.1), this thread alone 1.99 /
+ *  3.46 / 3.96 s against 4.46 / 4.48 / 5.25 s with one thread beside it (reduceBeside, workers: 1),
+ *  which spent ~1 s more CPU (its own compile of the core, a cold start). Before the columns
+ *  Monte Carlo, two threads with the calling thread idle took 3.8 s for 250 runs against 3.0 s. */
 export function reduceWorkersFor(runs: number, draws: number): number {
-  if (runs < 8 || runs * Math.max(draws, 25) < 40000) return 0;
+  // RAKELINE_REDUCE_THREADS=N sets the number (0: this thread only), for measuring.
+  const forced = Number(process.env.RAKELINE_REDUCE_THREADS ?? '');
+  if (process.env.RAKELINE_REDUCE_THREADS && Number.isInteger(forced) && forced >= 0) return Math.min(forced, 8);
+  const work = runs * Math.max(draws, 25);
   const cores = availableParallelism();
-  return cores < 4 ? 0 : Math.min(4, cores);
+  if (cores >= 4) return runs < 8 || work < 40000 ? 0 : Math.min(4, cores);
+  void work;
+  return 0;
 }
 
 /**
  * As reduceStoredSession, but a large reduction runs on worker threads (main/importWorker.ts, the
- * same pure core, so the very same results) and the calling thread stays free meanwhile; only
- * reading the store and saving the results happen here. `workers`: a number (0 = this thread) or
+ * same pure core, so the very same results): with two threads or more the calling thread stays
+ * free meanwhile (only reading the store and saving the results happen here); with one, the
+ * calling thread reduces beside it (reduceBeside). `workers`: a number (0 = this thread) or
  * 'auto' (default, reduceWorkersFor). Falls back to this thread if the threads cannot start.
  */
 export async function reduceStoredSessionAsync(
@@ -96,8 +104,10 @@ export async function reduceStoredSessionAsync(
   const total = zeroed.length;
   const tell = progressOf(opts, total);
   const workers = opts.workers === undefined || opts.workers === 'auto' ? reduceWorkersFor(total, settings.mcDraws) : opts.workers;
-  const results = (workers > 0 && total > 1 ? await reduceOnThreads(setup, zeroed, settings, workers, tell) : null)
-    ?? reduceHere(setup, zeroed, settings, tell);
+  const results = workers === 1 && total > 1
+    ? await reduceBeside(setup, zeroed, settings, tell)
+    : (workers > 1 && total > 1 ? await reduceOnThreads(setup, zeroed, settings, workers, tell) : null)
+      ?? reduceHere(setup, zeroed, settings, tell);
   return storeResults(store, sessionId, results, opts);
 }
 
@@ -135,11 +145,83 @@ async function reduceOnThreads(
   }
 }
 
+/** Runs per message to the thread of reduceBeside. */
+const BESIDE_CHUNK = 4;
+/** How the last reduceBeside shared its runs (for tests). */
+export const besideShare = { thread: 0, here: 0 };
+
+/**
+ * The runs reduced by this thread and one worker thread together: this thread takes runs from the
+ * front one at a time, the thread chunks of BESIDE_CHUNK from the back (two chunks in flight, so
+ * it never waits for this thread), until they meet; results in run order. This thread yields
+ * between its runs so the thread's replies are taken as they come. A chunk the thread did not
+ * reduce (it failed to start or stopped, or the core refused a run there) is reduced here
+ * afterwards, in run order, so a refused run gives the error it gives on this thread.
+ */
+async function reduceBeside(setup: Setup, zeroed: ZeroedRun[], settings: Settings, tell: (done: number) => void): Promise<RunResult[]> {
+  const total = zeroed.length;
+  const out: RunResult[] = new Array(total);
+  let front = 0;
+  let back = total;
+  let done = 0;
+  const failed: [number, number][] = [];
+  const inFlight = new Set<Promise<void>>();
+  besideShare.thread = 0;
+  besideShare.here = 0;
+  let pool: ImportPool | null = null;
+  try {
+    pool = new ImportPool(1);
+  } catch (e) {
+    process.emitWarning(`rakeline: reduction thread unavailable (${e instanceof Error ? e.message : String(e)}); reducing on the main thread`);
+  }
+  const give = (): void => {
+    if (!pool || pool.broken || back - front <= BESIDE_CHUNK) return;
+    const lo = back - BESIDE_CHUNK;
+    const hi = back;
+    back = lo;
+    const p: Promise<void> = pool.reduce(setup, zeroed.slice(lo, hi), settings).then(
+      (r) => {
+        for (let i = 0; i < r.length; i++) out[lo + i] = r[i];
+        done += r.length;
+        besideShare.thread += r.length;
+        tell(done);
+      },
+      () => { failed.push([lo, hi]); },
+    ).finally(() => {
+      inFlight.delete(p);
+      give();
+    });
+    inFlight.add(p);
+  };
+  try {
+    give();
+    give();
+    while (front < back) {
+      out[front] = reduceRun(setup, zeroed[front], settings);
+      front++;
+      tell(++done);
+      if (inFlight.size) await new Promise<void>((r) => setImmediate(r));
+    }
+    while (inFlight.size) await Promise.all([...inFlight]);
+  } finally {
+    if (pool) await pool.close();
+  }
+  besideShare.here = total - besideShare.thread;
+  failed.sort((a, b) => a[0] - b[0]);
+  for (const [lo, hi] of failed) {
+    for (let k = lo; k < hi; k++) {
+      out[k] = reduceRun(setup, zeroed[k], settings);
+      tell(++done);
+    }
+  }
+  return out;
+}
+
 /** Session summary from the latest stored result of every data run. Runs a reviewer rejected are
  *  left out unless includeRejected. */
 export function sessionSummary(store: Store, sessionId: number, opts: { includeRejected?: boolean } = {}): SessionSummary {
   const setup = store.getSetup(sessionId);
   const rejected = opts.includeRejected ? new Set<number>() : store.rejectedRuns(sessionId);
   const results = store.latestDigests(sessionId).filter((r) => opts.includeRejected || !rejected.has(r.run));
-  return summariseSession(setup, results, store.getIndex(sessionId));
+  return summariseSession(setup, results, store.getIndex(sessionId), store.getAveraged(sessionId));
 }

@@ -20,6 +20,7 @@
 // fixed-width packing are common practice, no source.
 //
 // Pure module (no Node APIs): used by the import worker threads and by the store.
+import { sizeClass } from '../app/bufferPool';
 
 
 /** Where one channel's bytes are in a run's packed buffer, and how to read them. */
@@ -67,7 +68,8 @@ export class PackedRun {
   readonly parts: ChannelPart[] = [];
   /** `spare`: a used buffer to pack into if it is large enough (app/bufferPool.ts). */
   constructor(capacity = 1 << 16, spare?: ArrayBuffer | null) {
-    this.bytes = spare && spare.byteLength >= capacity ? new Uint8Array(spare) : new Uint8Array(capacity);
+    // A fresh buffer in a size class (app/bufferPool.ts), so that it fits the next runs once reused.
+    this.bytes = spare && spare.byteLength >= capacity ? new Uint8Array(spare) : new Uint8Array(sizeClass(capacity));
   }
   reserve(extra: number): Uint8Array {
     const need = this.length + extra;

@@ -19,7 +19,7 @@ export function staleMarks(store: Store, sessionId: number, index: RunInfo[] = s
     const zeros = [...zeroRunsFor(index, new Set([info.run]))]
       .filter((z) => zeroRuns.has(z))
       .map((z) => ({ run: z, storedAt: storedAt.get(z) ?? null }));
-    const mark = staleMark({ used: r.settings, current, reducedAt: r.reducedAt, zeros });
+    const mark = staleMark({ used: r.settings, current, reducedAt: r.reducedAt, zeros, run: info.run });
     if (mark) out.set(info.run, mark);
   }
   return out;

@@ -559,6 +559,10 @@ export class Store {
     }
     const taps = new Set(setup.taps.map((t) => t.id));
     for (const t of r.data.badTaps ?? []) if (!taps.has(t)) throw new Error(`invalid settings: badTaps: tap "${t}" is not in the setup`);
+    for (const e of r.data.keptTaps ?? []) {
+      const t = e.slice(0, e.lastIndexOf('@'));
+      if (!taps.has(t)) throw new Error(`invalid settings: keptTaps: tap "${t}" (in "${e}") is not in the setup`);
+    }
     this.db.transaction(() => {
       const auditId = this.audit(actor, 'settings.update', sessionId, null, { patch: r.data, note });
       this.db.prepare('INSERT INTO settings_changes (session_id, patch_json, note, actor, at, audit_id) VALUES (?, ?, ?, ?, ?, ?)')
@@ -575,6 +579,36 @@ export class Store {
       const auditId = this.audit(actor, bad ? 'tap.bad' : 'tap.good', sessionId, null, { tapId, bad, comment });
       this.db.prepare('INSERT INTO tap_overrides (session_id, tap_id, bad, comment, actor, at, audit_id) VALUES (?, ?, ?, ?, ?, ?, ?)')
         .run(sessionId, tapId, bad ? 1 : 0, comment, actor, now(), auditId);
+    }).immediate();
+    return this.getSettings(sessionId);
+  }
+
+  /** The engineer settles a tap the reduction dropped automatically in one run (issue 9 part 3,
+   *  docs/TAP-JUDGEMENT.md §5): 'confirm' marks it bad for the session (a tap override, audited as
+   *  'tap.confirm'); 'keep' records "tap@run" in Settings.keptTaps (audited as 'tap.keep') so the
+   *  automatic test no longer drops it in that run; 'release' takes a keep back ('tap.release').
+   *  `suggestion` (the automatic drop's reason and figures) goes into the audit detail. */
+  settleTap(
+    sessionId: number, run: number, tapId: string, decision: 'confirm' | 'keep' | 'release', actor: string,
+    comment = '', suggestion: Record<string, unknown> | null = null,
+  ): Settings {
+    this.assertWritable('settleTap');
+    const setup = this.getSetup(sessionId);
+    if (!setup.taps.some((t) => t.id === tapId)) throw new NotFoundError(`unknown tap "${tapId}" in session ${sessionId}`);
+    this.runRow(sessionId, run);
+    const detail = { tapId, run, decision, comment, suggestion };
+    this.db.transaction(() => {
+      const auditId = this.audit(actor, `tap.${decision}`, sessionId, run, detail);
+      if (decision === 'confirm') {
+        this.db.prepare('INSERT INTO tap_overrides (session_id, tap_id, bad, comment, actor, at, audit_id) VALUES (?, ?, ?, ?, ?, ?, ?)')
+          .run(sessionId, tapId, 1, comment, actor, now(), auditId);
+      } else {
+        const key = `${tapId}@${run}`;
+        const list = this.getSettings(sessionId).keptTaps ?? [];
+        const next = decision === 'keep' ? [...new Set([...list, key])] : list.filter((e) => e !== key);
+        this.db.prepare('INSERT INTO settings_changes (session_id, patch_json, note, actor, at, audit_id) VALUES (?, ?, ?, ?, ?, ?)')
+          .run(sessionId, encodeJson({ keptTaps: next }), comment, actor, now(), auditId);
+      }
     }).immediate();
     return this.getSettings(sessionId);
   }
@@ -1051,7 +1085,11 @@ export class ImportWriter {
         if (stored.sha256 === start.setupSource.sha256) this.report.unchangedFiles.push(SETUP_FILE);
       } else {
         this.report.unchangedFiles.push(SETUP_FILE);
-        this.indexChanged = store.latestSource(sid, INDEX_FILE)?.sha256 !== start.indexSource.sha256;
+        // Unchanged when these bytes are the latest stored copy, or were stored once before under
+        // this name (A → B → A again: the earlier source row serves, as for run logs).
+        this.indexChanged =
+          store.latestSource(sid, INDEX_FILE)?.sha256 !== start.indexSource.sha256 &&
+          store.sourceWithHash(sid, INDEX_FILE, start.indexSource.sha256) === undefined;
         if (!this.indexChanged) this.report.unchangedFiles.push(INDEX_FILE);
         else store.addSource(sid, start.indexSource, 'index', this.at);
         this.posBase = (db.prepare('SELECT COALESCE(MAX(index_pos), -1) + 1 AS p FROM runs WHERE session_id = ?').get(sid) as { p: number }).p;

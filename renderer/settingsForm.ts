@@ -3,7 +3,7 @@
 import { settingsPatchSchema } from '../main/contract';
 import type { CorrectionMethod, Settings } from '../app/types';
 
-export type NumKey = Exclude<keyof Settings, 'correction' | 'badTaps' | 'contourRule'>;
+export type NumKey = Exclude<keyof Settings, 'correction' | 'badTaps' | 'keptTaps' | 'contourRule'>;
 
 export interface NumField {
   key: NumKey;

@@ -9,7 +9,8 @@
 //              … --parser numpy --jobs 2
 //   reduce only: `rakeline reduce` on the imported database against `--reduce-only` on the
 //   baseline's own database.
-// Options (after --vs-numpy): --sizes 30,100 (a subset), --rounds N (default 3), --baseline FILE.
+// Options (after --vs-numpy): --sizes 30,100 (a subset), --rounds N (default 3), --baseline FILE,
+// --startup (the start-up figures only).
 import { spawnSync } from 'node:child_process';
 import { existsSync, readdirSync, rmSync, statSync, writeFileSync, mkdtempSync } from 'node:fs';
 import { loadavg, tmpdir, availableParallelism } from 'node:os';
@@ -143,6 +144,7 @@ export async function benchVsNumpy(argv: string[]): Promise<number> {
   const work = mkdtempSync(join(tmpdir(), 'rakeline-vs-numpy-'));
   try {
     startup(work);
+    if (argv.includes('--startup')) return 0;
     const folders = new Map<number, string>();
     for (const n of sizes) folders.set(n, session(n));
     const whole = new Map<string, Timed[]>();

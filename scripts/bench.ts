@@ -5,6 +5,8 @@
 //   one run re-reduced after a tap override; plus the default demo day reduced.
 // Options: --quick (a small session, for a smoke run), --keep (keep the databases; path printed),
 // --repeat N (imports of the large session, each into a new database; the median is the figure),
+// --stages (scripts/bench-stages.ts: the import's time stage by stage on one thread, on the
+// --vs-numpy session of --runs N runs, default 100; --files N its first N run logs),
 // --digits N (significant digits of the logged values, default 6; 0 = every digit), --fresh
 // (generate the session files again rather than reuse those kept in .bench/ from an earlier run;
 // generating the large session takes about a minute and a half and is not part of any figure).
@@ -30,11 +32,26 @@ if (args.has('--vs-numpy')) {
   const { benchVsNumpy } = await import('./bench-vs-numpy');
   process.exit(await benchVsNumpy(argv));
 }
+if (args.has('--stages')) {
+  const { benchStages } = await import('./bench-stages');
+  const runsArg = argv.indexOf('--runs');
+  const runs = runsArg >= 0 ? Number(argv[runsArg + 1]) : 100;
+  const filesArg = argv.indexOf('--files');
+  const folder = join('.bench', `session-${runs}r-96t-64p-40w-2000s-d6`);
+  if (!existsSync(join(folder, '.complete'))) {
+    console.error(`no ${folder}: run npm run bench -- --vs-numpy --sizes ${runs} once to write it`);
+    process.exit(2);
+  }
+  benchStages(folder, filesArg >= 0 ? Number(argv[filesArg + 1]) : 1e9);
+  process.exit(0);
+}
 const quick = args.has('--quick');
 const keep = args.has('--keep');
 if (args.has('--help')) {
   console.log('usage: npm run bench -- [--quick] [--keep] [--digits N]   or   npm run bench -- --vs-numpy [--sizes 30,100,300] [--rounds 3]\n' +
     '  --vs-numpy  Rakeline against the numpy/pandas baseline (../shared/bench/baseline_numpy.py), whole processes, interleaved\n' +
+    '              (add --startup for the start-up figures only)\n' +
+    '  --stages    where an import\'s time goes, stage by stage, one thread (--runs 100 the session, --files N the first N logs)\n' +
     '  --quick     a small session (smoke run)\n' +
     '  --keep      keep the generated files and databases (path printed)\n' +
     '  --digits N  significant digits of the logged sample values (default 6, like a scanner log; 0 = exact)\n' +

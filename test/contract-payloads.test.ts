@@ -37,6 +37,11 @@ const bad: Record<Channel, [unknown, string][]> = {
     [{ ...good, run: 2, verdict: 'accepted' }, 'comment'],
   ],
   'taps.setBad': [[{ ...good, tapId: 'U01', bad: 'yes' }, 'bad'], [{ ...good, tapId: '', bad: true }, 'tapId']],
+  'taps.settle': [
+    [{ ...good, run: 3, tapId: 'U01', decision: 'drop' }, 'decision'],
+    [{ ...good, tapId: 'U01', decision: 'keep' }, 'run'],
+    [{ ...good, run: 3, tapId: '', decision: 'confirm' }, 'tapId'],
+  ],
   'settings.get': [[{ sessionId: null }, 'sessionId']],
   'settings.update': [
     [{ ...good, patch: { spikeK: 0 } }, 'patch.spikeK'],

@@ -183,6 +183,26 @@ describe('re-import', () => {
     store.close();
   });
 
+  it('the run index back to bytes stored before (LF → CRLF → LF) re-imports cleanly', async () => {
+    // Found by test/import-fuzz.test.ts (seed -1792358101): the same A → B → A as above, for runs.csv.
+    const dir = tempDir();
+    const f = miniFolder(join(dir, 's'));
+    const store = freshStore(dir);
+    await importSessionFolder(store, f.dir);
+    const path = join(f.dir, 'runs.csv');
+    const lf = readFileSync(path, 'utf8');
+    editFile(path, (t) => t.replace(/\n/g, '\r\n'));
+    await importSessionFolder(store, f.dir);
+    editFile(path, () => lf);
+    const before = dbSnapshot(store);
+    const rep = await importSessionFolder(store, f.dir);
+    expect(rep.changedFiles).toEqual([]);
+    expect(rep.importedRuns).toEqual([]);
+    expect(rep.unchangedFiles).toContain('runs.csv');
+    expect(dbSnapshot(store)).toBe(before);
+    store.close();
+  });
+
   it('live acquisition: an index that only grew imports the new runs', async () => {
     const dir = tempDir();
     const f = miniFolder(join(dir, 's'), { runs: { dataRuns: 2 } });

@@ -15,7 +15,7 @@ import type { Setup } from '../types';
 import { channelToSI } from '../units';
 import { LogError, shown } from './errors';
 import { parseHeaderLine } from './csv';
-import type { BufferPool } from '../bufferPool';
+import { sizeClass, type BufferPool } from '../bufferPool';
 
 export const TIME_COLUMN = 't_s';
 export const RUN_COLUMN = 'run';
@@ -83,8 +83,9 @@ class RunBuffers {
   }
   /** A column of cap samples, on a buffer from the arena if it has one large enough. */
   private alloc(cap: number): Float64Array {
-    const b = this.arena?.take(cap * 8);
-    return b ? new Float64Array(b, 0, cap) : new Float64Array(cap);
+    if (!this.arena) return new Float64Array(cap);
+    const b = this.arena.take(cap * 8) ?? new ArrayBuffer(sizeClass(cap * 8));
+    return new Float64Array(b, 0, cap);
   }
   grow(): void {
     const cap = this.cap * 2;
@@ -347,7 +348,12 @@ class Scanner {
     throw new LogError({ file: this.file, line: lineNo, ...lab, expected: what, found: shown(text) });
   }
 
-  /** Read the sample lines of b[from, to); b[to − 1] is '\n'. */
+  /** Read the sample lines of b[from, to); b[to − 1] is '\n'. One pass over the bytes: each cell
+   *  is scanned, converted and stored in SI units at once — straight into the run's columns for a
+   *  one-run file (its buffer is grown before the line, so a line always fits), through a row
+   *  buffer for a long log (the run column decides where the row goes). Digit counts come from
+   *  positions, not counters. Every value is the same double as before (checked against the
+   *  earlier scanner, test/helpers/runParserBefore.ts, by test/import-identical.test.ts). */
   private lines(b: Uint8Array, from: number, to: number): void {
     let i = from;
     const nslot = this.ncols;
@@ -356,6 +362,7 @@ class Scanner {
     const nv = rv.length;
     const factors = this.factors;
     if (!this.sized) this.sizeFrom(b, i);
+    const single = this.single;
     while (i < to) {
       const lineNo = this.line + 1;
       let c = b[i];
@@ -370,6 +377,14 @@ class Scanner {
           continue;
         }
       }
+      // One-run file: the values go straight into column row n.
+      let cols: Float64Array[] | null = null;
+      let n = 0;
+      if (single !== null) {
+        if (single.n === single.cap) single.grow();
+        cols = single.cols;
+        n = single.n;
+      }
       let runNo = -1;
       for (let col = 0; col < nslot; col++) {
         const slot = sl[col];
@@ -380,27 +395,32 @@ class Scanner {
           const start = i;
           c = b[i];
           while (c === SP || c === TAB) c = b[++i];
-          let neg = false;
-          if (c === 45) {
-            neg = true;
-            c = b[++i];
-          } else if (c === 43) c = b[++i];
+          // The sign without a branch (half the cells of a pressure log are negative: a branch
+          // on it mispredicts at random); a '+' is rare.
+          const neg = +(c === 45);
+          i += neg;
+          c = b[i];
+          if (c === 43 && neg === 0) c = b[++i];
           let m = 0;
-          let nd = 0;
-          let frac = 0;
-          while (c >= 48 && c <= 57) {
-            m = m * 10 + (c - 48);
-            nd++;
-            c = b[++i];
+          const d0 = i;
+          let d = c - 48;
+          while (d >= 0 && d <= 9) {
+            m = m * 10 + d;
+            d = b[++i] - 48;
           }
+          let nd = i - d0;
+          let frac = 0;
+          c = b[i];
           if (c === 46) {
-            c = b[++i];
-            while (c >= 48 && c <= 57) {
-              m = m * 10 + (c - 48);
-              nd++;
-              frac++;
-              c = b[++i];
+            const f0 = ++i;
+            d = b[i] - 48;
+            while (d >= 0 && d <= 9) {
+              m = m * 10 + d;
+              d = b[++i] - 48;
             }
+            frac = i - f0;
+            nd += frac;
+            c = b[i];
           }
           if (nd === 0) this.badCell(b, start, col, lineNo);
           let e = 0;
@@ -425,15 +445,16 @@ class Scanner {
           e -= frac;
           let v: number;
           if (nd <= 15 && e >= -22 && e <= 22) {
-            v = e >= 0 ? m * POW10[e] : m / POW10[-e];
-            if (neg) v = -v;
+            v = (e >= 0 ? m * POW10[e] : m / POW10[-e]) * (1 - 2 * neg); // ×(−1) is exact: −v
           } else {
             v = Number(decoder.decode(b.subarray(start, i)));
             if (!Number.isFinite(v)) this.badCell(b, start, col, lineNo);
             if (m !== 0 && Math.abs(v) < MIN_NORMAL && slot >= 0) this.noteUnderflow(b, start, col, lineNo, v);
           }
-          if (slot >= 0) rv[slot] = v;
-          else if (slot === RUN) {
+          if (slot >= 0) {
+            if (cols !== null) cols[slot][n] = v * factors[slot];
+            else rv[slot] = v;
+          } else if (slot === RUN) {
             if (!Number.isInteger(v) || v < 0) {
               throw new LogError({ file: this.file, line: lineNo, column: RUN_COLUMN, expected: 'a run number (a whole number ≥ 0)', found: shown(this.cellText(b, start)) });
             }
@@ -458,24 +479,27 @@ class Scanner {
           i++;
         }
       }
-      let buf: RunBuffers;
-      if (this.single) buf = this.single;
-      else if (runNo === this.lastRun && this.lastBuf) buf = this.lastBuf;
-      else {
-        let r = this.byRun.get(runNo);
-        if (!r) {
-          r = new RunBuffers(nv, 256, this.opts.arena);
-          this.byRun.set(runNo, r);
+      if (single !== null) {
+        single.n = n + 1;
+      } else {
+        let buf: RunBuffers;
+        if (runNo === this.lastRun && this.lastBuf) buf = this.lastBuf;
+        else {
+          let r = this.byRun.get(runNo);
+          if (!r) {
+            r = new RunBuffers(nv, 256, this.opts.arena);
+            this.byRun.set(runNo, r);
+          }
+          buf = r;
+          this.lastRun = runNo;
+          this.lastBuf = r;
         }
-        buf = r;
-        this.lastRun = runNo;
-        this.lastBuf = r;
+        if (buf.n === buf.cap) buf.grow();
+        const bn = buf.n;
+        const bc = buf.cols;
+        for (let k = 0; k < nv; k++) bc[k][bn] = rv[k] * factors[k];
+        buf.n = bn + 1;
       }
-      if (buf.n === buf.cap) buf.grow();
-      const n = buf.n;
-      const cols = buf.cols;
-      for (let k = 0; k < nv; k++) cols[k][n] = rv[k] * factors[k];
-      buf.n = n + 1;
       this.samples++;
       this.line++;
     }

@@ -45,6 +45,7 @@ export const settingsSchema = z
     correctionTolEps: z.number().min(0).max(1),
     correctionTolAlphaDeg: z.number().min(0).max(10),
     badTaps: z.array(id()).max(10000),
+    keptTaps: z.array(z.string().min(3).max(80).regex(/^[^\s,"]+@\d+$/, 'tap@run, e.g. "C07@12"')).max(10000),
   })
   .strict();
 

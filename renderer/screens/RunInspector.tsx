@@ -4,13 +4,16 @@
 // mark it bad or restore it — the run is re-reduced at once in the worker, the change is shown,
 // then the override and the new result are stored through the contract, and every other data run
 // of the session (a bad tap is bad for the whole session) is re-reduced in main, with progress.
+// Taps the reduction dropped automatically are suggestions: the "Dropped taps" list beside the
+// manual ones confirms one (a session bad tap) or keeps it in this run (docs/TAP-JUDGEMENT.md §5),
+// through "taps.settle", then re-reduces the runs that became stale, with progress.
 // ←/→ and Page Up/Page Down step to the previous/next data run.
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import type { RunRowLike, Results } from '../../main/contract';
 import type { Interval, RunResult, TapCp } from '../../app/types';
 import { correctedMomentumCl } from '../../app/reduce';
 import { liftTolerance } from '../../app/crosscheck';
-import { flagLine } from '../../app/flags';
+import { badTapWords, flagLine } from '../../app/flags';
 import type { SessionData } from '../session';
 import { useApi, useStatus, quiet } from '../context';
 import { reduceInWorker } from '../workerClient';
@@ -27,6 +30,8 @@ import { fix, isNum, reMillions, sig, when } from '../format';
 export interface TapChange {
   tapId: string;
   bad: boolean;
+  /** Set for a settled automatic drop: what the engineer decided. */
+  decision?: 'confirm' | 'keep' | 'release';
   before: { cl: number; cd: number; cmc4: number; clMom: number };
   after: { cl: number; cd: number; cmc4: number; clMom: number };
   stored: boolean;
@@ -35,6 +40,14 @@ export interface TapChange {
 }
 
 const pick = (r: RunResult) => ({ cl: r.corrected.cl, cd: r.corrected.cd, cmc4: r.corrected.cmc4, clMom: r.clMomentum });
+
+/** What a change did, in words: "marked bad", "restored", "confirmed bad", "kept in this run"… */
+export function changeVerb(c: Pick<TapChange, 'bad' | 'decision'>): string {
+  if (c.decision === 'confirm') return 'confirmed bad (the automatic drop, now for the whole session)';
+  if (c.decision === 'keep') return 'kept in this run against the automatic test';
+  if (c.decision === 'release') return 'no longer kept: the automatic test judges it again';
+  return c.bad ? 'marked bad' : 'restored';
+}
 
 /** "cl 0.812 → 0.806, cd 0.01234 → 0.01240, cm −0.0901 → −0.0898" */
 export function changeText(c: Pick<TapChange, 'before' | 'after'>): string {
@@ -124,6 +137,37 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
         const fresh = await api.call('runs.get', { sessionId, run: runNo });
         setGot(fresh);
         if (fresh.result) setShown(fresh.result);
+      } finally {
+        setWorking(null);
+      }
+    }));
+  }, [api, sessionId, current, result, working, comment, reload, track]);
+
+  // Settle an automatic drop (confirm / keep) or take a keep back: stored and audited in main,
+  // then the runs it made stale (all of them for a confirm, this one for a keep) are re-reduced.
+  const settle = useCallback((tapId: string, decision: 'confirm' | 'keep' | 'release') => {
+    if (!result || current === null || working) return;
+    const runNo = current;
+    setWorking(tapId);
+    quiet(track(`Settling tap ${tapId} of run ${runNo}`, async () => {
+      try {
+        await api.call('taps.settle', { sessionId, run: runNo, tapId, decision, comment: comment.trim() || undefined });
+        const change: TapChange = { tapId, bad: decision === 'confirm', decision, before: pick(result), after: pick(result), stored: true, others: null };
+        setChanges((c) => [change, ...c]);
+        const taskId = newTaskId('reduce');
+        setTask(taskId);
+        let reduced = 0;
+        try {
+          reduced = (await api.call('runs.reduce', { sessionId, stale: true, taskId })).reduced;
+        } finally {
+          setTask(null);
+        }
+        await reload();
+        const fresh = await api.call('runs.get', { sessionId, run: runNo });
+        setGot(fresh);
+        if (fresh.result) setShown(fresh.result);
+        const after = fresh.result ? pick(fresh.result) : change.after;
+        setChanges((c) => c.map((x) => (x === change ? { ...x, after, others: Math.max(0, reduced - 1) } : x)));
       } finally {
         setWorking(null);
       }
@@ -221,7 +265,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
       <div className="inspector-slot" aria-live="polite">
         {last ? (
           <p className="change-line" role="status">
-            Tap <b>{last.tapId}</b> {last.bad ? 'marked bad' : 'restored'}: <span className="change-text">{changeText(last)}</span>
+            Tap <b>{last.tapId}</b> {changeVerb(last)}: <span className="change-text">{changeText(last)}</span>
             {last.stored ? <span className="muted"> · stored (audit kept)</span> : <span className="muted"> · storing…</span>}
             <span className="muted">{last.others === null ? ' · re-reducing the other runs of the session…' : ` · ${last.others} other run${last.others === 1 ? '' : 's'} of the session re-reduced with it`}</span>
           </p>
@@ -344,6 +388,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
           Bad or bridged taps ({badList.length}):{' '}
           {badList.length ? badList.map((t) => `${t.id} (${t.badReason ?? 'bridged'})`).join(', ') : 'none'}.
         </p>
+        <DroppedTaps result={result} working={working} onSettle={settle} />
         <div className="tap-list-scroll">
           <table className="taps">
             <thead><tr><th scope="col">tap</th><th scope="col">surface</th><th scope="col" className="num">x/c</th><th scope="col" className="num">Cp</th><th scope="col">state</th><th scope="col">override</th></tr></thead>
@@ -386,11 +431,85 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
           {changes.length > 1 ? (
             <>
               <h4>Overrides this visit</h4>
-              <ul className="small">{changes.map((c, i) => <li key={i}>{c.tapId} {c.bad ? 'marked bad' : 'restored'}: {changeText(c)}</li>)}</ul>
+              <ul className="small">{changes.map((c, i) => <li key={i}>{c.tapId} {changeVerb(c)}: {changeText(c)}</li>)}</ul>
             </>
           ) : null}
         </section>
       </div>
+    </div>
+  );
+}
+
+/** Residual and k·u of an automatic outlier drop: "+0.214 (k·u 0.041)". */
+function residualText(residual: number | undefined, u: number | undefined, k: number): [string, string] {
+  return [
+    isNum(residual) ? `${residual >= 0 ? '+' : '−'}${fix(Math.abs(residual), 3)}` : '–',
+    isNum(u) ? fix(k * u, 3) : '–',
+  ];
+}
+
+/** The taps this result left out, automatic drops (to confirm or keep) beside the manual ones, and
+ *  the taps kept in this run against the automatic test (to release). */
+export function DroppedTaps({ result, working, onSettle }: {
+  result: RunResult;
+  working: string | null;
+  onSettle(tapId: string, decision: 'confirm' | 'keep' | 'release'): void;
+}) {
+  const dropped = result.dropped ?? [];
+  const kept = result.kept ?? [];
+  const k = result.settings.tapCheckK;
+  const auto = dropped.filter((d) => d.by === 'auto');
+  const hand = dropped.filter((d) => d.by === 'hand');
+  if (!dropped.length && !kept.length) return <p className="small muted">No tap dropped in this run, automatically or by hand.</p>;
+  return (
+    <div className="dropped-taps" aria-label="Dropped taps">
+      <h4>Dropped taps of this run ({auto.length} automatic, {hand.length} by hand{kept.length ? `, ${kept.length} kept against the test` : ''})</h4>
+      <table className="taps">
+        <thead>
+          <tr><th scope="col">tap</th><th scope="col">dropped</th><th scope="col">reason</th><th scope="col" className="num">residual [Cp]</th><th scope="col" className="num">k·u [Cp]</th><th scope="col">decision</th></tr>
+        </thead>
+        <tbody>
+          {auto.map((d) => {
+            const [res, ku] = residualText(d.residual, d.u, k);
+            return (
+              <tr key={d.id} data-tap={d.id}>
+                <td>{d.id}</td>
+                <td>automatically (a suggestion)</td>
+                <td>{badTapWords(d.reason)}{isNum(d.predicted) ? `, predicted ${fix(d.predicted, 3)}` : ''}</td>
+                <td className="num">{res}</td>
+                <td className="num">{ku}</td>
+                <td>
+                  <button type="button" className="btn-small" disabled={working !== null} onClick={() => onSettle(d.id, 'confirm')} aria-label={`Confirm tap ${d.id} bad`}>Confirm bad</button>{' '}
+                  <button type="button" className="btn-small" disabled={working !== null} onClick={() => onSettle(d.id, 'keep')} aria-label={`Keep tap ${d.id} in this run`}>Keep in this run</button>
+                </td>
+              </tr>
+            );
+          })}
+          {hand.map((d) => (
+            <tr key={d.id} data-tap={d.id}>
+              <td>{d.id}</td>
+              <td>by hand</td>
+              <td>marked bad by a reviewer (whole session)</td>
+              <td className="num">–</td>
+              <td className="num">–</td>
+              <td className="muted">restore it in the tap list</td>
+            </tr>
+          ))}
+          {kept.map((id) => (
+            <tr key={id} data-tap={id}>
+              <td>{id}</td>
+              <td>kept</td>
+              <td>kept in this run by the engineer against the automatic test</td>
+              <td className="num">–</td>
+              <td className="num">–</td>
+              <td>
+                <button type="button" className="btn-small" disabled={working !== null} onClick={() => onSettle(id, 'release')} aria-label={`Let the test judge tap ${id} again`}>Let the test judge again</button>
+              </td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+      <p className="small muted">Confirm: the tap becomes a bad tap of the whole session and every run is re-reduced. Keep: the automatic test no longer drops it in this run only, which is re-reduced. Both are kept in the audit trail with the comment above.</p>
     </div>
   );
 }
