@@ -1,5 +1,5 @@
 // Higher-order contour integration of one chordwise row (REDUCTION.md §3), the 'spline' contour rule
-// (the default since core 0.7.0): the same three contour integrals as the linear rule,
+// (a setting; rebuilt in core 0.7.0): the same three contour integrals as the linear rule,
 //   ∮ Cp dx,  ∮ Cp dy,  ∮ Cp (x dx + y dy),
 // over the closed contour trailing-edge closure point → taps in contour order → trailing edge, with
 // the contour and Cp interpolated in a square-root plane that straightens the leading edge:
@@ -30,6 +30,9 @@
 // Measured on exact Joukowski sections (test/contour-rule.test.ts, docs/TAP-JUDGEMENT.md §3): worst
 // |Δcl| α −8…12° within 0.003 at 24 taps and 0.0006 at 48 on 9–15 % thick sections with 0–4 %
 // camber, better than the linear rule at 16, 24 and 48 taps in cl and cm_c/4, not worse at 96.
+// It is not the default: Cp enters through √(C0 − Cp), so the result is not linear in the taps'
+// Cp (a common 1 % gain is not exactly 1 % of cl), and with it as the default the uncertainty
+// coverage of test/uncertainty-coverage.test.ts fell to 0.83–0.88 for cl (docs/TAP-JUDGEMENT.md §3).
 
 /** Gauss–Legendre, 6 points on [−1, 1] (Abramowitz & Stegun table 25.4): exact to degree 11. */
 const GL_X = [

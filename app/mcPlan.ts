@@ -60,7 +60,7 @@ export interface PlanNominal {
   mainRow: string;
   /** Capture fractions of the nominal wall result (depend on the geometry only), or null. */
   walls: { F: number; FMom?: number } | null;
-  /** Contour rule of the surface integration (Settings.contourRule; the settings' default is 'spline', a plan without one 'linear'). */
+  /** Contour rule of the surface integration (Settings.contourRule; default 'linear'). */
   rule?: ContourRule;
 }
 

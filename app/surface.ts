@@ -6,7 +6,7 @@
 //   cl = cn cos α − ca sin α,  cd_p = cn sin α + ca cos α.
 // Anderson, Fundamentals of Aerodynamics, ch. 1 §1.5, eqs. 1.7–1.22 (memory). The trailing edge is
 // closed by extrapolating each surface linearly to x/c = 1 and taking the mean (common practice,
-// no source). The 'spline' contour rule (the settings' default) is app/contourSpline.ts; bad-tap detection (leave-one-out
+// no source). The 'spline' contour rule is app/contourSpline.ts; bad-tap detection (leave-one-out
 // prediction test, app/tapCheck.ts; wind-off leak) is common practice, no source.
 
 import { DEFAULT_SETTINGS } from './types';
@@ -99,8 +99,8 @@ export type ContourIntegrals = Pick<SurfaceLoads, 'cn' | 'ca' | 'cl' | 'cdp' | '
 
 /** How Cp (and the contour between taps) is interpolated for the integrals: 'linear' — straight
  *  segments between taps, Cp linear along each; 'spline' — cubic splines of the contour and the
- *  surface speed in the square-root plane of the nose, through the taps (app/contourSpline.ts;
- *  Settings.contourRule's default). The functions here default to 'linear' when no rule is given. */
+ *  surface speed in the square-root plane of the nose, through the taps (app/contourSpline.ts).
+ *  'linear' is the default here and in Settings.contourRule. */
 export type ContourRule = 'spline' | 'linear';
 
 /** The words a result uses for each rule. */

@@ -1,4 +1,4 @@
-// The default contour rule (Settings.contourRule, issue 9 part 5) on exact sections: the exact flow
+// The 'spline' contour rule (Settings.contourRule, issue 9 part 5) on exact sections: the exact flow
 // is the Joukowski airfoil by conformal mapping with the Kutta condition (REDUCTION.md §11 case 2;
 // Milne-Thomson, Theoretical Hydrodynamics ch. 7, Katz & Plotkin §6.5, memory; generator
 // test/helpers/joukowski.ts, its cl and cm_c/4 in closed form). Rows are realistic: cosine spacing
@@ -32,10 +32,12 @@ function worst(m: number, n: number, count: number, rule: ContourRule, aMax = 12
   return { cl, cm };
 }
 
-describe('the default contour rule on exact Joukowski sections', () => {
-  const rule = DEFAULT_SETTINGS.contourRule;
-  it('is the spline, and the sections span 9–15 % thickness and 0–4 % camber', () => {
-    expect(rule).toBe('spline');
+describe('the spline contour rule on exact Joukowski sections', () => {
+  const rule: ContourRule = 'spline';
+  it('the sections span 9–15 % thickness and 0–4 % camber; linear stays the default rule', () => {
+    // docs/TAP-JUDGEMENT.md §3: spline is not linear in Cp, and as the default it broke the
+    // uncertainty coverage; until that is solved, linear is the default.
+    expect(DEFAULT_SETTINGS.contourRule).toBe('linear');
     const dims = SECTIONS.map(([, m, n]) => {
       const taps = arcTaps(joukowski(m, n, 0), 400);
       const up = taps.filter((p) => p.surface === 'upper');
