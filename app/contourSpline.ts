@@ -129,12 +129,22 @@ export class SplineScratch {
 
 let shared = new SplineScratch(256);
 
+/** Variants of the spline rule, for the measurements of scripts/contour-sweep.ts: `speed` — spline
+ *  the signed surface speed (true) or Cp itself; `param` — the Cp (or speed) spline's parameter,
+ *  centripetal (increments √Δs) or chord length. */
+export interface SplineOptions {
+  speed: boolean;
+  param: 'centripetal' | 'chord';
+}
+export const SPLINE_DEFAULTS: SplineOptions = { speed: true, param: 'centripetal' };
+
 /** The three contour integrals ∮ Cp dx, ∮ Cp dy, ∮ Cp (x dx + y dy) over the closed contour through
  *  nodes (x[i], y[i], cp[i]), i < m, the last node equal to the first (the trailing edge), by the
  *  splines of the module comment. Nodes that coincide with the one before (zero chord length) are
  *  skipped: two taps at one point carry no length of contour between them. */
 export function splineIntegrals(
   x: ArrayLike<number>, y: ArrayLike<number>, cp: ArrayLike<number>, m: number,
+  opts: SplineOptions = SPLINE_DEFAULTS,
 ): { sCpDx: number; sCpDy: number; sMom: number } {
   if (shared.capacity < m) shared = new SplineScratch(Math.max(m, 2 * shared.capacity));
   const S = shared;
@@ -149,7 +159,7 @@ export function splineIntegrals(
       const ds = Math.hypot(x[i] - X[k - 1], y[i] - Y[k - 1]);
       if (!(ds > 1e-12)) continue;
       t[k] = t[k - 1] + ds;
-      S.tau[k] = S.tau[k - 1] + Math.sqrt(ds);
+      S.tau[k] = S.tau[k - 1] + (opts.param === 'chord' ? ds : Math.sqrt(ds));
     } else {
       t[0] = 0;
       S.tau[0] = 0;
@@ -165,7 +175,7 @@ export function splineIntegrals(
   // almost linearly, where Cp itself has a sharp maximum; Cp = C0 − u² between the nodes.
   let j = 0;
   for (let i = 1; i < k; i++) if (P[i] > P[j]) j = i;
-  const speed = j > 0 && j < k - 1;
+  const speed = opts.speed && j > 0 && j < k - 1;
   let c0 = 1;
   if (speed) {
     c0 = Math.max(1, P[j]);

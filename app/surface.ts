@@ -10,7 +10,7 @@
 // prediction test, app/tapCheck.ts; wind-off leak) is common practice, no source.
 
 import { DEFAULT_SETTINGS } from './types';
-import { splineIntegrals } from './contourSpline';
+import { type SplineOptions, SPLINE_DEFAULTS, splineIntegrals } from './contourSpline';
 import { findRowOutliers, type TapVerdict } from './tapCheck';
 import { inviscidShape } from './tapShape';
 import type { Geometry, Settings, Surface, SurfaceLoads, TapCp } from './types';
@@ -115,7 +115,7 @@ let nodeCp = new Float64Array(256);
 /** See ContourIntegrals. */
 export function contourIntegrals(
   x: ArrayLike<number>, y: ArrayLike<number>, cp: ArrayLike<number>, n: number, nUpper: number, alphaDeg: number,
-  rule: ContourRule = 'linear',
+  rule: ContourRule = 'linear', splineOptions: SplineOptions = SPLINE_DEFAULTS,
 ): ContourIntegrals {
   // Trailing-edge value of each surface at x/c = 1: linear through the tap nearest the trailing
   // edge and the next one with a distinct x (by more than 1e-9), else the nearest tap.
@@ -179,7 +179,7 @@ export function contourIntegrals(
     nodeX[n + 1] = teX;
     nodeY[n + 1] = teY;
     nodeCp[n + 1] = teCp;
-    const r = splineIntegrals(nodeX, nodeY, nodeCp, m);
+    const r = splineIntegrals(nodeX, nodeY, nodeCp, m, splineOptions);
     sCpDx = r.sCpDx;
     sCpDy = r.sCpDy;
     sMom = r.sMom;
