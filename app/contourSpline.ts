@@ -134,7 +134,7 @@ let shared = new SplineScratch(256);
  *  centripetal (increments √Δs) or chord length. */
 export interface SplineOptions {
   speed: boolean;
-  param: 'centripetal' | 'chord';
+  param: 'centripetal' | 'chord' | 'glauert';
 }
 export const SPLINE_DEFAULTS: SplineOptions = { speed: true, param: 'centripetal' };
 
@@ -144,7 +144,7 @@ export const SPLINE_DEFAULTS: SplineOptions = { speed: true, param: 'centripetal
  *  skipped: two taps at one point carry no length of contour between them. */
 export function splineIntegrals(
   x: ArrayLike<number>, y: ArrayLike<number>, cp: ArrayLike<number>, m: number,
-  opts: SplineOptions = SPLINE_DEFAULTS,
+  opts: SplineOptions = SPLINE_DEFAULTS, nUpper = -1,
 ): { sCpDx: number; sCpDy: number; sMom: number } {
   if (shared.capacity < m) shared = new SplineScratch(Math.max(m, 2 * shared.capacity));
   const S = shared;
@@ -154,8 +154,17 @@ export function splineIntegrals(
   const Y = S.y;
   const P = S.p;
   let k = 0;
+  const glauert = opts.param === 'glauert' && nUpper >= 0;
   for (let i = 0; i < m; i++) {
-    if (k > 0) {
+    if (glauert) {
+      // Glauert's angle: x/c = (1 − cos φ)/2, φ from −π (trailing edge, upper) through 0 (leading
+      // edge) to π (trailing edge, lower); nodes 1 … nUpper are the upper surface.
+      const side = i === 0 || (i >= 1 && i <= nUpper) ? -1 : 1;
+      const phi = i === 0 ? -Math.PI : i === m - 1 ? Math.PI : side * Math.acos(Math.min(1, Math.max(-1, 1 - 2 * x[i])));
+      if (k > 0 && !(phi - t[k - 1] > 1e-12)) continue;
+      t[k] = phi;
+      S.tau[k] = phi;
+    } else if (k > 0) {
       const ds = Math.hypot(x[i] - X[k - 1], y[i] - Y[k - 1]);
       if (!(ds > 1e-12)) continue;
       t[k] = t[k - 1] + ds;

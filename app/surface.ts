@@ -179,7 +179,7 @@ export function contourIntegrals(
     nodeX[n + 1] = teX;
     nodeY[n + 1] = teY;
     nodeCp[n + 1] = teCp;
-    const r = splineIntegrals(nodeX, nodeY, nodeCp, m, splineOptions);
+    const r = splineIntegrals(nodeX, nodeY, nodeCp, m, splineOptions, nUpper);
     sCpDx = r.sCpDx;
     sCpDy = r.sCpDy;
     sMom = r.sMom;

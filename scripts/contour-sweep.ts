@@ -14,6 +14,8 @@ const VARIANTS: Variant[] = [
   { name: 'spline (speed, centripetal)', rule: 'spline', opts: { speed: true, param: 'centripetal' } },
   { name: 'spline (speed, chord)', rule: 'spline', opts: { speed: true, param: 'chord' } },
   { name: 'spline (Cp, chord)', rule: 'spline', opts: { speed: false, param: 'chord' } },
+  { name: 'spline (Cp, Glauert φ)', rule: 'spline', opts: { speed: false, param: 'glauert' } },
+  { name: 'spline (speed, Glauert φ)', rule: 'spline', opts: { speed: true, param: 'glauert' } },
 ];
 /** Joukowski m, n: t/c ≈ 9, 12, 15 % (m 0.075, 0.1, 0.125), camber ≈ n/2 (0, 2, 4 %). */
 const SECTIONS = [[0.075, 0], [0.1, 0], [0.1, 0.04], [0.125, 0.08], [0.075, 0.08], [0.125, 0]];
