@@ -135,6 +135,7 @@ let shared = new SplineScratch(256);
 export interface SplineOptions {
   speed: boolean;
   param: 'centripetal' | 'chord' | 'glauert';
+  metric?: boolean;
 }
 export const SPLINE_DEFAULTS: SplineOptions = { speed: true, param: 'centripetal' };
 
@@ -207,6 +208,18 @@ export function splineIntegrals(
   splineSecondDerivatives(t, X, k, S.mx, S.a, S.b, S.c, S.d);
   splineSecondDerivatives(t, Y, k, S.my, S.a, S.b, S.c, S.d);
   const tau = S.tau;
+  // 'metric': the spline carries the signed speed times the contour's stretch ds/dt (smooth in a
+  // parameter that is regular at the leading edge, as the circle speed is in the conformal map).
+  const metric = speed && opts.metric === true;
+  const stretch = (i: number): number => {
+    const last = i === k - 1;
+    const l = last ? i - 1 : i;
+    const h = t[l + 1] - t[l];
+    const xd = (X[l + 1] - X[l]) / h + (last ? (h / 6) * (S.mx[l] + 2 * S.mx[l + 1]) : -(h / 6) * (2 * S.mx[l] + S.mx[l + 1]));
+    const yd = (Y[l + 1] - Y[l]) / h + (last ? (h / 6) * (S.my[l] + 2 * S.my[l + 1]) : -(h / 6) * (2 * S.my[l] + S.my[l + 1]));
+    return Math.hypot(xd, yd);
+  };
+  if (metric) for (let i = 0; i < k; i++) P[i] *= stretch(i);
   splineSecondDerivatives(tau, P, k, S.mc, S.a, S.b, S.c, S.d);
   const { mx, my, mc } = S;
   let sCpDx = 0;
@@ -232,9 +245,10 @@ export function splineIntegrals(
       const xv = v * X[i] + u * X[i + 1] - h2 * (cub0 * mx[i] + cub1 * mx[i + 1]);
       const yv = v * Y[i] + u * Y[i + 1] - h2 * (cub0 * my[i] + cub1 * my[i + 1]);
       const sv = v * P[i] + u * P[i + 1] - hc2 * (cub0 * mc[i] + cub1 * mc[i + 1]);
-      const cv = speed ? c0 - sv * sv : sv;
       const xd = (X[i + 1] - X[i]) / h - (h / 6) * (d0 * mx[i] + d1 * mx[i + 1]);
       const yd = (Y[i + 1] - Y[i]) / h - (h / 6) * (d0 * my[i] + d1 * my[i + 1]);
+      const sp = metric ? sv / Math.hypot(xd, yd) : sv;
+      const cv = speed ? c0 - sp * sp : sv;
       const w = GL_W[g];
       ix += w * cv * xd;
       iy += w * cv * yd;

@@ -16,6 +16,7 @@ const VARIANTS: Variant[] = [
   { name: 'spline (Cp, chord)', rule: 'spline', opts: { speed: false, param: 'chord' } },
   { name: 'spline (Cp, Glauert φ)', rule: 'spline', opts: { speed: false, param: 'glauert' } },
   { name: 'spline (speed, Glauert φ)', rule: 'spline', opts: { speed: true, param: 'glauert' } },
+  { name: 'spline (speed × ds/dφ, Glauert φ)', rule: 'spline', opts: { speed: true, param: 'glauert', metric: true } },
 ];
 /** Joukowski m, n: t/c ≈ 9, 12, 15 % (m 0.075, 0.1, 0.125), camber ≈ n/2 (0, 2, 4 %). */
 const SECTIONS = [[0.075, 0], [0.1, 0], [0.1, 0.04], [0.125, 0.08], [0.075, 0.08], [0.125, 0]];
