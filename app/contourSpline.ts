@@ -137,7 +137,7 @@ export interface SplineOptions {
   param: 'centripetal' | 'chord' | 'glauert';
   metric?: boolean;
 }
-export const SPLINE_DEFAULTS: SplineOptions = { speed: true, param: 'centripetal' };
+export const SPLINE_DEFAULTS: SplineOptions = { speed: true, param: 'glauert', metric: true };
 
 /** The three contour integrals ∮ Cp dx, ∮ Cp dy, ∮ Cp (x dx + y dy) over the closed contour through
  *  nodes (x[i], y[i], cp[i]), i < m, the last node equal to the first (the trailing edge), by the

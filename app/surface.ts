@@ -98,13 +98,13 @@ export type ContourIntegrals = Pick<SurfaceLoads, 'cn' | 'ca' | 'cl' | 'cdp' | '
 };
 
 /** How Cp (and the contour between taps) is interpolated for the integrals: 'linear' — straight
- *  segments between taps, Cp linear along each; 'spline' — cubic splines of x/c, y/c and Cp in
- *  chord length through the taps (app/contourSpline.ts). */
+ *  segments between taps, Cp linear along each; 'spline' — cubic splines in Glauert's angle of
+ *  x/c, y/c and the signed speed times the contour's stretch (app/contourSpline.ts). */
 export type ContourRule = 'spline' | 'linear';
 
 /** The words a result uses for each rule. */
 export const CONTOUR_RULE_TEXT: Record<ContourRule, string> = {
-  spline: 'cubic spline of Cp, x/c and y/c in arc length (not-a-knot, trailing edge at both ends)',
+  spline: "cubic splines in Glauert's angle φ (x/c = (1 − cos φ)/2) of x/c, y/c and the signed speed times ds/dφ (not-a-knot, trailing edge at both ends)",
   linear: 'Cp linear between taps on straight segments',
 };
 

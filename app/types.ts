@@ -13,8 +13,9 @@
  *  transducer groups in the uncertainty, every interval on the corrected basis, corrected Γ, the
  *  per-run budget, the wake's q∞ = H∞ − p∞ when H∞ is measured; 0.6.0: the bad-tap test also
  *  predicts from the fitted inviscid shape (app/tapShape.ts) on rows of 20 taps or more, and keep
- *  decisions (Settings.keptTaps) with each result's `kept`). */
-export const CORE_VERSION = '0.6.0';
+ *  decisions (Settings.keptTaps) with each result's `kept`); 0.6.1: the 'spline' contour rule
+ *  splines the signed speed times ds/dφ in Glauert's angle φ (app/contourSpline.ts). */
+export const CORE_VERSION = '0.6.1';
 
 export type PressureUnit =
   | 'Pa' | 'kPa' | 'hPa' | 'mbar' | 'psi' | 'inH2O' | 'mmH2O' | 'mmHg' | 'torr';
