@@ -17,9 +17,13 @@
 // stagnation point: our own, common practice, no source.
 // The spline is open, with the trailing edge at both ends, not periodic: the trailing edge is a
 // corner of the contour and of Cp's slope between the surfaces.
-// Measured on exact Joukowski sections (test/contour-rule.test.ts, docs/TAP-JUDGEMENT.md): better
-// than the linear rule at 48 and 96 taps, about as good at 24, worse at 16 — which is why it is a
-// setting (Settings.contourRule) and not the default.
+// Since core 0.6.1 (SPLINE_DEFAULTS): the parameter is Glauert's angle φ, x/c = (1 − cos φ)/2
+// (negative on the upper surface; H. Glauert, The Elements of Aerofoil and Airscrew Theory, 1926,
+// ch. VII, memory), and the pressure spline carries the signed speed times ds/dφ, which is smooth
+// at the leading edge as the circle speed of a conformal map is (our own reasoning, no source).
+// Measured (scripts/contour-sweep.ts, test/contour-rule.test.ts, docs/TAP-JUDGEMENT.md §3): better
+// than linear at 16, 24, 48 and 96 taps at worst over six Joukowski sections, but short of the
+// 24-tap target, so 'linear' stays the default.
 
 /** Gauss–Legendre, 6 points on [−1, 1] (Abramowitz & Stegun table 25.4): exact to degree 11. */
 const GL_X = [
