@@ -21,7 +21,7 @@
 
 import { applyCorrections, wallCorrections } from './corrections';
 import { makeFlag } from './flags';
-import { fitSignature, signatureInterference, type SignaturePlan } from './wallSignature';
+import { fitSignature, signatureInterference, type SignaturePlan, type WallCpUncertainty } from './wallSignature';
 import type {
   AppliedMethod, Coefficients, CorrectionMethod, CorrectionResult, CorrectionSet, Flag,
   MethodCorrection, Settings, TapCp, WallResult,
@@ -137,7 +137,7 @@ export const METHOD_WORDS: Record<AppliedMethod, string> = {
 export function correctionSet(
   requested: CorrectionMethod, x: CorrectionInputs, settings: Pick<Settings,
     'maskellTheta' | 'wallFitResidualCp' | 'stallTeCp' | 'correctionTolEps' | 'correctionTolAlphaDeg'>,
-  upperTaps: readonly Pick<TapCp, 'x' | 'cp' | 'surface' | 'bad'>[], uWallCp: number,
+  upperTaps: readonly Pick<TapCp, 'x' | 'cp' | 'surface' | 'bad'>[], uWallCp: number | WallCpUncertainty,
 ): { set: CorrectionSet; plan: CorrectionPlan; correction: CorrectionResult; corrected: Coefficients; flag: Flag | null } {
   const u = x.uncorrected;
   const mSource = maskellSource(x);

@@ -24,7 +24,7 @@ import { wallLoads, angleFlux } from './walls';
 import { gammaFromCl, liftCrossCheck } from './crosscheck';
 import { sectionArea, wallCorrections, applyCorrections } from './corrections';
 import { correctionFor, correctionSet, type CorrectionInputs, type CorrectionPlan } from './correctionChoice';
-import { signaturePlan, type SignaturePlan } from './wallSignature';
+import { signaturePlan, type SignaturePlan, type WallCpUncertainty } from './wallSignature';
 import { coverageInterval, instrumentStd, monteCarlo, NormalStream } from './uncertainty';
 import { addGroupErrors, channelSd, instrumentModel, type InstrumentModel } from './instruments';
 import {
@@ -395,25 +395,45 @@ function nominalPass(
   const choice = correctionSet(
     settings.correction, nominal.correctionInputs, settings,
     nominal.taps.filter((t) => t.row === nominal.main.row),
-    wallCpUncertainty(L, run, nominal.uncorrected.q),
+    wallCpUncertainty(setup, L, run, nominal.uncorrected.q),
   );
   nominal.correction = choice.correction;
   nominal.corrected = choice.corrected;
   return { bad, nominal, reference, choice };
 }
 
-/** Standard uncertainty of one wall Cp from the wall channels' stated uncertainty (rms over the
- *  wall channels, with each channel's standard error), for the wall-signature fit. */
-function wallCpUncertainty(L: Layout, run: ZeroedRun, q: number): number {
+/** Uncertainty of the wall Cp for the wall-signature fit, as the wall channels are wired
+ *  (app/instruments.ts): each channel's independent part (its own %FS ⊕ offset, or its group's
+ *  linearity and zero-drift residual, with the standard error of its mean) and, per transducer
+ *  group holding wall channels, the common gain (δCp_i = u_g·p_i/q, p_i the zeroed reading) and the
+ *  common zero where no wind-off zero on both sides removes it (δCp = u_z/q). Order: floor, then
+ *  ceiling, as the wall Cp go to the fit. Reference-pressure errors (q, p∞) are not in it: they
+ *  reach ε through the Monte Carlo draws. */
+function wallCpUncertainty(setup: Setup, L: Layout, run: ZeroedRun, q: number): WallCpUncertainty | number {
   const all = [...L.floor, ...L.ceiling];
   if (!all.length || !(q > 0)) return 0;
-  let s = 0;
-  for (const { ch } of all) {
-    const ui = instrumentStd(ch.uncertainty, run.values[ch.name] ?? 0, L.scale.get(ch.name) ?? 1);
-    const se = run.stats[ch.name]?.stdErr ?? 0;
-    s += ui * ui + se * se;
-  }
-  return Math.sqrt(s / all.length) / q;
+  const names = all.map(({ ch }) => ch.name);
+  const m = instrumentModel(setup, run, names, L.scale);
+  const independent = Float64Array.from(m.sd, (v) => v / q);
+  const common: Float64Array[] = [];
+  m.groups.forEach((g, gi) => {
+    const gain = new Float64Array(names.length);
+    const zero = new Float64Array(names.length);
+    let inGroup = false;
+    let zeroCounts = false;
+    names.forEach((name, k) => {
+      if (m.group[k] !== gi) return;
+      inGroup = true;
+      gain[k] = (g.gain * (run.values[name] ?? 0) * (L.scale.get(name) ?? 1)) / q;
+      if (m.zeroCounts[k]) {
+        zero[k] = g.zeroPa / q;
+        zeroCounts = true;
+      }
+    });
+    if (inGroup && g.gain > 0) common.push(gain);
+    if (zeroCounts && g.zeroPa > 0) common.push(zero);
+  });
+  return { independent, common };
 }
 
 /** How reduceRun evaluates the Monte Carlo draws: 'plan' (default) by the per-run plan of

@@ -434,14 +434,27 @@ export function wallSpeedPert(cp: number): number {
   return Math.sqrt(Math.max(0, 1 - cp)) - 1;
 }
 
+/** Uncertainty of the wall Cp as the wall channels are wired (app/instruments.ts), in the order of
+ *  the Cp given to fitSignature (floor, then ceiling). */
+export interface WallCpUncertainty {
+  /** Independent standard uncertainty of each wall Cp (own instrument or linearity, standard error
+   *  of the mean, zero-drift residual). */
+  independent: ArrayLike<number>;
+  /** Correlated parts: for each transducer group's gain and (where it still counts) zero, the
+   *  change of every wall Cp for one standard uncertainty of that error (0 outside the group). */
+  common: ArrayLike<number>[];
+}
+
 /**
  * Fit one run's wall signature. floorCp and ceilingCp are in the plan's order (sorted by x within
- * each wall). V (m/s) only scales the strengths reported; uCp, the standard uncertainty of one wall
- * Cp (from the wall channels' stated uncertainty), gives uEps. Returns null when the plan is
+ * each wall). V (m/s) only scales the strengths reported; uCp gives uEps: either one standard
+ * uncertainty for every wall Cp (independent), or the wall Cp's uncertainty as the channels are
+ * wired (WallCpUncertainty: independent parts and the transducer groups' common gain and zero).
+ * Returns null when the plan is
  * unusable.
  */
 export function fitSignature(
-  plan: SignaturePlan, floorCp: ArrayLike<number>, ceilingCp: ArrayLike<number>, V: number, uCp = 0,
+  plan: SignaturePlan, floorCp: ArrayLike<number>, ceilingCp: ArrayLike<number>, V: number, uCp: number | WallCpUncertainty = 0,
 ): SignatureFit | null {
   if (plan.unusable) return null;
   const { terms, pinv, A, xs, nFloor, height: h } = plan;
@@ -475,20 +488,33 @@ export function fitSignature(
     }
   }
   const inter = interferenceOf(plan, s);
-  // Standard uncertainty of ε from the wall Cp: σ_u ≈ σ_Cp/2 per tap, cov(s) = σ_u²(AᵀA)⁻¹,
-  // ε = gᵀs with g the ε-weights of each term.
+  // Standard uncertainty of ε from the wall Cp (JCGM 100:2008 §5.2, the law of propagation with
+  // correlated inputs). ε is linear in b = u/V − 1 (rows.epsSb + rows.epsWb, the interference
+  // weights times the pseudo-inverse), and b = √(1 − Cp) − 1, so ∂ε/∂Cp_i = −w_i/(2√(1 − Cp_i)).
+  // Independent parts add as Σ(c_i·u_i)²; each correlated part (one group gain or zero moving all
+  // its taps together, by δCp_i) as (Σ c_i·δCp_i)²: a common gain does not average away over the
+  // taps, and a common offset is taken up by the fit's offset term.
   let uEps = 0;
-  if (uCp > 0) {
-    const g = new Float64Array(k);
-    for (let j = 0; j < k; j++) {
-      const e = new Float64Array(k);
-      e[j] = 1;
-      const t = interferenceOf(plan, e);
-      g[j] = t.epsSb + t.epsWb;
+  const uc: WallCpUncertainty | null = typeof uCp === 'number'
+    ? (uCp > 0 ? { independent: new Float64Array(n).fill(uCp), common: [] } : null)
+    : uCp;
+  if (uc) {
+    if (uc.independent.length !== n || uc.common.some((v) => v.length !== n)) {
+      throw new Error(`wall signature: expected ${n} wall-Cp uncertainties (got ${uc.independent.length})`);
+    }
+    const c = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      const cp = i < nFloor ? floorCp[i] : ceilingCp[i - nFloor];
+      c[i] = -(plan.rows.epsSb[i] + plan.rows.epsWb[i]) / (2 * Math.sqrt(Math.max(1e-6, 1 - cp)));
     }
     let v = 0;
-    for (let a = 0; a < k; a++) for (let c = 0; c < k; c++) v += g[a] * plan.cov[a * k + c] * g[c];
-    uEps = (uCp / 2) * Math.sqrt(Math.max(0, v));
+    for (let i = 0; i < n; i++) v += (c[i] * uc.independent[i]) ** 2;
+    for (const d of uc.common) {
+      let t = 0;
+      for (let i = 0; i < n; i++) t += c[i] * d[i];
+      v += t * t;
+    }
+    uEps = Math.sqrt(v);
   }
   const at = (t: SignatureTerm | 'offset' | 'gradient'): number => {
     const j = terms.indexOf(t);

@@ -269,7 +269,7 @@ async function reduceAndTell(store: Store, sessionId: number, g: GlobalOpts, opt
 async function follow(folder: string, g: GlobalOpts, settleMs: number, reduce: boolean): Promise<void> {
   const dir = resolve(folder);
   if (!existsSync(dir)) throw new InputError(`no folder ${dir}`);
-  const { runsAffectedBy, watch } = await D().followDeps();
+  const { runsAffectedBy, readySource, importSession, watch } = await D().followDeps();
   const store = openStore(g, 'create');
   const actor = actorOf(g);
   let busy = false;
@@ -277,10 +277,18 @@ async function follow(folder: string, g: GlobalOpts, settleMs: number, reduce: b
   let lastError = '';
   const warnedChanged = new Set<string>();
 
+  let retry: ReturnType<typeof setTimeout> | null = null;
   const step = async () => {
     try {
-      const rep = await D().importSessionFolder(store, dir, { actor });
+      // Runs whose log is missing or still being written (modified less than the settle time
+      // ago) wait; a log that grew after it was imported replaces its runs (replacedRuns).
+      const ready = await readySource(dir, { settleMs });
+      if (retry) clearTimeout(retry);
+      retry = ready?.retryInMs != null ? setTimeout(() => void cycle(), ready.retryInMs + 20) : null;
+      if (!ready || ready.source === null) return;
+      const rep = await importSession(store, ready.source, { actor });
       lastError = '';
+      for (const run of rep.replacedRuns ?? []) note(`run ${run}: its log grew after it was imported; samples replaced`);
       for (const f of rep.changedFiles) {
         if (!warnedChanged.has(f)) note(`warning: ${f} differs from what session ${rep.sessionId} holds; not merged`);
         warnedChanged.add(f);
@@ -340,6 +348,7 @@ async function follow(folder: string, g: GlobalOpts, settleMs: number, reduce: b
     process.once('SIGTERM', stop);
   });
   await watcher.close();
+  if (retry) clearTimeout(retry);
   while (busy) await new Promise((r) => setTimeout(r, 20));
   store.close();
   note('stopped');
@@ -617,7 +626,7 @@ export async function main(argv: string[] = process.argv): Promise<number> {
       return 1;
     }
     let msg = e instanceof Error ? e.message : String(e);
-    if (deps && deps.isDiskFull(e) && !(e instanceof deps.StoreFullError)) msg = new deps.StoreFullError(dbPath(program.opts<GlobalOpts>()), msg).message;
+    if (deps && deps.isDiskFull(e, dbPath(program.opts<GlobalOpts>())) && !(e instanceof deps.StoreFullError)) msg = new deps.StoreFullError(dbPath(program.opts<GlobalOpts>()), msg).message;
     note(`rakeline: ${msg}`);
     if (process.env.RAKELINE_DEBUG && e instanceof Error && e.stack) note(e.stack);
     return 1;

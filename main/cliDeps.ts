@@ -16,6 +16,6 @@ export { SingleBar, Presets } from 'cli-progress';
 
 /** What only `follow` needs (the IPC handlers' module brings the whole contract with it). */
 export async function followDeps() {
-  const [{ runsAffectedBy }, { watch }] = await Promise.all([import('./handlers'), import('chokidar')]);
-  return { runsAffectedBy, watch };
+  const [{ runsAffectedBy, readySource }, { importSession }, { watch }] = await Promise.all([import('./handlers'), import('./import'), import('chokidar')]);
+  return { runsAffectedBy, readySource, importSession, watch };
 }

@@ -98,6 +98,8 @@ export interface AuditRowLike {
 export interface ImportReportLike {
   sessionId: number; created: boolean; importedRuns: number[]; unchangedFiles: string[];
   changedFiles: string[]; skippedRuns: number[];
+  /** Stored runs whose log had only grown: replaced and reduced again (also in importedRuns). */
+  replacedRuns?: number[];
   /** What the import accepted but ignored or changed (extra columns, underflowed values, …). */
   warnings: string[];
 }

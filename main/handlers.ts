@@ -23,6 +23,7 @@ import type { Store, RunRow, ImportProgress, ImportReport } from './store';
 import { folderSource, importSession, importSessionFolder, type SessionSource } from './import';
 import { reduceStoredSessionAsync, sessionSummary } from './reduceService';
 import { runsNeedingReduction } from './repair';
+import { verifyResults } from './verify';
 import { zeroRunsFor } from '../app/samples';
 import { storedDaySheet } from './daysheetData';
 import { listRunsMarked, staleMarks, staleRuns, withStale } from './stale';
@@ -337,36 +338,61 @@ export async function ensureDemoSession(
 // ---------------------------------------------------------------------------------------------
 // Live mode
 
-/** The session folder as far as it is ready: the run index cut before the first run whose log
- *  has not landed yet (acquisition may write the index line first, or the file first). null when
- *  setup.json or runs.csv is missing or no run is ready. */
-export async function readySource(folder: string): Promise<{ source: SessionSource; waiting: string[] } | null> {
+/**
+ * The session folder as far as it is ready: the run index cut before the first run whose log has
+ * not landed yet, or is still being written (modified less than `settleMs` ago). Acquisition may
+ * write the index line first or the log first; either way a run is taken only once its log has
+ * stood still for `settleMs`. A log that grows again after it was taken (a pause longer than
+ * that) only grew, so the import replaces the stored run with the grown log's samples (audited,
+ * ImportReport.replacedRuns) and it is reduced again: half a run is never kept. null when
+ * setup.json or runs.csv is missing or no run has landed (`source` null: the first run is still
+ * being written); `retryInMs` says when a run held as still
+ * being written becomes ready if nothing else changes.
+ */
+export async function readySource(
+  folder: string, opts: { settleMs?: number; now?: number } = {},
+): Promise<{ source: SessionSource | null; waiting: string[]; retryInMs: number | null } | null> {
+  const settleMs = opts.settleMs ?? 0;
+  const now = opts.now ?? Date.now();
   const base = folderSource(folder);
   if ((await base.size(SETUP_FILE)) === null || (await base.size(INDEX_FILE)) === null) return null;
   const text = await readFile(path.join(folder, INDEX_FILE), 'utf8');
   if (text.split('\n').filter((l) => l.trim() !== '').length < 2) return null; // no run line yet
   const idx = parseRunIndexDetailed(text, INDEX_FILE);
-  const sizes = new Map<string, number | null>();
+  const ready = new Map<string, boolean>();
+  let retryInMs: number | null = null;
+  const isReady = async (f: string): Promise<boolean> => {
+    if ((await base.size(f)) === null) return false; // not landed yet
+    if (settleMs <= 0) return true;
+    const age = now - (await stat(base.path!(f)!)).mtimeMs;
+    if (age >= settleMs) return true;
+    retryInMs = Math.max(1, Math.ceil(settleMs - age));
+    return false; // still being written
+  };
   let cut = -1;
   for (let i = 0; i < idx.runs.length; i++) {
     const f = idx.runs[i].file ?? LONG_LOG_DEFAULT;
-    if (!sizes.has(f)) sizes.set(f, await base.size(f));
-    if (sizes.get(f) === null) {
+    if (!ready.has(f)) ready.set(f, await isReady(f));
+    if (!ready.get(f)) {
       cut = i;
       break;
     }
   }
-  if (cut === 0) return null;
-  if (cut < 0) return { source: base, waiting: [] };
+  if (cut === 0) return retryInMs === null ? null : { source: null, waiting: [...new Set(idx.runs.map((r) => r.file ?? LONG_LOG_DEFAULT))], retryInMs };
+  if (cut < 0) return { source: base, waiting: [], retryInMs: null };
   const waiting = [...new Set(idx.runs.slice(cut).map((r) => r.file ?? LONG_LOG_DEFAULT))];
   const indexBytes = Buffer.from(text.split('\n').slice(0, idx.lines[cut] - 1).join('\n') + '\n', 'utf8');
-  const source: SessionSource = {
+  return { source: withIndex(base, indexBytes), waiting, retryInMs };
+}
+
+/** A source whose runs.csv is these bytes. */
+function withIndex(base: SessionSource, indexBytes: Buffer): SessionSource {
+  return {
     folder: base.folder,
     size: async (name) => (name === INDEX_FILE ? indexBytes.byteLength : base.size(name)),
     open: (name) => (name === INDEX_FILE ? (async function* () { yield indexBytes; })() : base.open(name)),
     path: (name) => (name === INDEX_FILE ? null : base.path!(name)),
   };
-  return { source, waiting };
 }
 
 interface LiveState {
@@ -377,6 +403,10 @@ interface LiveState {
   again: boolean;
   lastError: string | null;
   stopped: boolean;
+  /** A run log modified less than this long ago is still being written (ms). */
+  settleMs: number;
+  /** The pass that takes a run held as still being written. */
+  retry: ReturnType<typeof setTimeout> | null;
 }
 
 function fmt(x: number, digits: number): string {
@@ -430,8 +460,11 @@ export function createHandlers(ctx: HandlerContext): Handlers {
 
   const livePass = async (state: LiveState) => {
     try {
-      const ready = await readySource(state.folder);
+      const ready = await readySource(state.folder, { settleMs: state.settleMs });
       if (!ready || state.stopped) return;
+      if (state.retry) clearTimeout(state.retry);
+      state.retry = ready.retryInMs === null ? null : setTimeout(() => schedule(state, 0), ready.retryInMs + 20);
+      if (ready.source === null) return; // the first run is still being written
       const onProgress = progressEmitter(emit, 'watch', interval);
       const report = await importSession(store, ready.source, { actor, onProgress });
       if (state.stopped) return;
@@ -441,13 +474,18 @@ export function createHandlers(ctx: HandlerContext): Handlers {
       if (refused && refused !== state.lastError) emit('watch.run', { sessionId: report.sessionId, run: null, ok: false, message: refused });
       state.lastError = refused;
       if (report.importedRuns.length === 0) return;
+      const replaced = new Set(report.replacedRuns ?? []);
       const fresh = new Set(report.importedRuns);
       const affected = runsAffectedBy(store.listRuns(report.sessionId), report.importedRuns);
       if (affected.length) await reduceStoredSessionAsync(store, report.sessionId, { runs: affected, actor, onProgress });
       const rereduced = affected.filter((r) => !fresh.has(r)).length;
       for (const run of [...report.importedRuns].sort((a, b) => a - b)) {
         const row = store.getRun(report.sessionId, run);
-        emit('watch.run', { sessionId: report.sessionId, run, ok: true, message: watchMessage(row, rereduced) });
+        const msg = watchMessage(row, rereduced);
+        emit('watch.run', {
+          sessionId: report.sessionId, run, ok: true,
+          message: replaced.has(run) ? `Run ${run}'s log grew after it was imported; samples replaced. ${msg}` : msg,
+        });
       }
       changed('sessions');
     } catch (e) {
@@ -485,6 +523,7 @@ export function createHandlers(ctx: HandlerContext): Handlers {
     live = null;
     state.stopped = true;
     if (state.timer) clearTimeout(state.timer);
+    if (state.retry) clearTimeout(state.retry);
     await state.watcher.close();
     await state.running;
   };
@@ -564,7 +603,9 @@ export function createHandlers(ctx: HandlerContext): Handlers {
       return { reduced: results.length, summary };
     },
     'runs.saveResults': async ({ sessionId, results }) => {
-      const checked = checkResults(store, sessionId, results);
+      // Never stored on the page's word: main reduces again and stores its own results when they
+      // agree (main/verify.ts); a result that differs refuses the request, nothing stored.
+      const checked = verifyResults(store, sessionId, checkResults(store, sessionId, results));
       const saved = store.saveResults(sessionId, checked, actor);
       changed('sessions');
       return { saved };
@@ -642,7 +683,10 @@ export function createHandlers(ctx: HandlerContext): Handlers {
         ignored: (p: string) => /(^|[\\/])\.[^\\/]+$|\.(sqlite|sqlite-wal|sqlite-shm|tmp|part|swp)$|~$/i.test(p),
         awaitWriteFinish: { stabilityThreshold: ctx.watchStabilityMs ?? 400, pollInterval: 50 },
       });
-      const state: LiveState = { folder: abs, watcher, timer: null, running: null, again: false, lastError: null, stopped: false };
+      const state: LiveState = {
+        folder: abs, watcher, timer: null, running: null, again: false, lastError: null, stopped: false,
+        settleMs: ctx.watchStabilityMs ?? 400, retry: null,
+      };
       live = state;
       await new Promise<void>((resolve, reject) => {
         watcher.once('ready', () => resolve());

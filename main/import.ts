@@ -234,10 +234,13 @@ export async function importSession(store: Store, src: SessionSource, opts: Impo
         runsRead += f.runs.length;
         writer.addFile(f);
       };
-      // Run logs already stored with these very bytes are only hashed, not parsed again.
+      // Run logs already stored with these very bytes are only hashed, not parsed again; a log
+      // larger than its stored copy is checked for having only grown (the stored bytes its start).
       const plans: RunFilePlan[] = [];
       for (const plan of head.plans) {
         const size = head.sizes.get(plan.file)!;
+        const before = writer.grownCandidate(plan.file, size);
+        if (before && (await prefixHash(src, plan.file, before.bytes)) === before.sha256) writer.markGrown(plan.file);
         const known = writer.unchangedCandidate(plan.file, size, plan.runs);
         if (known) {
           const h = createHash('sha256');
@@ -275,11 +278,25 @@ export async function importSession(store: Store, src: SessionSource, opts: Impo
     return report;
   } catch (e) {
     writer.abort();
-    if (isDiskFull(e) && !(e instanceof StoreFullError)) throw new StoreFullError(store.file, e instanceof Error ? e.message : String(e), 'import');
+    if (isDiskFull(e, store.file) && !(e instanceof StoreFullError)) throw new StoreFullError(store.file, e instanceof Error ? e.message : String(e), 'import');
     throw e;
   } finally {
     if (pool) void pool.close();
   }
+}
+
+/** SHA-256 of the first `bytes` bytes of a file. */
+async function prefixHash(src: SessionSource, name: string, bytes: number): Promise<string> {
+  const h = createHash('sha256');
+  let left = bytes;
+  for await (const chunk of src.open(name)) {
+    if (left <= 0) break;
+    const take = chunk.byteLength <= left ? chunk : chunk.subarray(0, left);
+    h.update(take);
+    left -= take.byteLength;
+    if (left <= 0) break;
+  }
+  return h.digest('hex');
 }
 
 /** Every run log read on this thread, one after the other. */

@@ -9,8 +9,9 @@ import { ImportPool } from './importPool';
 
 type ReduceOpts = { runs?: number[]; settings?: Partial<Settings>; actor?: string; onProgress?: (p: ImportProgress) => void };
 
-/** What a reduction needs from the store: the setup, the settings and the runs with zeros applied. */
-function reductionInputs(store: Store, sessionId: number, opts: ReduceOpts): { setup: Setup; settings: Settings; zeroed: ZeroedRun[] } {
+/** What a reduction needs from the store: the setup, the settings and the runs with zeros applied
+ *  (also used by main/verify.ts to re-run a reduction the page sends). */
+export function reductionInputs(store: Store, sessionId: number, opts: ReduceOpts): { setup: Setup; settings: Settings; zeroed: ZeroedRun[] } {
   const setup = store.getSetup(sessionId);
   const stored = store.getSettings(sessionId);
   const settings: Settings = { ...stored, ...(opts.settings ?? {}) };
@@ -39,7 +40,7 @@ function storeResults(store: Store, sessionId: number, results: RunResult[], opt
       store.saveResults(sessionId, results, opts.actor ?? 'reduce');
     } catch (e) {
       // Nothing of the reduction was stored; the next ingest (or start of the app) redoes it.
-      if (isDiskFull(e)) throw new StoreFullError(store.file, e instanceof Error ? e.message : String(e), 'saving the results');
+      if (isDiskFull(e, store.file)) throw new StoreFullError(store.file, e instanceof Error ? e.message : String(e), 'saving the results');
       throw e;
     }
   }

@@ -13,9 +13,11 @@
 //
 // Import is ONE transaction (BEGIN IMMEDIATE): on any error nothing is written. Re-importing the
 // same files is a no-op (SHA-256 of each source file). A run file whose bytes and samples changed is
-// reported in changedFiles and not merged; a runs.csv that only grew by appended lines (live
-// acquisition) is accepted and its new runs are imported.
-import { accessSync, constants as fsConstants, copyFileSync, existsSync, mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+// reported in changedFiles and not merged — unless the file only grew (its stored bytes are the
+// start of the new file: a log still being written when it was imported), in which case its runs
+// are replaced by the grown log's (audited, replacedRuns) and reduced again; a runs.csv that only
+// grew by appended lines (live acquisition) is accepted and its new runs are imported.
+import { accessSync, constants as fsConstants, copyFileSync, existsSync, mkdirSync, mkdtempSync, rmSync, statfsSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { basename, dirname, join, resolve } from 'node:path';
 import Database from 'better-sqlite3';
@@ -62,6 +64,11 @@ export interface ImportReport {
   changedFiles: string[];
   /** Runs of the input not stored by this import (already stored, or in a changed file). */
   skippedRuns: number[];
+  /** Runs stored before whose log only grew since (the old bytes are the start of the new file,
+   *  e.g. live acquisition still writing when it was imported): their samples were replaced by
+   *  the grown log's (audited); they are also in importedRuns, so they are reduced again.
+   *  Absent when there are none. */
+  replacedRuns?: number[];
   /** What the import accepted but ignored or changed: columns not in the setup or the index,
    *  values too small for a double, samples of runs the index does not place in a file. */
   warnings: string[];
@@ -320,7 +327,7 @@ function storeOpenError(path: string, e: unknown): Error {
   const msg = e instanceof Error ? e.message : String(e);
   if (code === 'SQLITE_NOTADB') return new Error(`${path}: not an SQLite database (${msg})`);
   if (typeof code === 'string' && code.startsWith('SQLITE_READONLY')) return new StoreReadOnlyError(path, `cannot be written (${msg})`);
-  if (isDiskFull(e)) return new StoreFullError(path, msg);
+  if (isDiskFull(e, path)) return new StoreFullError(path, msg);
   if (msg.includes(path)) return e as Error;
   const out = new Error(`${path}: ${msg}`);
   (out as { code?: unknown }).code = code;
@@ -328,11 +335,30 @@ function storeOpenError(path: string, e: unknown): Error {
 }
 
 /** SQLITE_FULL or ENOSPC, however it was wrapped. */
-export function isDiskFull(e: unknown): boolean {
+export function isDiskFull(e: unknown, file?: string): boolean {
   const code = (e as { code?: unknown } | null)?.code;
   if (code === 'SQLITE_FULL' || code === 'ENOSPC') return true;
   const msg = e instanceof Error ? e.message : String(e);
-  return /database or disk is full|ENOSPC|no space left on device/i.test(msg);
+  if (/database or disk is full|ENOSPC|no space left on device/i.test(msg)) return true;
+  // SQLite says only "disk I/O error" when the -shm index or the -wal cannot grow on a full disk
+  // (it keeps no errno): an I/O error with next to no room left where the database lies is that.
+  if (file !== undefined && typeof code === 'string' && code.startsWith('SQLITE_IOERR')) {
+    const free = freeBytes(dirname(file));
+    return free !== null && free < DISK_NEARLY_FULL;
+  }
+  return false;
+}
+
+/** Free space below which an SQLite I/O error is taken as a full disk (a few database pages). */
+const DISK_NEARLY_FULL = 1024 * 1024;
+
+function freeBytes(dir: string): number | null {
+  try {
+    const s = statfsSync(dir);
+    return s.bavail * s.bsize;
+  } catch {
+    return null;
+  }
 }
 
 /** A database newer than this program, or older than a reading command can use. */
@@ -393,10 +419,19 @@ export class Store {
       const why = notWritable(dirname(path));
       if (why) throw new StoreReadOnlyError(path, `its folder ${why}`);
     }
+    // A failed open (a full disk: the -shm index could not be sized) must not leave the -wal and
+    // -shm files it began: the ones that were not there before, while the -wal holds nothing.
+    const sideFiles = [`${path}-wal`, `${path}-shm`].filter((f) => !existsSync(f));
+    const dropSideFiles = () => {
+      const wal = `${path}-wal`;
+      if (existsSync(wal) && (!sideFiles.includes(wal) || statSync(wal).size > 0)) return;
+      for (const f of sideFiles) rmSync(f, { force: true });
+    };
     let db: Database.Database;
     try {
       db = new Database(path);
     } catch (e) {
+      dropSideFiles();
       throw storeOpenError(path, e);
     }
     try {
@@ -407,6 +442,7 @@ export class Store {
       return s;
     } catch (e) {
       db.close();
+      dropSideFiles();
       throw storeOpenError(path, e);
     }
   }
@@ -905,6 +941,21 @@ export class Store {
     this.putStats(sessionId, { info: i, stats: p.stats }, spikeK, false);
   }
 
+  /** (import) Replace a stored run's samples and statistics by a grown log's (the index row and
+   *  the reductions stay: the reductions are history, and main/repair.ts sees them as older). */
+  replaceRun(sessionId: number, p: PreparedRun, sourceId: number, spikeK: number): void {
+    const i = p.info;
+    this.db.prepare('DELETE FROM samples WHERE session_id = ? AND run = ?').run(sessionId, i.run);
+    this.db.prepare('DELETE FROM channel_stats WHERE session_id = ? AND run = ?').run(sessionId, i.run);
+    this.db.prepare('UPDATE runs SET source_id = ?, samples = ? WHERE session_id = ? AND run = ?').run(sourceId, p.n, sessionId, i.run);
+    const ins = this.db.prepare('INSERT INTO samples (session_id, run, channel, dtype, n, data, dec_exp, unit_factor) VALUES (?, ?, ?, ?, ?, ?, ?, ?)');
+    const buf = Buffer.from(p.bytes.buffer, p.bytes.byteOffset, p.bytes.byteLength);
+    p.parts.forEach((part, k) => {
+      ins.run(sessionId, i.run, p.names[k], part.dtype, part.n, buf.subarray(part.offset, part.offset + part.length), part.decExp, part.factor);
+    });
+    this.putStats(sessionId, { info: i, stats: p.stats }, spikeK, false);
+  }
+
   /** (import) One audit row. */
   auditImport(actor: string, sessionId: number, detail: unknown): void {
     this.audit(actor, 'import', sessionId, null, detail);
@@ -1031,6 +1082,9 @@ export class ImportWriter {
   readonly bytes = { done: 0, total: 0 };
 
   private readonly report: ImportReport = { sessionId: 0, created: false, importedRuns: [], unchangedFiles: [], changedFiles: [], skippedRuns: [], warnings: [] };
+  /** Run logs the caller found to have only grown since they were stored (markGrown). */
+  private readonly grown = new Set<string>();
+  private readonly replaced = new Set<number>();
   private readonly sid: number;
   private readonly at = now();
   private readonly pos: Map<number, number>;
@@ -1113,7 +1167,23 @@ export class ImportWriter {
     return prev && prev.bytes === bytes ? { sha256: prev.sha256 } : null;
   }
 
-  /** Store (or compare, or refuse) the runs of one run log. */
+  /**
+   * The latest stored copy of a run log when the file now on disk is larger (it may have grown by
+   * appending); null otherwise. The caller hashes the file's first `bytes` bytes and, if that hash
+   * is `sha256`, calls markGrown(name) before addFile().
+   */
+  grownCandidate(name: string, bytes: number): { sha256: string; bytes: number } | null {
+    if (this.refused || this.report.created) return null;
+    const prev = this.store.latestSource(this.sid, name);
+    return prev && prev.bytes < bytes ? { sha256: prev.sha256, bytes: prev.bytes } : null;
+  }
+
+  /** This run log's stored bytes are the start of the new file (see grownCandidate). */
+  markGrown(name: string): void {
+    this.grown.add(name);
+  }
+
+  /** Store (or compare, or refuse, or replace a grown log's runs) the runs of one run log. */
   addFile(f: PreparedFile): void {
     if (this.ended) throw new Error('ImportWriter: addFile() after the import ended');
     if (this.refused) return;
@@ -1141,7 +1211,23 @@ export class ImportWriter {
           return p !== undefined && store.sameSamples(sid, r.run, p);
         });
         if (!same) {
-          this.report.changedFiles.push(f.name);
+          const storedHere = this.storedRuns.filter((r) => r.file === f.name);
+          const all = storedHere.every((r) => f.runs.some((x) => x.info.run === r.run));
+          if (!this.grown.has(f.name) || !all) {
+            this.report.changedFiles.push(f.name);
+            return;
+          }
+          // The log only grew since it was stored: its runs take the grown log's samples.
+          const earlier = store.sourceWithHash(sid, f.name, f.sha256);
+          sourceId = earlier ?? store.addSource(sid, f, 'runs', this.at);
+          if (earlier === undefined) this.newSources++;
+          for (const r of storedHere) {
+            const p = f.runs.find((x) => x.info.run === r.run)!;
+            if (store.sameSamples(sid, r.run, p)) continue;
+            store.replaceRun(sid, p, sourceId, this.spikeK);
+            this.replaced.add(r.run);
+          }
+          for (const p of fresh) this.insertFresh(p, sourceId, f.name);
           return;
         }
         if (prev && fresh.length === 0) this.report.unchangedFiles.push(f.name); // same samples, other bytes (e.g. line endings)
@@ -1155,17 +1241,19 @@ export class ImportWriter {
       }
       take = fresh;
     }
-    for (const p of take) {
-      const k = this.pos.get(p.info.run);
-      if (k === undefined) throw new Error(`ImportWriter: run ${p.info.run} is not in the index`);
-      const indexPos = this.report.created ? k : this.posBase + (k - this.storedRuns.length);
-      store.insertRun(sid, p, sourceId, indexPos, this.spikeK);
-      this.accepted.add(p.info.run);
-      this.onProgress?.({
-        phase: 'store', file: f.name, bytesDone: this.bytes.done, bytesTotal: this.bytes.total,
-        runsDone: this.accepted.size, runsTotal: this.start.index.length,
-      });
-    }
+    for (const p of take) this.insertFresh(p, sourceId, f.name);
+  }
+
+  private insertFresh(p: PreparedRun, sourceId: number, file: string): void {
+    const k = this.pos.get(p.info.run);
+    if (k === undefined) throw new Error(`ImportWriter: run ${p.info.run} is not in the index`);
+    const indexPos = this.report.created ? k : this.posBase + (k - this.storedRuns.length);
+    this.store.insertRun(this.sid, p, sourceId, indexPos, this.spikeK);
+    this.accepted.add(p.info.run);
+    this.onProgress?.({
+      phase: 'store', file, bytesDone: this.bytes.done, bytesTotal: this.bytes.total,
+      runsDone: this.accepted.size, runsTotal: this.start.index.length,
+    });
   }
 
   /** True once finish() has committed. */
@@ -1187,12 +1275,13 @@ export class ImportWriter {
         this.rollback();
         return r;
       }
-      r.importedRuns = index.map((i) => i.run).filter((run) => this.accepted.has(run));
-      r.skippedRuns = index.map((i) => i.run).filter((run) => !this.accepted.has(run));
+      if (this.replaced.size) r.replacedRuns = index.map((i) => i.run).filter((run) => this.replaced.has(run));
+      r.importedRuns = index.map((i) => i.run).filter((run) => this.accepted.has(run) || this.replaced.has(run));
+      r.skippedRuns = index.map((i) => i.run).filter((run) => !this.accepted.has(run) && !this.replaced.has(run));
       if (r.created && r.skippedRuns.length) {
         throw new Error(`import: no samples were read for run${r.skippedRuns.length > 1 ? 's' : ''} ${r.skippedRuns.join(', ')} of the index`);
       }
-      if (!r.created && this.accepted.size === 0 && this.newSources === 0 && !this.indexChanged) {
+      if (!r.created && this.accepted.size === 0 && this.replaced.size === 0 && this.newSources === 0 && !this.indexChanged) {
         this.rollback();
         return r;
       }
@@ -1201,6 +1290,7 @@ export class ImportWriter {
         created: r.created,
         folder: this.start.folder,
         runs: r.importedRuns,
+        ...(r.replacedRuns?.length ? { replacedRuns: r.replacedRuns, why: 'the run log grew after it was imported; its samples were replaced' } : {}),
         files: this.sources.filter((s) => !r.changedFiles.includes(s.name)),
         changedFiles: r.changedFiles,
         warnings: r.warnings,

@@ -32,6 +32,10 @@ if (args.has('--vs-numpy')) {
   const { benchVsNumpy } = await import('./bench-vs-numpy');
   process.exit(await benchVsNumpy(argv));
 }
+if (args.has('--verify')) {
+  const { benchVerify } = await import('./bench-verify');
+  process.exit(await benchVerify());
+}
 if (args.has('--stages')) {
   const { benchStages } = await import('./bench-stages');
   const runsArg = argv.indexOf('--runs');
@@ -52,6 +56,7 @@ if (args.has('--help')) {
     '  --vs-numpy  Rakeline against the numpy/pandas baseline (../shared/bench/baseline_numpy.py), whole processes, interleaved\n' +
     '              (add --startup for the start-up figures only)\n' +
     '  --stages    where an import\'s time goes, stage by stage, one thread (--runs 100 the session, --files N the first N logs)\n' +
+    '  --verify    what main/verify.ts costs a run (main re-reduces the results the page sends)\n' +
     '  --quick     a small session (smoke run)\n' +
     '  --keep      keep the generated files and databases (path printed)\n' +
     '  --digits N  significant digits of the logged sample values (default 6, like a scanner log; 0 = exact)\n' +

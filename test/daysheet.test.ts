@@ -4,6 +4,7 @@ import { describe, expect, it } from 'vitest';
 import { Window } from 'happy-dom';
 import { daySheetHtml, dragAxis, fmt, localTime, personName, runRanges, runsWord, settingsDifferences } from '../main/daysheet';
 import { escapeHtml, niceStep, niceTicks, svgPlot } from '../main/svgplot';
+import type { RunResult } from '../app/types';
 import { fixtureRuns, fixtureSession, fixtureSetup, fixtureSummary, LIFT_FLAG, UNSTEADY_FLAG } from './helpers/sheetFixture';
 
 function sheet(over: { title?: string; operators?: string[]; paper?: 'A4' | 'Letter'; notes?: string } = {}, runs = fixtureRuns()) {
@@ -113,6 +114,68 @@ describe('day sheet', () => {
     expect(legend).toContain('cl from wall momentum');
     expect(legend).toContain('hold flag');
     expect(legend).toContain('check flag of its own');
+  });
+
+  it('draws 95 % bars on cl (both lift methods) and on wake cd, each at value ± its half-width', () => {
+    // Invented intervals of known half-width; the sheet takes them from the full results.
+    const runs = fixtureRuns();
+    const summary = fixtureSummary(runs);
+    const half = { cl: 0.012, clMom: 0.02, cd: 0.0004 };
+    const results = summary.polar.map((q) => ({
+      run: q.run,
+      correction: { method: 'barlow-rae-pope', sigma: 0.0159, epsSb: 0.004, epsWb: 0.001, eps: 0.005 },
+      corrections: { requested: 'auto', applied: 'barlow-rae-pope', reason: 'test', methods: [], signature: null, teCp: 0.1, maskellDrag: { cd: 0.01, source: 'pressure' } },
+      uncertainty: {
+        cl: { value: q.cl, u: half.cl / 1.96, lo: q.cl - half.cl, hi: q.cl + half.cl },
+        clMom: { value: q.clMom, u: half.clMom / 1.96, lo: q.clMom - half.clMom, hi: q.clMom + half.clMom },
+        cd: { value: q.cd, u: half.cd / 1.96, lo: q.cd - half.cd, hi: q.cd + half.cd },
+      },
+    })) as unknown as RunResult[];
+    const win = new Window();
+    win.document.write(daySheetHtml({
+      session: fixtureSession(), setup: fixtureSetup(), runs, summary, paper: 'A4', generatedAt: '2026-11-18T18:00:00Z', timeZone: 'UTC', results,
+    }));
+    const [lift, drag] = [...win.document.querySelectorAll('.plots svg')];
+    const num = (el: { getAttribute(a: string): string | null }, a: string) => Number(el.getAttribute(a));
+    // The plot's y scale from two pressure-cl markers (circles, up-sweep, in polar order).
+    const circles = [...lift.querySelectorAll('g.series-circle circle')];
+    expect(circles.length).toBe(summary.polar.length);
+    const [p0, p1] = [summary.polar[0], summary.polar[1]];
+    const k = (num(circles[1], 'cy') - num(circles[0], 'cy')) / (p1.cl - p0.cl);
+    const py = (v: number) => num(circles[0], 'cy') + k * (v - p0.cl);
+    // One bar path per series: momentum squares first, then pressure circles; each bar "Mx,aVb".
+    const bars = [...lift.querySelectorAll('path.ubar')].map((el) => [...el.getAttribute('d')!.matchAll(/M([-\d.]+),([-\d.]+)V([-\d.]+)/g)].map((m) => m.slice(1).map(Number)));
+    expect(bars.length).toBe(2);
+    // Readable in print: a 0.6 pt stroke in the series colour, with end caps (one "h" per end).
+    for (const el of lift.querySelectorAll('path.ubar')) {
+      expect(Number(el.getAttribute('stroke-width'))).toBeGreaterThanOrEqual(0.5);
+      expect(el.getAttribute('d')!.match(/h/g)!.length).toBe(2 * summary.polar.length);
+    }
+    summary.polar.forEach((q, i) => {
+      for (const [series, v, h] of [[0, q.clMom, half.clMom], [1, q.cl, half.cl]] as const) {
+        const [x, a, b] = bars[series][i];
+        expect(x).toBeCloseTo(num(circles[i], 'cx'), 0);
+        expect(a).toBeCloseTo(py(v - h), 0); // f1 rounds to 0.1 pt
+        expect(b).toBeCloseTo(py(v + h), 0);
+      }
+    });
+    // Drag polar: horizontal bars on wake cd, "Ma,yHb", at cd ± half-width on the x scale of the diamonds.
+    const dBars = [...drag.querySelector('path.ubar')!.getAttribute('d')!.matchAll(/M([-\d.]+),([-\d.]+)H([-\d.]+)/g)].map((m) => m.slice(1).map(Number));
+    // Run 4 (hold flag) lies beyond the drag axis (set by the runs without one): an off-scale mark, no bar.
+    const onAxis = summary.polar.filter((q) => q.run !== 4);
+    expect(onAxis.length).toBeLessThan(summary.polar.length);
+    expect(drag.querySelector('g.offscale')).not.toBeNull();
+    expect(dBars.length).toBe(onAxis.length);
+    const mid = dBars.map(([a, , b]) => (a + b) / 2);
+    const [d0, d1] = onAxis;
+    const kx = (mid[1] - mid[0]) / (d1.cd - d0.cd);
+    onAxis.forEach((q, i) => {
+      const [a, , b] = dBars[i];
+      expect(mid[i]).toBeCloseTo(mid[0] + kx * (q.cd - d0.cd), 0);
+      expect(b - a).toBeCloseTo(kx * 2 * half.cd, 0);
+    });
+    // Without results the sheet draws no bars.
+    expect(sheet().doc.querySelectorAll('path.ubar').length).toBe(0);
   });
 
   it('lists a flag raised identically on several runs once, with its runs', () => {

@@ -134,15 +134,26 @@ describe('handlers on a real store', () => {
     expect(err.message).toContain('wind-off zero');
   });
 
-  it('stores results computed elsewhere after checking they belong to the session', async () => {
+  it('stores results computed elsewhere after checking they belong to the session and re-reducing them', async () => {
     const one = await h.call('runs.get', { sessionId, run: dataRuns[2] });
     const result = structuredClone(one.result!);
-    result.corrected.cd = NaN; // a wake-less run has cd = NaN; it must be accepted
     const saved = await h.call('runs.saveResults', { sessionId, results: [result as unknown as Record<string, unknown>] });
     expect(saved.saved).toHaveLength(1);
     const after = await h.call('runs.get', { sessionId, run: dataRuns[2] });
     expect(after.history).toHaveLength(one.history.length + 1);
-    expect(Number.isNaN(after.result!.corrected.cd)).toBe(true);
+    expect(after.result!.corrected.cl).toBe(result.corrected.cl);
+    // A result the reduction never gave (an altered flag reason, a dropped uncertainty bound):
+    // refused, nothing stored (main/verify.ts).
+    const altered = structuredClone(result);
+    altered.uncertainty.cl!.hi += 1e-3;
+    let refusal = await h.failure('runs.saveResults', { sessionId, results: [altered as unknown as Record<string, unknown>] });
+    expect(refusal.kind).toBe('validation');
+    expect(refusal.message).toContain(`run ${dataRuns[2]}: uncertainty.cl.hi: `);
+    const badSettings = structuredClone(result);
+    badSettings.settings.mcDraws = 10_000_000; // would make main work for minutes
+    refusal = await h.failure('runs.saveResults', { sessionId, results: [badSettings as unknown as Record<string, unknown>] });
+    expect(refusal.message).toContain('settings.mcDraws');
+    expect((await h.call('runs.get', { sessionId, run: dataRuns[2] })).history).toHaveLength(after.history.length);
 
     const wrongRun = { ...result, run: 999 };
     let err = await h.failure('runs.saveResults', { sessionId, results: [wrongRun] });

@@ -97,6 +97,48 @@ describe('(8) what is read with a reservation is said so', () => {
     }
   });
 
+  it('1e-400 in the run index: a warning (underflow) in the report, the audit trail and the CLI; in the run column an error', async () => {
+    const folder = copyFolder(base.dir, join(dir, 'index-underflow'));
+    const cellOf = (name: string) => (text: string) => text.split('\n')[0].split(',').indexOf(name);
+    const setCell = (t: string, line: number, name: string, v: string) => {
+      const k = cellOf(name)(t);
+      expect(k).toBeGreaterThanOrEqual(0);
+      return editLine(line, (c) => { c[k] = v; return c; })(t);
+    };
+    // Line 3 (the second run) and line 5: alpha_deg underflows to 0 (a plausible α, so only a
+    // warning can tell); line 4: humidity as a subnormal (fewer significant digits).
+    editFile(join(folder, 'runs.csv'), (t) => setCell(setCell(setCell(t, 3, 'alpha_deg', '1e-400'), 5, 'alpha_deg', '-7e-999'), 4, 'rh_pct', '4.9e-320'));
+    const store = Store.open(join(tempDir('rk-idx-uf-'), 'x.sqlite'));
+    try {
+      const rep = await importSessionFolder(store, folder);
+      expect(rep.warnings).toEqual([
+        'runs.csv line 3, column alpha_deg: "1e-400" is smaller than the smallest double and was read as 0 (2 such values in this column)',
+        'runs.csv line 4, column rh_pct: "4.9e-320" is smaller than the smallest double and was read as a subnormal number with fewer significant digits',
+      ]);
+      const audit = store.auditTrail(rep.sessionId).find((a) => a.action === 'import')!.detail as { warnings: string[] };
+      expect(audit.warnings).toEqual(rep.warnings);
+    } finally {
+      store.close();
+    }
+    const db = join(tempDir('rk-idx-uf-cli-'), 'day.sqlite');
+    const cli = await runCli(['--db', db, 'ingest', '--no-reduce', folder]);
+    expect(cli.code, cli.stderr).toBe(0);
+    expect(cli.stderr).toContain('warning: runs.csv line 3, column alpha_deg: "1e-400" is smaller than the smallest double and was read as 0');
+
+    const badRun = copyFolder(base.dir, join(dir, 'index-underflow-run'));
+    editFile(join(badRun, 'runs.csv'), (t) => setCell(t, 3, 'run', '1e-400'));
+    const s2 = Store.open(join(tempDir('rk-idx-uf2-'), 'x.sqlite'));
+    try {
+      const before = dbContents(s2);
+      const e = await importSessionFolder(s2, badRun).then(() => null, (x: unknown) => x);
+      expect(e).toBeInstanceOf(LogError);
+      expect((e as LogError).message).toBe('runs.csv line 3, column run: expected a run number (a whole number ≥ 0), found "1e-400", too small for a double');
+      expect(dbContents(s2)).toEqual(before);
+    } finally {
+      s2.close();
+    }
+  });
+
   it('the CLI prints each warning; a header-only runs.csv is an error with file and line and leaves no database file', async () => {
     const cdir = tempDir('rk-extras-cli-');
     const folder = makeTinySession(join(cdir, 'session'));

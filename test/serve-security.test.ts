@@ -16,6 +16,7 @@ import { writeSessionFolder } from '../main/logwriter';
 import { httpApi } from '../renderer/bridge';
 import { ContractFailure } from '../main/contract';
 import { miniRuns, miniSetup } from './helpers/mini-session';
+import { dbHolds } from './helpers/robust';
 
 let dir: string;
 let folder: string;
@@ -212,16 +213,55 @@ describe('server-sent events', () => {
     }
   });
 
-  it('keeps NaN through the HTTP bridge (a wake-less cd)', async () => {
-    const { result } = decodeWire((await api('sessions.list', {})).body) as { result: { id: number }[] };
-    const sessionId = result[0].id;
-    const get = decodeWire((await api('runs.get', { sessionId, run: 2 })).body) as { result: { result: Record<string, unknown> } };
-    const res = get.result.result as { corrected: { cd: number } };
-    res.corrected.cd = NaN;
-    const saved = await api('runs.saveResults', { sessionId, results: [res] });
-    expect(saved.status).toBe(200);
-    const back = decodeWire((await api('runs.get', { sessionId, run: 2 })).body) as { result: { result: { corrected: { cd: number } } } };
-    expect(Number.isNaN(back.result.result.corrected.cd)).toBe(true);
+  // A wake-less session (no rake probes): the reduction itself gives cd = NaN, nothing edited.
+  describe('results over the HTTP bridge (main verifies what the page asks it to store)', () => {
+    let sessionId: number;
+    let genuine: Record<string, unknown> & { corrected: { cl: number; cd: number }; run: number };
+    const dbFile = () => path.join(dir, 'serve.sqlite');
+    beforeAll(async () => {
+      const wakeless = path.join(dir, 'wakeless');
+      const setup = miniSetup({ rakeProbes: 0 });
+      const mini = miniRuns(setup, { dataRuns: 3, seed: 7 });
+      writeSessionFolder(wakeless, setup, mini.index, mini.runs);
+      const imp = decodeWire((await api('sessions.importFolder', { folder: wakeless })).body) as { result: { report: { sessionId: number } } };
+      sessionId = imp.result.report.sessionId;
+      const run = mini.index.find((i) => i.kind === 'data')!.run;
+      const got = decodeWire((await api('runs.get', { sessionId, run })).body) as { result: { result: typeof genuine } };
+      genuine = got.result.result;
+    });
+
+    it('carries a genuinely NaN cd (wake-less run) from the store to the page', () => {
+      expect(Number.isNaN(genuine.corrected.cd)).toBe(true);
+      expect(Number.isFinite(genuine.corrected.cl)).toBe(true);
+    });
+
+    it('refuses a hostile page\'s altered cl, naming the run and the field; the store is unchanged', async () => {
+      const before = dbHolds(dbFile());
+      const hostile = structuredClone(genuine);
+      hostile.corrected.cl += 0.05;
+      const res = await api('runs.saveResults', { sessionId, results: [hostile] });
+      expect(res.status).toBe(400); // a validation error envelope
+      const answer = decodeWire(res.body) as { error: { kind: string; message: string } };
+      expect(answer.error.kind).toBe('validation');
+      expect(answer.error.message).toContain(`run ${genuine.run}: corrected.cl: `);
+      expect(answer.error.message).toContain('nothing was stored');
+      // The same with a hand-made NaN where the reduction gives a number, and a dropped flag.
+      const nan = structuredClone(genuine);
+      nan.corrected.cl = NaN;
+      const e2 = decodeWire((await api('runs.saveResults', { sessionId, results: [nan] })).body) as { error: { message: string } };
+      expect(e2.error.message).toContain('corrected.cl: NaN where the reduction gives');
+      expect(dbHolds(dbFile())).toEqual(before);
+    });
+
+    it('accepts the genuine result (NaN cd included) and stores main\'s own reduction', async () => {
+      const hist = (decodeWire((await api('runs.get', { sessionId, run: genuine.run })).body) as { result: { history: unknown[] } }).result.history.length;
+      const res = decodeWire((await api('runs.saveResults', { sessionId, results: [genuine] })).body) as { result: { saved: number[] } };
+      expect(res.result.saved).toHaveLength(1);
+      const back = decodeWire((await api('runs.get', { sessionId, run: genuine.run })).body) as { result: { history: unknown[]; result: typeof genuine } };
+      expect(back.result.history).toHaveLength(hist + 1);
+      expect(Number.isNaN(back.result.result.corrected.cd)).toBe(true);
+      expect(back.result.result.corrected.cl).toBe(genuine.corrected.cl);
+    });
   });
 });
 

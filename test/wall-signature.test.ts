@@ -318,3 +318,56 @@ describe('when the walls cannot say', () => {
     expect(fit.worstAt).toEqual({ wall: 'floor', x: xs[9] });
   });
 });
+
+describe('wall Cp errors as the channels are wired (transducer groups, app/instruments.ts)', () => {
+  it('a gain common to the floor module: u(ε) from the correlated propagation matches 400 replicates; treated tap by tap it would not', () => {
+    // JCGM 100:2008 §5.2.2 (correlated inputs): u²(ε) = Σ(c_i u_i)² + (Σ c_i δCp_i)² for a common
+    // gain; the replicates draw one gain per run for all floor taps and independent tap noise.
+    const xs = evenly(-1.5 * h, 1.5 * h, 24);
+    const plan = signaturePlan({ floorX: xs, ceilingX: xs, height: h, chord: c });
+    const s = { vortex: 0.5 * V * c, source: 0.5 * V * c * 0.02, doublet: 2 * V * 0.0817 * c * c };
+    const f0 = wallCp(s, xs, -1, 400);
+    const c0 = wallCp(s, xs, 1, 400);
+    const uTap = 0.0005;
+    const uGain = 0.01; // 1 % module gain (invented)
+    const pRef = 0.5; // the floor readings p_i/q = Cp_i + 0.5: zeroed gauge readings (invented)
+    const n = f0.length + c0.length;
+    const gainShift = Float64Array.from([...f0.map((p) => uGain * (p + pRef)), ...c0.map(() => 0)]);
+    const wired = fitSignature(plan, f0, c0, V, { independent: new Float64Array(n).fill(uTap), common: [gainShift] })!;
+    const tapByTap = fitSignature(plan, f0, c0, V, {
+      independent: Float64Array.from(gainShift, (d) => Math.hypot(uTap, d)), common: [],
+    })!;
+    const z = normals(777);
+    const eps: number[] = [];
+    for (let r = 0; r < 400; r++) {
+      const g = z();
+      const fit = fitSignature(plan, f0.map((p) => p + g * uGain * (p + pRef) + uTap * z()), c0.map((p) => p + uTap * z()), V)!;
+      eps.push(fit.eps);
+    }
+    const mean = eps.reduce((a, b) => a + b, 0) / eps.length;
+    const sd = Math.sqrt(eps.reduce((a, b) => a + (b - mean) ** 2, 0) / (eps.length - 1));
+    // Sample sd of 400 normal draws: relative standard error 3.5 %; 12 % ≈ 3.4 of them.
+    expect(Math.abs(sd / wired.uEps - 1)).toBeLessThan(0.12);
+    expect(Math.abs(sd / tapByTap.uEps - 1)).toBeGreaterThan(0.12);
+    // A scalar uCp is the same as equal independent parts and no common ones.
+    const scalar = fitSignature(plan, f0, c0, V, uTap)!;
+    const spelled = fitSignature(plan, f0, c0, V, { independent: new Float64Array(n).fill(uTap), common: [] })!;
+    expect(spelled.uEps).toBeCloseTo(scalar.uEps, 15);
+    expect(() => fitSignature(plan, f0, c0, V, { independent: [uTap], common: [] })).toThrow(/expected 48 wall-Cp uncertainties/);
+  });
+
+  it('a pure offset common to every wall tap leaves ε alone (the fit\'s offset term takes it)', () => {
+    const xs = evenly(-1.5 * h, 1.5 * h, 24);
+    const plan = signaturePlan({ floorX: xs, ceilingX: xs, height: h, chord: c });
+    const s = { vortex: 0.5 * V * c, source: 0.5 * V * c * 0.02, doublet: 2 * V * 0.0817 * c * c };
+    const f0 = wallCp(s, xs, -1, 400);
+    const c0 = wallCp(s, xs, 1, 400);
+    const n = f0.length + c0.length;
+    // In Cp a common offset δ moves b_i by about −δ/(2√(1 − Cp_i)), nearly uniform for |Cp| ≪ 1:
+    // its u(ε) is small beside the same offset counted tap by tap (derived here).
+    const offset = new Float64Array(n).fill(0.002);
+    const common = fitSignature(plan, f0, c0, V, { independent: new Float64Array(n), common: [offset] })!;
+    const apart = fitSignature(plan, f0, c0, V, { independent: offset, common: [] })!;
+    expect(common.uEps).toBeLessThan(0.2 * apart.uEps);
+  });
+});

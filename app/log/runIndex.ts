@@ -69,6 +69,9 @@ export function parseRunIndexDetailed(text: string, file: string): RunIndexResul
   const runs: RunInfo[] = [];
   const lines: number[] = [];
   const firstLine = new Map<number, number>();
+  // Values too small for a double (1e-400 → 0, or a subnormal with fewer digits): the first per
+  // column and a count, as warnings (like the run logs' underflows, app/log/runParser.ts).
+  const underflows = new Map<string, { line: number; text: string; zero: boolean; count: number }>();
   for (const r of recs.slice(1)) {
     if (r.cells.length < ncols) {
       throw new LogError({
@@ -85,6 +88,13 @@ export function parseRunIndexDetailed(text: string, file: string): RunIndexResul
       const v = t === '' ? NaN : Number(t);
       if (!Number.isFinite(v)) {
         throw new LogError({ file, line: r.line, column: name === 'baro' ? head.cells[baroCol] : name, expected: /^[+-]?(nan|inf)/i.test(t) ? `a finite number` : what, found: t === '' ? 'an empty cell' : shown(t) });
+      }
+      if (underflowed(t, v)) {
+        const column = name === 'baro' ? head.cells[baroCol] : name;
+        if (name === 'run') throw new LogError({ file, line: r.line, column, expected: 'a run number (a whole number ≥ 0)', found: `${shown(t)}, too small for a double` });
+        const u = underflows.get(column);
+        if (u) u.count++;
+        else underflows.set(column, { line: r.line, text: t, zero: v === 0, count: 1 });
       }
       return v;
     };
@@ -129,5 +139,16 @@ export function parseRunIndexDetailed(text: string, file: string): RunIndexResul
   if (runs.length === 0) {
     throw new LogError({ file, line: head.line + 1, reason: 'the index has a header but no runs; expected at least one run line' });
   }
+  for (const [column, u] of underflows) {
+    const more = u.count > 1 ? ` (${u.count} such values in this column)` : '';
+    warnings.push(`${file} line ${u.line}, column ${column}: ${shown(u.text)} is smaller than the smallest double and was read as ${u.zero ? '0' : 'a subnormal number with fewer significant digits'}${more}`);
+  }
   return { runs, lines, warnings };
+}
+
+/** A decimal text with a nonzero digit in its mantissa that reads as 0 or a subnormal double. */
+function underflowed(text: string, v: number): boolean {
+  if (v !== 0 && Math.abs(v) >= 2.2250738585072014e-308) return false;
+  const mantissa = text.trim().replace(/^[+-]/, '').split(/[eE]/)[0];
+  return /[1-9]/.test(mantissa);
 }
