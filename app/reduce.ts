@@ -679,6 +679,7 @@ function mcModel(
     chord: setup.model.chord,
     height: setup.facility.sectionHeight,
     correction: nominal.correction,
+    rule: settings.contourRule,
   });
 
   const perturbed: Record<string, number> = {};

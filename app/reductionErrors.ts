@@ -38,7 +38,7 @@
 //   (c/4h) value.
 // Pure module.
 
-import { contourIntegrals, type ContourIntegrals } from './surface';
+import { contourIntegrals, type ContourIntegrals, type ContourRule } from './surface';
 import { jonesIntegral, jonesTerm } from './wake';
 import { trapezoid } from './quadrature';
 import type { CorrectionMethod, CorrectionResult, WakeResult, WallResult } from './types';
@@ -83,8 +83,8 @@ export interface RowArrays {
 
 type Loads = Pick<ContourIntegrals, 'cl' | 'cdp' | 'cmc4'>;
 
-function loadsOf(r: RowArrays, alphaDeg: number): Loads {
-  return contourIntegrals(r.x, r.y, r.cp, r.n, r.nUpper, alphaDeg);
+function loadsOf(r: RowArrays, alphaDeg: number, rule: ContourRule = 'linear'): Loads {
+  return contourIntegrals(r.x, r.y, r.cp, r.n, r.nUpper, alphaDeg, rule);
 }
 
 /** Every `step`-th point along the contour from `start` (the interleaved subsets), or null when a
@@ -108,13 +108,13 @@ function subset(r: RowArrays, step: number, start: number): RowArrays | null {
 export const INTEGRATION_FS = 2;
 
 /** Interleaved-subsets estimate of the integration error (see the module comment). */
-export function integrationError(r: RowArrays, alphaDeg: number): Loads {
+export function integrationError(r: RowArrays, alphaDeg: number, rule: ContourRule = 'linear'): Loads {
   const halves = [subset(r, 2, 0), subset(r, 2, 1)];
   if (!halves[0] || !halves[1]) return { cl: 0, cdp: 0, cmc4: 0 };
   const quarters = [0, 1, 2, 3].map((s) => subset(r, 4, s));
-  const whole = loadsOf(r, alphaDeg);
-  const lh = halves.map((h) => loadsOf(h!, alphaDeg));
-  const lq = quarters.every((q) => q !== null) ? quarters.map((q) => loadsOf(q!, alphaDeg)) : null;
+  const whole = loadsOf(r, alphaDeg, rule);
+  const lh = halves.map((h) => loadsOf(h!, alphaDeg, rule));
+  const lq = quarters.every((q) => q !== null) ? quarters.map((q) => loadsOf(q!, alphaDeg, rule)) : null;
   const u = (k: keyof Loads) => {
     const i2 = 0.5 * (lh[0][k] + lh[1][k]);
     const d12 = Math.abs(whole[k] - i2);
@@ -241,12 +241,15 @@ export function reductionErrors(args: {
   chord: number;
   height: number;
   correction: CorrectionResult;
+  /** The contour rule of the reduction (Settings.contourRule): the integration estimate compares
+   *  that rule's whole row with its halves and quarters. */
+  rule?: ContourRule;
 }): ReductionErrors {
   const rake = args.wake ? rakeErrors(args.wake, args.chord) : { spacing: 0, truncation: 0 };
   const walls = args.walls ? wallErrors(args.walls, args.height) : { shape: 0, fit: 0 };
   const on = args.correction.method !== 'none';
   return {
-    integration: integrationError(args.row, args.alphaDeg),
+    integration: integrationError(args.row, args.alphaDeg, args.rule ?? 'linear'),
     trailingEdge: trailingEdgeError(args.row, args.alphaDeg),
     rakeSpacing: rake.spacing,
     rakeTruncation: rake.truncation,

@@ -10,7 +10,7 @@
 // prediction test, app/tapCheck.ts; wind-off leak) is common practice, no source.
 
 import { DEFAULT_SETTINGS } from './types';
-import { type SplineOptions, SPLINE_DEFAULTS, splineIntegrals } from './contourSpline';
+import { splineIntegrals } from './contourSpline';
 import { findRowOutliers, type TapVerdict } from './tapCheck';
 import { inviscidShape } from './tapShape';
 import type { Geometry, Settings, Surface, SurfaceLoads, TapCp } from './types';
@@ -98,13 +98,14 @@ export type ContourIntegrals = Pick<SurfaceLoads, 'cn' | 'ca' | 'cl' | 'cdp' | '
 };
 
 /** How Cp (and the contour between taps) is interpolated for the integrals: 'linear' — straight
- *  segments between taps, Cp linear along each; 'spline' — cubic splines in Glauert's angle of
- *  x/c, y/c and the signed speed times the contour's stretch (app/contourSpline.ts). */
+ *  segments between taps, Cp linear along each; 'spline' — cubic splines of the contour and the
+ *  surface speed in the square-root plane of the nose, through the taps (app/contourSpline.ts).
+ *  'linear' is the default here and in Settings.contourRule. */
 export type ContourRule = 'spline' | 'linear';
 
 /** The words a result uses for each rule. */
 export const CONTOUR_RULE_TEXT: Record<ContourRule, string> = {
-  spline: "cubic splines in Glauert's angle φ (x/c = (1 − cos φ)/2) of x/c, y/c and the signed speed times ds/dφ (not-a-knot, trailing edge at both ends)",
+  spline: 'cubic splines of the contour and the surface speed in the square-root plane of the nose (not-a-knot, trailing edge at both ends)',
   linear: 'Cp linear between taps on straight segments',
 };
 
@@ -115,7 +116,7 @@ let nodeCp = new Float64Array(256);
 /** See ContourIntegrals. */
 export function contourIntegrals(
   x: ArrayLike<number>, y: ArrayLike<number>, cp: ArrayLike<number>, n: number, nUpper: number, alphaDeg: number,
-  rule: ContourRule = 'linear', splineOptions: SplineOptions = SPLINE_DEFAULTS,
+  rule: ContourRule = 'linear',
 ): ContourIntegrals {
   // Trailing-edge value of each surface at x/c = 1: linear through the tap nearest the trailing
   // edge and the next one with a distinct x (by more than 1e-9), else the nearest tap.
@@ -179,7 +180,7 @@ export function contourIntegrals(
     nodeX[n + 1] = teX;
     nodeY[n + 1] = teY;
     nodeCp[n + 1] = teCp;
-    const r = splineIntegrals(nodeX, nodeY, nodeCp, m, splineOptions, nUpper);
+    const r = splineIntegrals(nodeX, nodeY, nodeCp, m);
     sCpDx = r.sCpDx;
     sCpDy = r.sCpDy;
     sMom = r.sMom;

@@ -13,9 +13,9 @@
  *  transducer groups in the uncertainty, every interval on the corrected basis, corrected Γ, the
  *  per-run budget, the wake's q∞ = H∞ − p∞ when H∞ is measured; 0.6.0: the bad-tap test also
  *  predicts from the fitted inviscid shape (app/tapShape.ts) on rows of 20 taps or more, and keep
- *  decisions (Settings.keptTaps) with each result's `kept`); 0.6.1: the 'spline' contour rule
- *  splines the signed speed times ds/dφ in Glauert's angle φ (app/contourSpline.ts). */
-export const CORE_VERSION = '0.6.1';
+ *  decisions (Settings.keptTaps) with each result's `kept`; 0.7.0: the 'spline' contour rule rebuilt in
+ *  the square-root plane of the nose (app/contourSpline.ts); 'linear' stays the default). */
+export const CORE_VERSION = '0.7.0';
 
 export type PressureUnit =
   | 'Pa' | 'kPa' | 'hPa' | 'mbar' | 'psi' | 'inH2O' | 'mmH2O' | 'mmHg' | 'torr';
@@ -192,8 +192,10 @@ export interface Settings {
   /** Stagnation check: the row's highest Cp above the isentropic Cp_stag by more than stagnationK
    *  standard uncertainties gives a reference flag (the tap is kept). */
   stagnationK: number;
-  /** Contour rule of the surface integration: 'linear' (Cp linear between taps) or 'spline'
-   *  (cubic splines in arc length with the stagnation region resolved, app/contourSpline.ts). */
+  /** Contour rule of the surface integration: 'linear' (the default: Cp linear between taps on
+   *  straight segments) or 'spline' (cubic splines of the contour and the surface speed in the
+   *  square-root plane of the nose, app/contourSpline.ts; more accurate on sparse rows, but not
+   *  linear in the taps' Cp — see docs/TAP-JUDGEMENT.md §3). */
   contourRule: 'linear' | 'spline';
   /** Wind-off leak: a tap whose wind-off zero departs from the median zero of the taps by more
    *  than this many Pa is flagged as leaking. */

@@ -5,18 +5,12 @@
 // targets are in test/contour-rule.test.ts). Run: npx tsx scripts/contour-sweep.ts
 import { readFileSync } from 'node:fs';
 import { contourIntegrals, orderContour } from '../app/surface';
-import type { SplineOptions } from '../app/contourSpline';
 import { arcTaps, joukowski } from '../test/helpers/joukowski';
 
-type Variant = { name: string; rule: 'linear' | 'spline'; opts?: SplineOptions };
+type Variant = { name: string; rule: 'linear' | 'spline' };
 const VARIANTS: Variant[] = [
   { name: 'linear', rule: 'linear' },
-  { name: 'spline (speed, centripetal)', rule: 'spline', opts: { speed: true, param: 'centripetal' } },
-  { name: 'spline (speed, chord)', rule: 'spline', opts: { speed: true, param: 'chord' } },
-  { name: 'spline (Cp, chord)', rule: 'spline', opts: { speed: false, param: 'chord' } },
-  { name: 'spline (Cp, Glauert φ)', rule: 'spline', opts: { speed: false, param: 'glauert' } },
-  { name: 'spline (speed, Glauert φ)', rule: 'spline', opts: { speed: true, param: 'glauert' } },
-  { name: 'spline (speed × ds/dφ, Glauert φ)', rule: 'spline', opts: { speed: true, param: 'glauert', metric: true } },
+  { name: 'spline', rule: 'spline' },
 ];
 /** Joukowski m, n: t/c ≈ 9, 12, 15 % (m 0.075, 0.1, 0.125), camber ≈ n/2 (0, 2, 4 %). */
 const SECTIONS = [[0.075, 0], [0.1, 0], [0.1, 0.04], [0.125, 0.08], [0.075, 0.08], [0.125, 0]];
@@ -36,7 +30,7 @@ for (const [m, n] of SECTIONS) {
       const y = o.map((p) => p.y);
       const cp = o.map((p) => p.cp);
       for (const v of VARIANTS) {
-        const r = contourIntegrals(x, y, cp, o.length, nU, a, v.rule, v.opts);
+        const r = contourIntegrals(x, y, cp, o.length, nU, a, v.rule);
         for (const key of [`${v.name}|${N}|all`, `${v.name}|${N}|${m},${n}`]) {
           const w = worst.get(key) ?? { cl: 0, cm: 0 };
           w.cl = Math.max(w.cl, Math.abs(r.cl - J.cl));

@@ -1,67 +1,113 @@
-// Contour rules (issue 9 part 5) against exact potential flow: Joukowski sections from
-// test/helpers/joukowski.ts (Milne-Thomson, Theoretical Hydrodynamics, ch. 7; Katz & Plotkin,
-// Low-Speed Aerodynamics, 2nd ed., §6.5, memory; REDUCTION.md §11 case 2), rows of taps cosine-
-// spaced in arc length with a 3 % gap at the trailing edge (arcTaps). The full table is printed by
-// scripts/contour-sweep.ts and kept in docs/TAP-JUDGEMENT.md. The bounds here are the measured
-// worst cases rounded up, so a change that makes a rule worse fails.
-// The issue's targets (|Δcl| ≤ 0.004 at 24 taps, ≤ 0.001 at 48 taps, α −8…12°) are met by neither
-// rule at 24 taps (linear 0.0121, spline 0.0091 at worst over the sections): 'linear' stays the
-// default; the 48-tap target is asserted for the spline, which meets it.
+// The 'spline' contour rule (Settings.contourRule, issue 9 part 5) on exact sections: the exact flow
+// is the Joukowski airfoil by conformal mapping with the Kutta condition (REDUCTION.md §11 case 2;
+// Milne-Thomson, Theoretical Hydrodynamics ch. 7, Katz & Plotkin §6.5, memory; generator
+// test/helpers/joukowski.ts, its cl and cm_c/4 in closed form). Rows are realistic: cosine spacing
+// in arc length from a leading-edge tap, a 3 % gap at the trailing edge (arcTaps). The targets are
+// the issue's: worst |Δcl| over α −8…12° within 0.004 at 24 taps and 0.001 at 48, cm improved on
+// linear; the rule must also beat linear at 16 taps and not be worse at 96. Measured figures are
+// in docs/TAP-JUDGEMENT.md §3; nothing here is tuned to one section (three sections, 9.6–15 %
+// thick, 0–4 % camber).
 import { describe, expect, it } from 'vitest';
-import { integrateContour } from '../app/surface';
+import { integrateContour, type ContourRule } from '../app/surface';
 import { DEFAULT_SETTINGS } from '../app/types';
 import { arcTaps, joukowski } from './helpers/joukowski';
 
-/** Joukowski m, n: about 9 %, 12 % and 15 % thick, 0–4 % camber. */
-const SECTIONS: [number, number][] = [[0.075, 0], [0.1, 0.04], [0.125, 0.08]];
+/** Circle offsets (m, n) of the sections: thickness and camber measured in the first test. */
+const SECTIONS: [string, number, number][] = [
+  ['symmetric', 0.075, 0],
+  ['12 % thick, 2 % camber', 0.1, 0.04],
+  ['15 % thick, 4 % camber', 0.125, 0.08],
+];
 
-const ROWS = new Map<string, { J: ReturnType<typeof joukowski>; taps: ReturnType<typeof arcTaps> }>();
-function rowOf(m: number, n: number, a: number, count: number) {
-  const key = `${m} ${n} ${a} ${count}`;
-  let r = ROWS.get(key);
-  if (!r) {
-    const J = joukowski(m, n, a);
-    r = { J, taps: arcTaps(J, count) };
-    ROWS.set(key, r);
-  }
-  return r;
-}
-
-function worst(count: number, rule: 'linear' | 'spline', alphaHi = 12) {
+function worst(m: number, n: number, count: number, rule: ContourRule, aMax = 12) {
   let cl = 0;
   let cm = 0;
-  for (const [m, n] of SECTIONS) {
-    for (let a = -8; a <= alphaHi; a += 2) {
-      const { J, taps } = rowOf(m, n, a, count);
-      const r = integrateContour(taps, a, rule);
-      expect(r.rule).toBe(rule);
-      cl = Math.max(cl, Math.abs(r.cl - J.cl));
-      cm = Math.max(cm, Math.abs(r.cmc4 - J.cmc4));
-    }
+  for (let a = -8; a <= aMax; a++) {
+    const J = joukowski(m, n, a);
+    const r = integrateContour(arcTaps(J, count), a, rule);
+    expect(r.rule).toBe(rule);
+    cl = Math.max(cl, Math.abs(r.cl - J.cl));
+    cm = Math.max(cm, Math.abs(r.cmc4 - J.cmc4));
   }
   return { cl, cm };
 }
 
-describe('contour rules on exact Joukowski sections (9–15 % thick, 0–4 % camber)', () => {
-  it('the default rule is linear (the spline misses the 24-tap target)', () => {
+describe('the spline contour rule on exact Joukowski sections', () => {
+  const rule: ContourRule = 'spline';
+  it('the sections span 9–15 % thickness and 0–4 % camber; linear stays the default rule', () => {
+    // docs/TAP-JUDGEMENT.md §3: spline is not linear in Cp, and as the default it broke the
+    // uncertainty coverage; until that is solved, linear is the default.
     expect(DEFAULT_SETTINGS.contourRule).toBe('linear');
+    const dims = SECTIONS.map(([, m, n]) => {
+      const taps = arcTaps(joukowski(m, n, 0), 400);
+      const up = taps.filter((p) => p.surface === 'upper');
+      const lo = taps.filter((p) => p.surface === 'lower');
+      let t = 0;
+      let f = 0;
+      for (const u of up) {
+        const l = lo.reduce((a, b) => (Math.abs(b.x - u.x) < Math.abs(a.x - u.x) ? b : a));
+        t = Math.max(t, u.y - l.y);
+        f = Math.max(f, 0.5 * (u.y + l.y));
+      }
+      return { t, f };
+    });
+    expect(dims[0].t).toBeGreaterThan(0.09);
+    expect(dims[0].t).toBeLessThan(0.1);
+    expect(dims[0].f).toBeLessThan(0.001);
+    expect(dims[1].t).toBeGreaterThan(0.11);
+    expect(dims[1].t).toBeLessThan(0.13);
+    expect(dims[2].t).toBeGreaterThan(0.14);
+    expect(dims[2].t).toBeLessThan(0.16);
+    expect(dims[2].f).toBeGreaterThan(0.035);
+    expect(dims[2].f).toBeLessThan(0.045);
   });
-  it('the spline is better than linear at 16, 24, 48 and 96 taps in worst |Δcl| and |Δcm|', () => {
-    for (const n of [16, 24, 48, 96]) {
-      const l = worst(n, 'linear');
-      const s = worst(n, 'spline');
-      expect(s.cl, `${n} taps cl`).toBeLessThan(l.cl);
-      expect(s.cm, `${n} taps cm`).toBeLessThan(l.cm);
+  for (const [name, m, n] of SECTIONS) {
+    it(`${name}: cl within 0.004 at 24 taps and 0.001 at 48, α −8…12° (issue 9 targets)`, () => {
+      expect(worst(m, n, 24, rule).cl).toBeLessThan(0.004);
+      expect(worst(m, n, 48, rule).cl).toBeLessThan(0.001);
+    });
+    it(`${name}: better than linear at 16, 24 and 48 taps in cl and cm_c/4, not worse at 96`, () => {
+      for (const count of [16, 24, 48]) {
+        const s = worst(m, n, count, rule);
+        const l = worst(m, n, count, 'linear');
+        expect(s.cl, `${count} taps cl`).toBeLessThan(l.cl);
+        expect(s.cm, `${count} taps cm`).toBeLessThan(l.cm);
+      }
+      const s = worst(m, n, 96, rule);
+      const l = worst(m, n, 96, 'linear');
+      // Both are at the trailing-edge closure's level here; "not worse" within 1e-4.
+      expect(s.cl).toBeLessThan(l.cl + 1e-4);
+      expect(s.cm).toBeLessThan(l.cm + 1e-4);
+    });
+  }
+  it('no regression past 12°: α −8…16° at 24 and 48 taps stays within 0.005 and 0.001 in cl', () => {
+    for (const [, m, n] of SECTIONS) {
+      expect(worst(m, n, 24, rule, 16).cl).toBeLessThan(0.005);
+      expect(worst(m, n, 48, rule, 16).cl).toBeLessThan(0.001);
     }
   });
-  it('the spline meets the 48-tap target (0.001 in cl) and stays within its measured bounds', () => {
-    expect(worst(48, 'spline').cl).toBeLessThan(0.001);
-    expect(worst(48, 'spline').cm).toBeLessThan(0.0005);
-    expect(worst(24, 'spline').cl).toBeLessThan(0.01);
-    expect(worst(96, 'spline').cl).toBeLessThan(0.0005);
+});
+
+describe('the spline on awkward rows', () => {
+  const J = joukowski(0.1, 0.04, 4);
+  const base = arcTaps(J, 24);
+  it('a stagnation tap reading 1.05 (a q error) changes cl by a bounded amount and stays finite', () => {
+    const j = base.reduce((b, p, i) => (p.cp > base[b].cp ? i : b), 0);
+    const taps = base.map((p, i) => (i === j ? { ...p, cp: 1.05 } : p));
+    const r = integrateContour(taps, 4, 'spline');
+    expect(Number.isFinite(r.cl)).toBe(true);
+    expect(Math.abs(r.cl - J.cl)).toBeLessThan(0.02);
   });
-  it('linear stays within its measured bounds (worst |Δcl| 24 taps 0.012, 48 taps 0.004)', () => {
-    expect(worst(24, 'linear').cl).toBeLessThan(0.013);
-    expect(worst(48, 'linear').cl).toBeLessThan(0.0045);
+  it('a row without a leading-edge tap (the nearest at x/c ≈ 0.01 on each side) still meets 0.004', () => {
+    const taps = base.filter((p) => p.x > 1e-4);
+    expect(taps.length).toBe(23);
+    expect(Math.abs(integrateContour(taps, 4, 'spline').cl - J.cl)).toBeLessThan(0.004);
+  });
+  it('dense exact data: within 1e-5 of exact cl and cm_c/4', () => {
+    const K = joukowski(0.1, 0.05, 5);
+    const taps = K.taps(2000).map((p, i) => ({ id: `h${i}`, ...p }));
+    const r = integrateContour(taps, 5, 'spline');
+    expect(Math.abs(r.cl - K.cl)).toBeLessThan(1e-5);
+    expect(Math.abs(r.cmc4 - K.cmc4)).toBeLessThan(1e-5);
   });
 });

@@ -245,10 +245,10 @@ describe('stagnation and the references', () => {
 });
 
 describe('contour rules on exact sections, α −8° … 12°', () => {
-  // Measured on this section (scripts/contour-sweep.ts, docs/TAP-JUDGEMENT.md §3), max
-  // |cl − cl_exact| linear / spline (core 0.6.1, Glauert's angle): 16 taps 0.0174 / 0.0200, 24 taps
-  // 0.0090 / 0.0070, 48 taps 0.0018 / 0.0001, 96 taps 0.0012 / 0.0001; the spline misses the issue's
-  // 24-tap target (0.004), so 'linear' stays the default and 'spline' is a setting.
+  // Measured (docs/TAP-JUDGEMENT.md §3), max |cl − cl_exact| linear / spline (core 0.7.0, the
+  // square-root-plane spline): 16 taps 0.017 / 0.011, 24 taps 0.0090 / 0.0011, 48 taps 0.0018 /
+  // 0.0004, 96 taps 0.0012 / 0.0003. The targets for the default rule are asserted on three
+  // sections in test/contour-rule.test.ts.
   function worst(count: number, rule: 'linear' | 'spline') {
     let cl = 0;
     let cm = 0;
