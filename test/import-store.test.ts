@@ -162,14 +162,15 @@ describe('re-import', () => {
     store.close();
   });
 
-  it('a run file back to bytes stored before (LF → CRLF → LF) re-imports cleanly', async () => {
-    // Found by test/import-fuzz.test.ts (seed 692876779): the third import tried to store the first
-    // bytes' source row a second time and failed on the UNIQUE (session, name, sha256) key.
+  // Found by test/import-fuzz.test.ts (seeds 692876779 for a run log, -1792358101 for the index): the
+  // third import tried to store the first bytes' source row a second time and failed on the UNIQUE
+  // (session, name, sha256) key.
+  it.each(['runs/run-0002.csv', 'runs.csv'])('%s back to bytes stored before (LF → CRLF → LF) re-imports cleanly', async (name) => {
     const dir = tempDir();
     const f = miniFolder(join(dir, 's'));
     const store = freshStore(dir);
     await importSessionFolder(store, f.dir);
-    const path = join(f.dir, 'runs/run-0002.csv');
+    const path = join(f.dir, name);
     const lf = readFileSync(path, 'utf8');
     editFile(path, (t) => t.replace(/\n/g, '\r\n'));
     await importSessionFolder(store, f.dir);
@@ -178,27 +179,7 @@ describe('re-import', () => {
     const rep = await importSessionFolder(store, f.dir);
     expect(rep.changedFiles).toEqual([]);
     expect(rep.importedRuns).toEqual([]);
-    expect(rep.unchangedFiles).toContain('runs/run-0002.csv');
-    expect(dbSnapshot(store)).toBe(before);
-    store.close();
-  });
-
-  it('the run index back to bytes stored before (LF → CRLF → LF) re-imports cleanly', async () => {
-    // Found by test/import-fuzz.test.ts (seed -1792358101): the same A → B → A as above, for runs.csv.
-    const dir = tempDir();
-    const f = miniFolder(join(dir, 's'));
-    const store = freshStore(dir);
-    await importSessionFolder(store, f.dir);
-    const path = join(f.dir, 'runs.csv');
-    const lf = readFileSync(path, 'utf8');
-    editFile(path, (t) => t.replace(/\n/g, '\r\n'));
-    await importSessionFolder(store, f.dir);
-    editFile(path, () => lf);
-    const before = dbSnapshot(store);
-    const rep = await importSessionFolder(store, f.dir);
-    expect(rep.changedFiles).toEqual([]);
-    expect(rep.importedRuns).toEqual([]);
-    expect(rep.unchangedFiles).toContain('runs.csv');
+    expect(rep.unchangedFiles).toContain(name);
     expect(dbSnapshot(store)).toBe(before);
     store.close();
   });
