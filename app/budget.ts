@@ -9,7 +9,11 @@
 // contributions combined in root-sum-square; correlated inputs (one transducer group's gain or
 // zero) are one input, moved together, so the correlation is in the line. The combined standard
 // uncertainty is the root-sum-square of the lines, and the analytic 95 % interval y ± k·u_c with
-// k = 1.96 (normal distribution, JCGM 100 §G.2), beside the Monte Carlo interval (JCGM 101).
+// k = 1.96 (normal distribution, JCGM 100 §G.2), beside the Monte Carlo interval (JCGM 101). Both
+// are placed with the estimated integration error (app/reductionErrors.ts integrationError: the
+// reduced value is known to be low or high by about that much, and it is not applied to the values,
+// JCGM 100 §F.2.4.5 in spirit): y + shift ± k·u_c, where shift is that error carried to each output,
+// stretched where needed to hold y itself.
 // Pure module.
 
 import type { McModel } from './reduce';
@@ -176,8 +180,10 @@ export function runBudget(
     if (deltas.length) line(source, kind, u, basis, deltas);
   };
   const sig = (v: number) => Number(v.toPrecision(2));
-  adjLine('integration (tap resolution)', 'reduction', `cl ${sig(e.integration.cl)}, cm ${sig(e.integration.cmc4)}`,
-    'whole row against its interleaved halves and quarters (Richardson, observed order; GCI form, F_s = 2)',
+  const sgn = (v: number) => `${v >= 0 ? '+' : '−'}${sig(Math.abs(v))}`;
+  adjLine('integration (tap resolution)', 'reduction',
+    `cl ${sig(e.integration.cl)}, cm ${sig(e.integration.cmc4)} about an estimated error of cl ${sgn(e.integrationShift.cl)}, cm ${sgn(e.integrationShift.cmc4)} (not applied to the values; the intervals are placed with it)`,
+    'whole row against its interleaved halves (Richardson, order of the rule); u from the halves\' disagreement',
     [[ADJ.cl, e.integration.cl], [ADJ.cdp, e.integration.cdp], [ADJ.cmc4, e.integration.cmc4]]);
   adjLine('trailing-edge closure', 'reduction', `cl ${sig(e.trailingEdge.cl)}, cm ${sig(e.trailingEdge.cmc4)}`,
     'spread of three closures, rectangular (range/√12)',
@@ -193,15 +199,25 @@ export function runBudget(
   adjLine('correction model: ε_wb', 'correction', `${sig(e.epsWb * 100)} % of ε_wb`,
     'the two published wake-blockage forms (c/2h, c/4h)·cd_u as a rectangular range', [[ADJ.epsWb, e.epsWb]]);
 
+  // The estimated integration error carried to every output (the model with the adjustments at
+  // their means, app/reductionErrors.ts adjustmentMean): the analytic interval is placed with it,
+  // as the Monte Carlo draws are.
+  adj.set(m.adjMean);
+  const moved = delta(0);
+  adj.fill(0);
   const combined: UncertaintyBudget['combined'] = {};
   const analytic: UncertaintyBudget['analytic'] = {};
+  const shift: NonNullable<UncertaintyBudget['shift']> = {};
   for (const k of KEYS) {
     if (!Number.isFinite(nominal[k])) continue;
     let s = 0;
     for (const l of lines) s += (l.contribution[k] ?? 0) ** 2;
     const uc = Math.sqrt(s);
     combined[k] = uc;
-    analytic[k] = { lo: nominal[k] - K95 * uc, hi: nominal[k] + K95 * uc };
+    const d = Number.isFinite(moved[k]) ? moved[k] : 0;
+    shift[k] = d;
+    // Stretched to hold the value itself, as the Monte Carlo interval is (app/reduce.ts holdingValue).
+    analytic[k] = { lo: Math.min(nominal[k], nominal[k] + d - K95 * uc), hi: Math.max(nominal[k], nominal[k] + d + K95 * uc) };
   }
-  return { lines, combined, analytic, k: K95 };
+  return { lines, combined, analytic, shift, k: K95 };
 }

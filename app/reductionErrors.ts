@@ -41,6 +41,7 @@
 import { contourIntegrals, type ContourIntegrals, type ContourRule } from './surface';
 import { jonesIntegral, jonesTerm } from './wake';
 import { trapezoid } from './quadrature';
+import { fitNose } from './contourSpline';
 import type { CorrectionMethod, CorrectionResult, WakeResult, WallResult } from './types';
 
 /** Relative standard uncertainty of the vortex-shape extrapolation of the wall integrals. */
@@ -59,7 +60,11 @@ export function epsWbFraction(method: CorrectionMethod): number {
 /** Standard uncertainties of the reduction's own errors (additive on the uncorrected outputs, or
  *  relative where the name says so). */
 export interface ReductionErrors {
+  /** Standard uncertainty of the integration (tap resolution) error left after `integrationShift`. */
   integration: { cl: number; cdp: number; cmc4: number };
+  /** The estimated integration error with its sign, on the uncorrected cl, cd_p, cm_c/4: the exact
+   *  value ≈ reduced + shift. Not applied to the reported values; the intervals are placed with it. */
+  integrationShift: { cl: number; cdp: number; cmc4: number };
   trailingEdge: { cl: number; cdp: number; cmc4: number };
   rakeSpacing: number;
   rakeTruncation: number;
@@ -79,6 +84,9 @@ export interface RowArrays {
   cp: ArrayLike<number>;
   n: number;
   nUpper: number;
+  /** Standard uncertainty of each tap's Cp from its own channel (independent errors), if known:
+   *  the integration estimate takes its expected noise out of the halves' disagreement. */
+  ucp?: ArrayLike<number>;
 }
 
 type Loads = Pick<ContourIntegrals, 'cl' | 'cdp' | 'cmc4'>;
@@ -104,29 +112,80 @@ function subset(r: RowArrays, step: number, start: number): RowArrays | null {
   return { x, y, cp, n: x.length, nUpper };
 }
 
-/** Safety factor of the integration estimate (see the module comment). */
-export const INTEGRATION_FS = 2;
+/** The order of each contour rule's integration error in the tap spacing h: the linear rule
+ *  integrates piecewise-linear interpolants, O(h²) (the trapezoid rule's order); the spline rule
+ *  cubic-spline interpolants, O(h⁴) (de Boor 1978 ch. IV, memory). Measured for the linear rule on
+ *  the exact sections of REDUCTION.md §11 (scripts/coverage-diagnose.ts, docs/UNCERTAINTY.md): the
+ *  true error is −(I₁ − I₂)/3 to within 3 % (median) at 24, 48 and 96 taps. */
+export const RULE_ORDER: Record<ContourRule, number> = { linear: 2, spline: 4 };
 
-/** Interleaved-subsets estimate of the integration error (see the module comment). */
-export function integrationError(r: RowArrays, alphaDeg: number, rule: ContourRule = 'linear'): Loads {
-  const halves = [subset(r, 2, 0), subset(r, 2, 1)];
-  if (!halves[0] || !halves[1]) return { cl: 0, cdp: 0, cmc4: 0 };
-  const quarters = [0, 1, 2, 3].map((s) => subset(r, 4, s));
+/** The integration estimate of one row: `shift`, the estimated error of the reduced value with its
+ *  sign (exact ≈ reduced + shift), and `u`, the standard uncertainty left after it. */
+export interface IntegrationEstimate {
+  shift: Loads;
+  u: Loads;
+}
+
+/** Integration (tap resolution) estimate (see the module comment): the whole row I₁ against the
+ *  mean I₂ of its two interleaved halves. */
+export function integrationError(r: RowArrays, alphaDeg: number, rule: ContourRule = 'linear'): IntegrationEstimate {
+  const zero = { shift: { cl: 0, cdp: 0, cmc4: 0 }, u: { cl: 0, cdp: 0, cmc4: 0 } };
+  const half = [subset(r, 2, 0), subset(r, 2, 1)];
+  if (!half[0] || !half[1]) return zero;
+  const h0 = half[0];
+  const h1 = half[1];
   const whole = loadsOf(r, alphaDeg, rule);
-  const lh = halves.map((h) => loadsOf(h!, alphaDeg, rule));
-  const lq = quarters.every((q) => q !== null) ? quarters.map((q) => loadsOf(q!, alphaDeg, rule)) : null;
-  const u = (k: keyof Loads) => {
-    const i2 = 0.5 * (lh[0][k] + lh[1][k]);
-    const d12 = Math.abs(whole[k] - i2);
-    let p = 2;
-    if (lq && d12 > 0) {
-      const i4 = 0.25 * (lq[0][k] + lq[1][k] + lq[2][k] + lq[3][k]);
-      const obs = Math.log(Math.abs(i2 - i4) / d12) / Math.LN2;
-      if (Number.isFinite(obs)) p = Math.min(Math.max(obs, 1), 6);
+  const l0 = loadsOf(h0, alphaDeg, rule);
+  const l1 = loadsOf(h1, alphaDeg, rule);
+  const f = 1 / (2 ** RULE_ORDER[rule] - 1);
+  // The channel noise in D = I₁ − I₂ (JCGM 100 eq. (10), uncorrelated tap errors): each tap's Cp
+  // moved by its own u, a finite difference (exact for the linear rule, which is linear in the
+  // Cp); a tap moves the whole row and its own half only.
+  const vD = { cl: 0, cdp: 0, cmc4: 0 };
+  if (r.ucp) {
+    const cp = Array.from(r.cp);
+    const hc = [Array.from(h0.cp), Array.from(h1.cp)];
+    for (let k = 0; k < r.n; k++) {
+      const du = r.ucp[k];
+      if (!(du > 0)) continue;
+      const side = k % 2;
+      const j = k >> 1;
+      cp[k] += du;
+      hc[side][j] += du;
+      const a = loadsOf({ ...r, cp }, alphaDeg, rule);
+      const b = loadsOf({ ...(side ? h1 : h0), cp: hc[side] }, alphaDeg, rule);
+      cp[k] -= du;
+      hc[side][j] -= du;
+      const lb = side ? l1 : l0;
+      for (const q of ['cl', 'cdp', 'cmc4'] as const) vD[q] += (a[q] - whole[q] - 0.5 * (b[q] - lb[q])) ** 2;
     }
-    return (INTEGRATION_FS * d12) / (2 ** p - 1) / 2;
-  };
-  return { cl: u('cl'), cdp: u('cdp'), cmc4: u('cmc4') };
+  }
+  const rel = noseResolution(r).relative;
+  const shift = { cl: 0, cdp: 0, cmc4: 0 };
+  const u = { cl: 0, cdp: 0, cmc4: 0 };
+  for (const k of ['cl', 'cdp', 'cmc4'] as const) {
+    shift[k] = f * (whole[k] - 0.5 * (l0[k] + l1[k]));
+    u[k] = Math.hypot(rel * shift[k], f * Math.sqrt(vD[k]));
+  }
+  return { shift, u };
+}
+
+/** Leading-edge resolution model (see the module comment): relative standard uncertainty of the
+ *  shift = min(1, NOSE_C·(Δs/ρ)²). */
+export const NOSE_C = 0.2;
+
+/** The tap spacing at the nose Δs (mean distance of the tap of least x/c to its two contour
+ *  neighbours), the nose radius ρ of the parabola through those three taps (app/contourSpline.ts
+ *  fitNose), and the relative uncertainty of the integration shift they give (1 when no parabola
+ *  fits). */
+export function noseResolution(r: RowArrays): { ds: number; radius: number; relative: number } {
+  let j = 0;
+  for (let k = 1; k < r.n; k++) if (r.x[k] < r.x[j]) j = k;
+  if (j === 0 || j === r.n - 1) return { ds: NaN, radius: NaN, relative: 1 };
+  const ds = 0.5 * (Math.hypot(r.x[j] - r.x[j - 1], r.y[j] - r.y[j - 1]) + Math.hypot(r.x[j + 1] - r.x[j], r.y[j + 1] - r.y[j]));
+  const nose = fitNose(r.x, r.y, r.n);
+  if (!nose.fitted) return { ds, radius: NaN, relative: 1 };
+  return { ds, radius: nose.r, relative: Math.min(1, NOSE_C * (ds / nose.r) ** 2) };
 }
 
 /** The row with a point exactly at x/c = 1 on one or both surfaces, which contourIntegrals then
@@ -248,8 +307,10 @@ export function reductionErrors(args: {
   const rake = args.wake ? rakeErrors(args.wake, args.chord) : { spacing: 0, truncation: 0 };
   const walls = args.walls ? wallErrors(args.walls, args.height) : { shape: 0, fit: 0 };
   const on = args.correction.method !== 'none';
+  const int = integrationError(args.row, args.alphaDeg, args.rule ?? 'linear');
   return {
-    integration: integrationError(args.row, args.alphaDeg, args.rule ?? 'linear'),
+    integration: int.u,
+    integrationShift: int.shift,
     trailingEdge: trailingEdgeError(args.row, args.alphaDeg),
     rakeSpacing: rake.spacing,
     rakeTruncation: rake.truncation,
@@ -278,6 +339,15 @@ export function adjustmentSd(e: ReductionErrors): Float64Array {
   a[ADJ.sigma] = e.sigma;
   a[ADJ.epsSb] = e.epsSb;
   a[ADJ.epsWb] = e.epsWb;
+  return a;
+}
+
+/** The means of the adjustments, in ADJ order: the estimated integration error (the rest 0). */
+export function adjustmentMean(e: ReductionErrors): Float64Array {
+  const a = new Float64Array(ADJ_LENGTH);
+  a[ADJ.cl] = e.integrationShift.cl;
+  a[ADJ.cdp] = e.integrationShift.cdp;
+  a[ADJ.cmc4] = e.integrationShift.cmc4;
   return a;
 }
 

@@ -14,8 +14,11 @@
  *  per-run budget, the wake's q∞ = H∞ − p∞ when H∞ is measured; 0.6.0: the bad-tap test also
  *  predicts from the fitted inviscid shape (app/tapShape.ts) on rows of 20 taps or more, and keep
  *  decisions (Settings.keptTaps) with each result's `kept`; 0.7.0: the 'spline' contour rule rebuilt in
- *  the square-root plane of the nose (app/contourSpline.ts); 'linear' stays the default). */
-export const CORE_VERSION = '0.7.0';
+ *  the square-root plane of the nose (app/contourSpline.ts); 'linear' stays the default; 0.8.0: the
+ *  integration error estimated with its sign (Richardson at the rule's order) and its uncertainty
+ *  from the leading-edge resolution, the intervals placed with it and holding the value
+ *  (app/reductionErrors.ts; the values themselves unchanged). */
+export const CORE_VERSION = '0.8.0';
 
 export type PressureUnit =
   | 'Pa' | 'kPa' | 'hPa' | 'mbar' | 'psi' | 'inH2O' | 'mmH2O' | 'mmHg' | 'torr';
@@ -356,11 +359,14 @@ export interface BudgetLine {
 }
 
 /** The per-run budget: its lines, the combined standard uncertainty by JCGM 100 eq. (10), the
- *  analytic 95 % interval value ± k·u_c (k = 1.96, normal) beside the Monte Carlo one. */
+ *  analytic 95 % interval value + shift ± k·u_c (k = 1.96, normal) beside the Monte Carlo one. */
 export interface UncertaintyBudget {
   lines: BudgetLine[];
   combined: Partial<Record<UncertaintyKey, number>>;
   analytic: Partial<Record<UncertaintyKey, { lo: number; hi: number }>>;
+  /** The estimated integration (tap resolution) error carried to each output, with its sign: the
+   *  intervals (analytic and Monte Carlo) are placed at value + shift; the values are not changed. */
+  shift?: Partial<Record<UncertaintyKey, number>>;
   k: number;
 }
 

@@ -5,13 +5,17 @@
 //             normal deviate 0: true α and k_q, no channel noise), mean and rms over the replicates;
 //   uInt uTe  the estimated integration and trailing-edge u (budget lines), median;
 //   uNoise    the rest of the combined u (channels, α, k_q), median;
-//   |b|/u     rms of bias / combined u — above ~1 the interval cannot hold the exact value;
+//   |b+s|/u   rms of (bias + the estimated shift) / combined u: what is left of the bias after the
+//             estimated integration error (the intervals' placement), against the width;
+//   value out the fraction of runs whose interval does not hold the reduced value itself; held: the
+//             coverage of the interval stretched to hold the reduced value;
 //   cover     coverage of the exact value by the 95 % interval; cover0: of the noise-free reduced
 //             value (the propagation alone, with no reduction error to hold);
 //   ruleDiff  (spline − linear) of the noisy row against the true bias: the estimator named by the
 //             issue ("the difference between two integration rules"), correlation and rms ratio.
 // Asserts nothing. Run: npx tsx scripts/coverage-diagnose.ts [taps…]   (ALPHA=1 only α + k_q cells,
-// ALPHA=0 only channel-only cells; REPS=n replicates, default 200; RULE=spline for the spline rule).
+// ALPHA=0 only channel-only cells; REPS=n replicates, default 200; SECTIONS=n sections in the pool,
+// default 12; SEED=n added to the cells' seeds; RULE=spline for the spline rule).
 import { readFileSync } from 'node:fs';
 import { reduceRun, resolveSettings } from '../app/reduce';
 import { contourIntegrals, orderContour } from '../app/surface';
@@ -62,10 +66,10 @@ function ruleDiff(r: ReturnType<typeof reduceRun>, alphaDeg: number): Record<'cl
 console.log(`load ${readFileSync('/proc/loadavg', 'utf8').trim()}; ${REPS} replicates a cell; rule ${RULE}`);
 for (const alphaAndKq of ALPHAS) {
   for (const taps of TAPS) {
-    const rng = createRng(taps * 7 + (alphaAndKq ? 1 : 0));
-    const sections = exactSections(12, rng);
-    const rec: Record<K, { bias: number[]; uInt: number[]; uTe: number[]; uNoise: number[]; u: number[]; hit: number; hit0: number; rd: number[]; rd0: number[]; biasN: number[] }> =
-      Object.fromEntries(KEYS.map((k) => [k, { bias: [], uInt: [], uTe: [], uNoise: [], u: [], hit: 0, hit0: 0, rd: [], rd0: [], biasN: [] }])) as never;
+    const rng = createRng(taps * 7 + (alphaAndKq ? 1 : 0) + Number(process.env.SEED ?? 0));
+    const sections = exactSections(Number(process.env.SECTIONS ?? 12), rng);
+    const rec: Record<K, { bias: number[]; uInt: number[]; uTe: number[]; uNoise: number[]; u: number[]; hit: number; hit0: number; rd: number[]; rd0: number[]; biasN: number[]; shift: number[]; out: number; held: number }> =
+      Object.fromEntries(KEYS.map((k) => [k, { bias: [], uInt: [], uTe: [], uNoise: [], u: [], hit: 0, hit0: 0, rd: [], rd0: [], biasN: [], shift: [], out: 0, held: 0 }])) as never;
     for (let i = 0; i < REPS; i++) {
       // Record the stream so the same case can be rebuilt noise-free.
       const us: number[] = [];
@@ -94,8 +98,11 @@ for (const alphaAndKq of ALPHAS) {
         R.uInt.push(uInt);
         R.uTe.push(uTe);
         R.u.push(iv.u);
+        R.shift.push(b.shift?.[k] ?? 0);
+        if (!(iv.lo <= r.corrected[k] && r.corrected[k] <= iv.hi)) R.out++;
         R.uNoise.push(Math.sqrt(Math.max(0, b.combined[k]! ** 2 - uInt ** 2 - uTe ** 2)));
         if (iv.lo <= c.exact[k] && c.exact[k] <= iv.hi) R.hit++;
+        if (Math.min(iv.lo, r.corrected[k]) <= c.exact[k] && c.exact[k] <= Math.max(iv.hi, r.corrected[k])) R.held++;
         if (iv.lo <= r0.corrected[k] && r0.corrected[k] <= iv.hi) R.hit0++;
         if (k !== 'cd') {
           R.rd.push(d[k]);
@@ -104,10 +111,10 @@ for (const alphaAndKq of ALPHAS) {
       }
     }
     console.log(`\n${taps} taps, ${alphaAndKq ? 'channel + α + k_q' : 'channel only'}`);
-    console.log('     bias mean   bias rms    uInt med    uTe med     uNoise med  rms|b|/u  cover  cover0  ruleDiff: corr  rms(rd)/rms(b)  rms(b−rd)   (same, noise-free row)');
+    console.log('     bias mean   bias rms    uInt med    uTe med     uNoise med  rms|b+s|/u  cover  cover0  value out  held  ruleDiff: corr  rms(rd)/rms(b)  rms(b−rd)   (same, noise-free row)');
     for (const k of KEYS) {
       const R = rec[k];
-      const ratio = rms(R.bias.map((v, i) => v / R.u[i]));
+      const ratio = rms(R.bias.map((v, i) => (v + R.shift[i]) / R.u[i]));
       const f = (v: number) => v.toExponential(2).padStart(10);
       let extra = '';
       if (k !== 'cd') {
@@ -115,7 +122,7 @@ for (const alphaAndKq of ALPHAS) {
         const neg = R.bias.map((v) => -v);
         extra = `  ${corr(R.rd, neg).toFixed(3).padStart(6)}  ${(rms(R.rd) / rms(R.bias)).toFixed(3).padStart(8)}  ${f(rms(R.rd.map((v, i) => v + R.bias[i])))}   noise-free row: ${corr(R.rd0, neg).toFixed(3)} ${(rms(R.rd0) / rms(R.bias)).toFixed(3)}`;
       }
-      console.log(`${k.padEnd(5)}${f(mean(R.bias))} ${f(rms(R.bias))} ${f(median(R.uInt))} ${f(median(R.uTe))} ${f(median(R.uNoise))}  ${ratio.toFixed(2).padStart(7)}  ${(R.hit / REPS).toFixed(3)}  ${(R.hit0 / REPS).toFixed(3)}${extra}`);
+      console.log(`${k.padEnd(5)}${f(mean(R.bias))} ${f(rms(R.bias))} ${f(median(R.uInt))} ${f(median(R.uTe))} ${f(median(R.uNoise))}  ${ratio.toFixed(2).padStart(7)}  ${(R.hit / REPS).toFixed(3)}  ${(R.hit0 / REPS).toFixed(3)}  ${(R.out / REPS).toFixed(3).padStart(8)}  ${(R.held / REPS).toFixed(3)}${extra}`);
     }
   }
 }

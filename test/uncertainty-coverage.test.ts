@@ -2,7 +2,8 @@
 // by conformal mapping with the Kutta condition, Milne-Thomson ch. 7 / Katz & Plotkin §6.5–6.6
 // (memory), and a Gaussian wake whose Jones cd is integrated to 1e-12), measured with errors of the
 // stated size, reduced by the app's own reduceRun; the count of runs whose interval holds the exact
-// value is binomial. Each replicate draws its section, angle and tap phase from a pool, so the
+// value is binomial (the issue's band: 95 ± 3 % in every configuration). Each replicate draws its
+// section, angle and tap phase from a pool, so the
 // reduction's own errors (tap resolution, trailing-edge closure) differ from run to run as they do
 // between real models and tap layouts. The bad-tap search is switched off (tapCheckK = 100): tap
 // judgement is tested in test/surface.test.ts; on these sparse exact rows it drops good
@@ -16,14 +17,20 @@ import type { Setup } from '../app/types';
 import { exactCase, exactSections } from './helpers/exactRun';
 import { miniRuns, miniSetup } from './helpers/mini-session';
 
-const REPLICATES = 200;
-// Binomial standard error of a 95 % coverage estimated from 200 runs: √(0.95·0.05/200) = 1.54 %;
-// the issue's band 95 ± 3 % is about ±2 standard errors.
+const REPLICATES = 600;
+/** Sections in each configuration's pool (each replicate draws one, with its own α and tap phase). */
+const SECTIONS = 40;
+// Binomial standard error of a 95 % coverage estimated from 600 runs: √(0.95·0.05/600) = 0.89 %;
+// the issue's band 95 ± 3 % (0.92 … 0.98) is ±3.4 standard errors. With the true coverage exactly
+// 95 %, one output of one configuration falls outside the band with probability 0.069 % (exact
+// binomial: P(X < 552) + P(X > 588), X ~ B(600, 0.95)), and any of the 18 checks (6
+// configurations × cl, cm, cd) with probability 1.2 %; with a true 94 % (or 96 %) one check has
+// 1.9 % (0.22 %). The seeds are fixed, so the test gives the same counts on every run.
 const SE = Math.sqrt((0.95 * 0.05) / REPLICATES);
 
 function coverage(taps: number, alphaAndKq: boolean): Record<'cl' | 'cmc4' | 'cd', number> {
   const rng = createRng(taps * 7 + (alphaAndKq ? 1 : 0));
-  const sections = exactSections(12, rng);
+  const sections = exactSections(SECTIONS, rng);
   const hits = { cl: 0, cmc4: 0, cd: 0 };
   for (let i = 0; i < REPLICATES; i++) {
     const c = exactCase({ taps, sections, uniform: rng, normal: () => gaussian(rng), alphaAndKq });
@@ -31,44 +38,35 @@ function coverage(taps: number, alphaAndKq: boolean): Record<'cl' | 'cmc4' | 'cd
     const r = reduceRun(c.setup, c.run, settings);
     for (const k of ['cl', 'cmc4', 'cd'] as const) {
       const iv = r.uncertainty[k]!;
-      // The interval sits on the value printed beside it (corrected; 'none' here).
+      // The interval sits on the value printed beside it (corrected; 'none' here) and holds it.
       expect(iv.value).toBe(r.corrected[k]);
+      expect(iv.lo <= iv.value && iv.value <= iv.hi).toBe(true);
       if (iv.lo <= c.exact[k] && c.exact[k] <= iv.hi) hits[k]++;
     }
   }
   return { cl: hits.cl / REPLICATES, cmc4: hits.cmc4 / REPLICATES, cd: hits.cd / REPLICATES };
 }
 
-// Measured here (2026-12-02, core 0.3.0, integration estimate with F_s = 2): 4 of the 6
-// configurations inside 95 ± 3 % for all of cl, cm, cd; 96 taps channel-only cl 0.910, and 24 taps
-// with α and k_q cm 0.915, just under 0.92 (−2.6 and −2.3 binomial SE). So each configuration is
-// held to the band's upper end and to 0.88 (−4.5 SE, a clear failure), and the pooled 1 200 runs
-// (SE 0.63 %) to 95 ± 3 % for each output. Open: the per-configuration lower end.
-const found: Record<string, Record<'cl' | 'cmc4' | 'cd', number>> = {};
-
+// Measured here (2026-12-02, scripts/coverage-diagnose.ts with REPS=600 SECTIONS=40 gives the same
+// counts), cl / cm / cd: channel errors only 24 taps 0.947 / 0.962 / 0.963, 48 taps
+// 0.957 / 0.958 / 0.948, 96 taps 0.937 / 0.948 / 0.950; with α and k_q errors 24 taps
+// 0.968 / 0.948 / 0.950, 48 taps 0.947 / 0.953 / 0.933, 96 taps 0.950 / 0.950 / 0.957.
+// The integration estimate (app/reductionErrors.ts integrationError: Richardson shift of the rule's
+// order and the leading-edge resolution model for its uncertainty) was calibrated on other pools
+// (seeds taps·7 + 3, 300 runs each at 16–96 taps; docs/UNCERTAINTY.md), not on these.
 describe(`coverage of the exact value, ${REPLICATES} replicate runs each (binomial SE ${(100 * SE).toFixed(2)} %)`, () => {
   for (const alphaAndKq of [false, true]) {
     for (const taps of [24, 48, 96]) {
-      it(`${taps} taps, ${alphaAndKq ? 'channel errors + α (0.05°) + k_q (0.003)' : 'channel errors only'}: cl, cm, cd in 88 … 98 %`, () => {
+      it(`${taps} taps, ${alphaAndKq ? 'channel errors + α (0.05°) + k_q (0.003)' : 'channel errors only'}: cl, cm, cd each in 95 ± 3 %`, () => {
         const c = coverage(taps, alphaAndKq);
-        found[`${taps}${alphaAndKq}`] = c;
         console.log(`coverage ${taps} taps, α and k_q errors ${alphaAndKq}: cl ${c.cl} cm ${c.cmc4} cd ${c.cd}`);
         for (const k of ['cl', 'cmc4', 'cd'] as const) {
-          expect(c[k], `${k}: ${c[k]}`).toBeGreaterThanOrEqual(0.88);
+          expect(c[k], `${k}: ${c[k]}`).toBeGreaterThanOrEqual(0.92);
           expect(c[k], `${k}: ${c[k]}`).toBeLessThanOrEqual(0.98);
         }
       });
     }
   }
-  it('pooled over the six configurations (1 200 runs, SE 0.63 %): cl, cm, cd each in 95 ± 3 %', () => {
-    const all = Object.values(found);
-    expect(all).toHaveLength(6);
-    for (const k of ['cl', 'cmc4', 'cd'] as const) {
-      const pooled = all.reduce((s, c) => s + c[k], 0) / all.length;
-      expect(pooled, `${k}: ${pooled}`).toBeGreaterThanOrEqual(0.92);
-      expect(pooled, `${k}: ${pooled}`).toBeLessThanOrEqual(0.98);
-    }
-  });
 });
 
 /** JCGM 101 §7.9.2: u(y) written with n_dig significant digits as c × 10^ℓ; δ = ½ × 10^ℓ. */
