@@ -888,7 +888,7 @@ function runUncertainty(m: McModel, settings: Settings, run: ZeroedRun, nominal:
  *  means, McModel.adjMean), stretched where needed to hold the reported value itself — the
  *  reported value is not corrected for that error (JCGM 100 §F.2.4.5 in spirit, memory), so the
  *  interval reaches from it to the side where the error puts the exact value. Measured on exact
- *  data the stretch changes the coverage by at most 0.2 % (docs/UNCERTAINTY.md). */
+ *  data the stretch changes the coverage by at most 0.3 % (docs/UNCERTAINTY.md). */
 function holdingValue(value: number, iv: Interval): Interval {
   return { value, u: iv.u, lo: Math.min(iv.lo, value), hi: Math.max(iv.hi, value), mean: iv.value };
 }

@@ -1,18 +1,30 @@
 // The reduction's own errors (REDUCTION.md §9), estimated once per run from the nominal pass and
-// entered in the uncertainty as additive errors of expectation zero with these standard
-// uncertainties (JCGM 100:2008 §3.2.3–3.2.4: a correction of unknown sign, evaluated by Type B):
+// entered in the uncertainty as additive errors with these standard uncertainties (JCGM 100:2008
+// §3.2.3–3.2.4, Type B); all have expectation zero except the integration error, whose sign is
+// estimated:
 //
-// - Integration of the surface pressures (tap resolution): the row is integrated whole (I₁), as its
-//   two interleaved halves (every other tap along the contour, each closed at the trailing edge the
-//   same way; their mean I₂) and as its four interleaved quarters (mean I₄), three "grids" of tap
-//   spacing h, 2h, 4h. Richardson extrapolation (L. F. Richardson, Phil. Trans. R. Soc. A 226
-//   (1927) 299) with the observed order p = log₂(|I₂ − I₄|/|I₁ − I₂|) (kept within 1…6; 2, the
-//   order of the trapezoid rule, when the quarters are too sparse) gives the error of the whole
-//   row E = |I₁ − I₂|/(2ᵖ − 1). Its uncertainty is in the form of Roache's Grid Convergence Index,
-//   GCI = F_s·E read as a 95 % expanded uncertainty (P. J. Roache, J. Fluids Eng. 116 (1994)
-//   405–413, memory), so u = F_s·E/2. Roache gives F_s = 3 for two grids and 1.25 for three in the
-//   asymptotic range; taps are rarely in that range, and F_s = 2 is our choice, checked against
-//   exact data by test/uncertainty-coverage.test.ts.
+// - Integration of the surface pressures (tap resolution). The row is integrated whole (I₁) and as
+//   its two interleaved halves (every other tap along the contour, each closed at the trailing edge
+//   the same way; their mean I₂), grids of spacing h and 2h. The rule's error is of order p in h
+//   (p = 2 for the linear rule: piecewise-linear interpolants, the trapezoid rule's order; p = 4
+//   for the spline rule), so Richardson extrapolation (L. F. Richardson, Phil. Trans. R. Soc. A 226
+//   (1927) 299) estimates the error of the whole row WITH ITS SIGN: exact ≈ I₁ + (I₁ − I₂)/(2ᵖ − 1)
+//   = I₁ + shift. Measured on the exact sections of REDUCTION.md §11 (scripts/coverage-diagnose.ts,
+//   docs/UNCERTAINTY.md): the linear rule's true error is −(I₁ − I₂)/3 to within 3 % (median) at
+//   24, 48 and 96 taps, and the reduced cl is low in nearly every run; the earlier symmetric
+//   estimate (|I₁ − I₂|/(2ᵖ − 1) with the observed order from the quarters and a GCI factor) could
+//   not be right at every tap count. The shift is NOT applied to the reported values: the Monte
+//   Carlo draws carry it as the mean of the integration adjustment, so the interval is the exact
+//   value's, stretched to hold the reported value (app/reduce.ts holdingValue).
+//   What is left after the shift is the next order of the error, which depends on how well the
+//   taps resolve the nose (the suction peak and the stagnation point lie within a few nose radii):
+//   the leading-edge resolution model u = min(1, 0.2·(Δs/ρ)²)·|shift|, with Δs the tap spacing at
+//   the nose (the tap of least x/c and its two neighbours) and ρ the radius of the parabola
+//   through those three taps (app/contourSpline.ts fitNose). The form (Δs/ρ)² and the factor 0.2:
+//   common practice, no source — fitted on exact sections (other pools than the coverage test's)
+//   where the relative residual was ~0.1 for Δs/ρ < 1, ~0.3 at 1.5–2 and ~0.8–1 beyond 2, and
+//   checked by test/uncertainty-coverage.test.ts. The channel noise of the shift itself, from each
+//   tap's own u (JCGM 100 eq. (10), a finite difference per tap), is added in quadrature.
 // - Trailing-edge closure: the row closed three ways — the mean of the linear extrapolations of
 //   the two surfaces (the method used), the mean of the two taps nearest the trailing edge
 //   (constant extrapolation), and each surface closed at its own extrapolated value (a blunt base)
@@ -301,7 +313,7 @@ export function reductionErrors(args: {
   height: number;
   correction: CorrectionResult;
   /** The contour rule of the reduction (Settings.contourRule): the integration estimate compares
-   *  that rule's whole row with its halves and quarters. */
+   *  that rule's whole row with its two interleaved halves. */
   rule?: ContourRule;
 }): ReductionErrors {
   const rake = args.wake ? rakeErrors(args.wake, args.chord) : { spacing: 0, truncation: 0 };

@@ -15,12 +15,14 @@
 //             issue ("the difference between two integration rules"), correlation and rms ratio.
 // Asserts nothing. Run: npx tsx scripts/coverage-diagnose.ts [taps…]   (ALPHA=1 only α + k_q cells,
 // ALPHA=0 only channel-only cells; REPS=n replicates, default 200; SECTIONS=n sections in the pool,
-// default 12; SEED=n added to the cells' seeds; RULE=spline for the spline rule).
+// default 12; SECTION=cambered for one cambered section; SEED=n added to the cells' seeds;
+// RULE=spline for the spline rule).
 import { readFileSync } from 'node:fs';
 import { reduceRun, resolveSettings } from '../app/reduce';
 import { contourIntegrals, orderContour } from '../app/surface';
 import { createRng, gaussian } from '../app/uncertainty';
 import { exactCase, exactSections } from '../test/helpers/exactRun';
+import { karmanTrefftz } from '../test/helpers/joukowski';
 
 type K = 'cl' | 'cmc4' | 'cd';
 const KEYS: K[] = ['cl', 'cmc4', 'cd'];
@@ -63,11 +65,19 @@ function ruleDiff(r: ReturnType<typeof reduceRun>, alphaDeg: number): Record<'cl
   return { cl: b.cl - a.cl, cmc4: b.cmc4 - a.cmc4 };
 }
 
-console.log(`load ${readFileSync('/proc/loadavg', 'utf8').trim()}; ${REPS} replicates a cell; rule ${RULE}`);
+console.log(`load ${readFileSync('/proc/loadavg', 'utf8').trim()}; ${REPS} replicates a cell; rule ${RULE}; pool ${process.env.SECTION === 'cambered' ? 'one cambered section' : 'random sections'} of ${process.env.SECTIONS ?? 12}`);
 for (const alphaAndKq of ALPHAS) {
   for (const taps of TAPS) {
     const rng = createRng(taps * 7 + (alphaAndKq ? 1 : 0) + Number(process.env.SEED ?? 0));
-    const sections = exactSections(Number(process.env.SECTIONS ?? 12), rng);
+    const count = Number(process.env.SECTIONS ?? 12);
+    // SECTION=cambered: one cambered Kármán–Trefftz section (m 0.1, n 0.08: about 12 % thick and
+    // 4 % camber; trailing-edge angle 4°) at `count` angles −2…8°, instead of the random pool.
+    const sections = process.env.SECTION === 'cambered'
+      ? Array.from({ length: count }, (_, i) => {
+          const alphaDeg = -2 + (10 * i) / Math.max(1, count - 1);
+          return { J: karmanTrefftz(0.1, 0.08, alphaDeg, 4), alphaDeg };
+        })
+      : exactSections(count, rng);
     const rec: Record<K, { bias: number[]; uInt: number[]; uTe: number[]; uNoise: number[]; u: number[]; hit: number; hit0: number; rd: number[]; rd0: number[]; biasN: number[]; shift: number[]; out: number; held: number }> =
       Object.fromEntries(KEYS.map((k) => [k, { bias: [], uInt: [], uTe: [], uNoise: [], u: [], hit: 0, hit0: 0, rd: [], rd0: [], biasN: [], shift: [], out: 0, held: 0 }])) as never;
     for (let i = 0; i < REPS; i++) {
