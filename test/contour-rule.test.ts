@@ -10,7 +10,7 @@
 import { describe, expect, it } from 'vitest';
 import { integrateContour, type ContourRule } from '../app/surface';
 import { DEFAULT_SETTINGS } from '../app/types';
-import { arcTaps, joukowski } from './helpers/joukowski';
+import { arcTaps, joukowski, karmanTrefftz } from './helpers/joukowski';
 
 /** Circle offsets (m, n) of the sections: thickness and camber measured in the first test. */
 const SECTIONS: [string, number, number][] = [
@@ -102,6 +102,19 @@ describe('the spline on awkward rows', () => {
     const taps = base.filter((p) => p.x > 1e-4);
     expect(taps.length).toBe(23);
     expect(Math.abs(integrateContour(taps, 4, 'spline').cl - J.cl)).toBeLessThan(0.004);
+  });
+  it('a tap right next to the trailing edge (0.03 % of a spacing): no worse than linear at 48 and 96 taps', () => {
+    // Rows of the coverage test's kind (test/helpers/exactRun.ts: taps evenly spaced in the
+    // circle's angle from a phase), with the phase putting the first tap almost on the trailing
+    // edge. Without TE_MERGE (app/contourSpline.ts) the spline's cl error on the first of these is
+    // 0.22 against the linear rule's 0.0004 (measured; docs/UNCERTAINTY.md §4).
+    for (const [alpha, count] of [[1.6, 96], [7.5, 96], [4, 48], [6, 48]] as const) {
+      const K = karmanTrefftz(0.06, 0.04, alpha, 6);
+      const taps = Array.from({ length: count }, (_, k) => ({ id: `t${k}`, ...K.at(K.thetaTE + (2 * Math.PI * (k + 3e-4)) / count) }));
+      const lin = Math.abs(integrateContour(taps, alpha, 'linear').cl - K.cl);
+      const spl = Math.abs(integrateContour(taps, alpha, 'spline').cl - K.cl);
+      expect(spl, `α ${alpha}, ${count} taps: spline ${spl}, linear ${lin}`).toBeLessThanOrEqual(lin);
+    }
   });
   it('dense exact data: within 1e-5 of exact cl and cm_c/4', () => {
     const K = joukowski(0.1, 0.05, 5);
