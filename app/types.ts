@@ -17,7 +17,8 @@
  *  the square-root plane of the nose (app/contourSpline.ts); 'linear' stays the default; 0.8.0: the
  *  integration error estimated with its sign (Richardson at the rule's order) and its uncertainty
  *  from the leading-edge resolution, the intervals placed with it and holding the value
- *  (app/reductionErrors.ts; the values themselves unchanged). */
+ *  (app/reductionErrors.ts; the values themselves unchanged); the spline rule leaves out a tap next
+ *  to the trailing edge (app/contourSpline.ts TE_MERGE). */
 export const CORE_VERSION = '0.8.0';
 
 export type PressureUnit =
