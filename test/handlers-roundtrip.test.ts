@@ -10,12 +10,12 @@ vi.mock('electron', () => {
   throw new Error('the handlers must not import electron');
 });
 
-import { Store } from '../main/store';
-import { createHandlers, dispatch, disposeHandlers, runsAffectedBy, type HandlerContext, type Handlers } from '../main/handlers';
-import type { Channel, ContractError, EventName, Events, Payload, Results } from '../main/contract';
+import { disposeHandlers, runsAffectedBy, type HandlerContext } from '../main/handlers';
+import type { Events } from '../main/contract';
 import type { RunRow } from '../main/store';
 import { appendRunToFolder, writeSessionFolder } from '../main/logwriter';
 import { miniRuns, miniSetup } from './helpers/mini-session';
+import { openHandlers } from './helpers/handlerHarness';
 
 let dir: string;
 let folder: string;
@@ -29,25 +29,8 @@ beforeAll(() => {
 });
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-type Seen = { event: EventName; data: unknown }[];
-
 function open(name: string, extra: Partial<HandlerContext> = {}) {
-  const store = Store.open(path.join(dir, `${name}.sqlite`));
-  const events: Seen = [];
-  const handlers = createHandlers({
-    store, mode: 'browser', demoSessionId: null, emit: (event, data) => events.push({ event, data }), progressIntervalMs: 0, ...extra,
-  });
-  const call = async <C extends Channel>(channel: C, payload: Payload<C>): Promise<Results[C]> => {
-    const answer = await dispatch(handlers, channel, payload);
-    if ('error' in answer) throw new Error(`${channel}: ${answer.error.kind}: ${answer.error.message}`);
-    return answer.result as Results[C];
-  };
-  const failure = async (channel: string, payload: unknown): Promise<ContractError> => {
-    const answer = await dispatch(handlers, channel, payload);
-    if (!('error' in answer)) throw new Error(`${channel} should have failed`);
-    return answer.error;
-  };
-  return { store, events, handlers, call, failure };
+  return openHandlers(path.join(dir, `${name}.sqlite`), extra);
 }
 
 /** Every file of a folder as { name: "<prefix>/<relative path>", text }. */

@@ -13,10 +13,11 @@ vi.mock('electron', () => {
 });
 
 import { Store } from '../main/store';
-import { createHandlers, dispatch, disposeHandlers, readySource } from '../main/handlers';
-import type { Channel, Events, Payload, Results } from '../main/contract';
+import { disposeHandlers, readySource } from '../main/handlers';
+import type { Events } from '../main/contract';
 import { writeSessionFolder } from '../main/logwriter';
 import { miniRuns, miniSetup } from './helpers/mini-session';
+import { openHandlers } from './helpers/handlerHarness';
 
 let dir: string;
 const setup = miniSetup();
@@ -30,17 +31,7 @@ beforeAll(() => {
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
 function open(name: string) {
-  const store = Store.open(path.join(dir, `${name}.sqlite`));
-  const events: { event: string; data: unknown }[] = [];
-  const handlers = createHandlers({
-    store, mode: 'browser', demoSessionId: null, emit: (event, data) => events.push({ event, data }),
-    progressIntervalMs: 0, watchStabilityMs: STABLE_MS, actor: 'test',
-  });
-  const call = async <C extends Channel>(channel: C, payload: Payload<C>): Promise<Results[C]> => {
-    const answer = await dispatch(handlers, channel, payload);
-    if ('error' in answer) throw new Error(`${channel}: ${answer.error.kind}: ${answer.error.message}`);
-    return answer.result as Results[C];
-  };
+  const { store, handlers, call, events } = openHandlers(path.join(dir, `${name}.sqlite`), { watchStabilityMs: STABLE_MS, actor: 'test' });
   const live = () => events.filter((e) => e.event === 'watch.run').map((e) => e.data as Events['watch.run']);
   const until = (pred: (ev: Events['watch.run'][]) => boolean, what: string) =>
     new Promise<Events['watch.run'][]>((resolve, reject) => {

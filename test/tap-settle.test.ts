@@ -14,10 +14,10 @@ vi.mock('electron', () => {
 });
 
 import { Store } from '../main/store';
-import { createHandlers, dispatch, disposeHandlers, type Handlers } from '../main/handlers';
-import type { Channel, ContractError, Payload, Results } from '../main/contract';
+import { disposeHandlers, type Handlers } from '../main/handlers';
 import { cleanupTempDirs, tempDir } from './helpers/store-fixtures';
 import { makeTinySession } from './helpers/cliSession';
+import { openHandlers, type HandlerHarness } from './helpers/handlerHarness';
 
 let dir: string;
 let store: Store;
@@ -26,16 +26,8 @@ let sessionId: number;
 let data: number[];
 const LEAK = 'C05';
 
-const call = async <C extends Channel>(channel: C, payload: Payload<C>): Promise<Results[C]> => {
-  const answer = await dispatch(handlers, channel, payload);
-  if ('error' in answer) throw new Error(`${channel}: ${answer.error.kind}: ${answer.error.message}`);
-  return answer.result as Results[C];
-};
-const failure = async (channel: string, payload: unknown): Promise<ContractError> => {
-  const answer = await dispatch(handlers, channel, payload);
-  if (!('error' in answer)) throw new Error(`${channel} should have failed`);
-  return answer.error;
-};
+let call: HandlerHarness['call'];
+let failure: HandlerHarness['failure'];
 const sheetText = async (selector: string) => {
   const { html } = await call('daysheet.html', { sessionId, paper: 'A4' });
   const win = new Window();
@@ -46,8 +38,7 @@ const sheetText = async (selector: string) => {
 beforeAll(async () => {
   dir = tempDir();
   const folder = makeTinySession(join(dir, 'hal-day'));
-  store = Store.open(join(dir, 'rakeline.sqlite'));
-  handlers = createHandlers({ store, mode: 'browser', demoSessionId: null, emit: () => undefined, progressIntervalMs: 0 });
+  ({ store, handlers, call, failure } = openHandlers(join(dir, 'rakeline.sqlite')));
   await call('reviewer.set', { name: 'T. Lindqvist' });
   const imp = await call('sessions.importFolder', { folder });
   sessionId = imp.report.sessionId;

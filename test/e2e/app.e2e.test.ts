@@ -3,20 +3,18 @@
 // override a tap, look at the polars and print the day sheet to PDF. Screenshots and the PDF go to
 // test-output/ (git-ignored) for a human to look at.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { cpSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { cpSync, existsSync, mkdirSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
 import { execFileSync } from 'node:child_process';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
-import { fileURLToPath } from 'node:url';
 import type { Browser, Page } from 'playwright-core';
 import { flagShort } from '../../app/flags';
+import { CHROMIUM, repoRoot, runBrowserTests, startBrowserModeApp, type BrowserModeApp } from '../helpers/browserMode';
 
-const CHROMIUM = '/usr/bin/chromium';
-const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
+const root = repoRoot;
 const out = path.join(root, 'test-output');
-const haveChromium = existsSync(CHROMIUM);
 
-if (!haveChromium && process.env.CI !== 'true') {
+if (!runBrowserTests) {
   console.warn(`[e2e] ${CHROMIUM} not found: skipping the end-to-end test (install the chromium package to run it).`);
 }
 
@@ -27,25 +25,23 @@ function listFiles(dir: string): string[] {
   });
 }
 
-describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headless Chromium (browser mode)', () => {
+describe.skipIf(!runBrowserTests)('Rakeline in headless Chromium (browser mode)', () => {
+  let app: BrowserModeApp | null = null;
   let tmp = '';
   let browser: Browser | null = null;
-  let server: { url: string; close(): Promise<void> } | null = null;
   let page: Page;
+  let problems: string[] = [];
   let demoDir = '';
 
   beforeAll(async () => {
-    if (!haveChromium) throw new Error(`CI=true but ${CHROMIUM} is missing: the end-to-end test cannot run (apt-get install chromium).`);
-    tmp = mkdtempSync(path.join(tmpdir(), 'rakeline-e2e-'));
     mkdirSync(out, { recursive: true });
+    // The renderer, built into a private folder, and browser mode on a fresh database
+    // (test/helpers/browserMode.ts).
+    app = await startBrowserModeApp({ prefix: 'rakeline-e2e-' });
+    ({ tmp, browser, page, problems } = app);
 
-    // 1. The renderer, built with its own vite config into a private folder.
-    const { build } = await import('vite');
-    const rendererDir = path.join(tmp, 'renderer');
-    await build({ configFile: path.join(root, 'renderer', 'vite.config.ts'), logLevel: 'warn', build: { outDir: rendererDir, emptyOutDir: true } });
-
-    // 2. The demo session: RAKELINE_E2E_SESSION (another session folder to try), else the
-    //    committed demo folder, else the demo generator into a temp folder.
+    // The demo session: RAKELINE_E2E_SESSION (another session folder to try), else the
+    // committed demo folder, else the demo generator into a temp folder.
     demoDir = process.env.RAKELINE_E2E_SESSION ?? path.join(root, 'resources', 'demo', 'session');
     if (!existsSync(path.join(demoDir, 'setup.json'))) {
       demoDir = path.join(tmp, 'demo-session');
@@ -54,28 +50,10 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
       const d = demoSession();
       writeSessionFolder(demoDir, d.setup, d.index, d.runs());
     }
-
-    // 3. Browser mode on a fresh database.
-    const { startBrowserServer } = await import('../../main/serve');
-    server = await startBrowserServer({ dbFile: path.join(tmp, 'e2e.sqlite'), port: 0, rendererDir });
-
-    const { chromium } = await import('playwright-core');
-    browser = await chromium.launch({
-      executablePath: CHROMIUM,
-      args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run', '--disable-quic'],
-    });
-    page = await browser.newPage({ viewport: { width: 1500, height: 950 } });
-    const problems: string[] = [];
-    page.on('pageerror', (e) => problems.push(`pageerror: ${e.message}`));
-    page.on('console', (m) => { if (m.type() === 'error') problems.push(`console: ${m.text()}`); });
-    (page as unknown as { problems: string[] }).problems = problems;
-    await page.goto(server.url);
   }, 120_000);
 
   afterAll(async () => {
-    await browser?.close();
-    await server?.close();
-    if (tmp) rmSync(tmp, { recursive: true, force: true });
+    await app?.close();
   });
 
   /** Run a flow with screenshots; on failure a screenshot and the page's problems. */
@@ -85,7 +63,6 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
       await run(shot);
     } catch (e) {
       await shot(failureShot).catch(() => undefined);
-      const problems = (page as unknown as { problems: string[] }).problems;
       if (problems.length) console.error(`[e2e] page problems:\n${problems.join('\n')}`);
       throw e;
     }
@@ -151,7 +128,6 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
     expect(await page.locator('.badge-stale').count()).toBe(0);
     expect(await page.getByRole('button', { name: 'Re-reduce stale runs (0)' }).isDisabled()).toBe(true);
     await shot('daylog-after-stale');
-    const problems = (page as unknown as { problems: string[] }).problems;
     expect(problems, problems.join('\n')).toEqual([]);
   }
 
@@ -263,7 +239,6 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
     execFileSync('pdftoppm', ['-png', '-r', '60', '-f', '1', '-l', '1', pdfPath, path.join(out, 'daysheet-pdf')]);
     expect(readdirSync(out).some((n) => n.startsWith('daysheet-pdf') && n.endsWith('.png'))).toBe(true);
 
-    const problems = (page as unknown as { problems: string[] }).problems;
     expect(problems, problems.join('\n')).toEqual([]);
   }
 
@@ -402,7 +377,6 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
       expect(readdirSync(out).filter((n) => n.startsWith(`daysheet-${paper}-`) && n.endsWith('.png')).length).toBe(pages);
     }
 
-    const problems = (page as unknown as { problems: string[] }).problems;
     expect(problems, problems.join('\n')).toEqual([]);
   }
 
@@ -485,7 +459,6 @@ describe.skipIf(!haveChromium && process.env.CI !== 'true')('Rakeline in headles
     } finally {
       await page.setViewportSize({ width: 1500, height: 950 });
     }
-    const problems = (page as unknown as { problems: string[] }).problems;
     expect(problems, problems.join('\n')).toEqual([]);
   }
 });

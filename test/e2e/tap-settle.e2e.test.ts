@@ -5,51 +5,29 @@
 // each click is stored, audited and re-reduces the runs it concerns. Screenshots go to
 // test-output/ (git-ignored).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { existsSync, mkdirSync, mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { mkdirSync } from 'node:fs';
 import path from 'node:path';
-import { fileURLToPath } from 'node:url';
-import type { Browser, Page } from 'playwright-core';
+import type { Page } from 'playwright-core';
 import { makeTinySession } from '../helpers/cliSession';
+import { repoRoot, runBrowserTests, startBrowserModeApp, type BrowserModeApp } from '../helpers/browserMode';
 
-const CHROMIUM = '/usr/bin/chromium';
-const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
-const out = path.join(root, 'test-output');
-const haveChromium = existsSync(CHROMIUM);
+const out = path.join(repoRoot, 'test-output');
 const LEAK = 'C05';
 
-describe.skipIf(!haveChromium && process.env.CI !== 'true')('settling automatic tap drops in headless Chromium (browser mode)', () => {
-  let tmp = '';
-  let browser: Browser | null = null;
-  let server: { url: string; close(): Promise<void> } | null = null;
+describe.skipIf(!runBrowserTests)('settling automatic tap drops in headless Chromium (browser mode)', () => {
+  let app: BrowserModeApp | null = null;
   let page: Page;
-  const problems: string[] = [];
+  let problems: string[] = [];
 
   beforeAll(async () => {
-    if (!haveChromium) throw new Error(`CI=true but ${CHROMIUM} is missing: the end-to-end test cannot run (apt-get install chromium).`);
-    tmp = mkdtempSync(path.join(tmpdir(), 'rakeline-e2e-settle-'));
     mkdirSync(out, { recursive: true });
-    const { build } = await import('vite');
-    const rendererDir = path.join(tmp, 'renderer');
-    await build({ configFile: path.join(root, 'renderer', 'vite.config.ts'), logLevel: 'warn', build: { outDir: rendererDir, emptyOutDir: true } });
-    const demoFolder = makeTinySession(path.join(tmp, 'hal-day'));
-    const { startBrowserServer } = await import('../../main/serve');
-    server = await startBrowserServer({ dbFile: path.join(tmp, 'e2e.sqlite'), port: 0, rendererDir, demoFolder });
-    const { chromium } = await import('playwright-core');
-    browser = await chromium.launch({
-      executablePath: CHROMIUM,
-      args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run', '--disable-quic'],
-    });
-    page = await browser.newPage({ viewport: { width: 1500, height: 950 } });
-    page.on('pageerror', (e) => problems.push(`pageerror: ${e.message}`));
-    page.on('console', (m) => { if (m.type() === 'error') problems.push(`console: ${m.text()}`); });
-    await page.goto(server.url);
+    app = await startBrowserModeApp({ prefix: 'rakeline-e2e-settle-', demoFolder: (tmp) => makeTinySession(path.join(tmp, 'hal-day')) });
+    page = app.page;
+    problems = app.problems;
   }, 120_000);
 
   afterAll(async () => {
-    await browser?.close();
-    await server?.close();
-    if (tmp) rmSync(tmp, { recursive: true, force: true });
+    await app?.close();
   });
 
   it('keeps the leaking tap in one run, takes the keep back, then confirms it bad for the session', async () => {
