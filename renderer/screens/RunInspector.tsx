@@ -314,7 +314,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
               <tr><th scope="row">Re [×10⁶]</th><td className="num">{reMillions(u.Re)}</td><td className="num">{reMillions(k.Re)}</td><td></td></tr>
             </tbody>
           </table>
-          <p className="small muted">Intervals: Monte Carlo, {result.settings.mcDraws} draws, on the corrected values; the budget below gives the analytic interval beside it.</p>
+          <p className="small muted">Intervals: Monte Carlo, {result.settings.mcDraws} draws, on the corrected values; the budget below gives the analytic interval beside it. The tap-resolution error is estimated with its sign and not applied to the value, so an interval may reach further on one side of it (docs/UNCERTAINTY.md).</p>
           <CorrectionCompare result={result} />
 
           <h3>Circulation (Kutta–Joukowski)</h3>
