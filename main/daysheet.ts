@@ -348,10 +348,14 @@ function statusCell(row: RunRow, stale: string[] | undefined): string {
   return parts.join('; ');
 }
 
-/** "±0.0123": half the width of a 95 % interval. */
-function halfWidth(iv: Interval | undefined, d: number): string {
-  if (!iv || !Number.isFinite(iv.lo) || !Number.isFinite(iv.hi)) return '';
-  return `<span class="u">±${fmt((iv.hi - iv.lo) / 2, d)}</span>`;
+/** How far a 95 % interval reaches from the printed value: "±0.0123" when both sides print the
+ *  same, else "+0.0031" over "−0.0102" (the tap-resolution error is estimated with its sign and
+ *  not applied to the value, so an interval may reach further on one side; docs/UNCERTAINTY.md). */
+export function intervalReach(iv: Interval | undefined, value: number, d: number): string {
+  if (!iv || !Number.isFinite(iv.lo) || !Number.isFinite(iv.hi) || !Number.isFinite(value)) return '';
+  const up = fmt(Math.max(0, iv.hi - value), d);
+  const down = fmt(Math.max(0, value - iv.lo), d);
+  return up === down ? `<span class="u">±${up}</span>` : `<span class="u">+${up}</span><span class="u">−${down}</span>`;
 }
 
 /** Height of a page's body (paper less the @page margins, 15 mm + 13 mm), pt. */
@@ -360,12 +364,12 @@ export const PAGE_BODY_PT: Record<DaySheetArgs['paper'], number> = { A4: (297 - 
 export const TAIL_FRACTION = 0.4;
 
 /** Estimated printed height of one run-table row, pt (common practice, no source: 7 pt values
- *  at line height 1.3, one more 6 pt line for the interval half-widths; the status column is
+ *  at line height 1.3, one or two more 6 pt lines for the interval's reach; the status column is
  *  19.1 % of the table, about 27 characters of 6.6 pt text a line; 0.8 mm of padding). */
-export function rowHeightPt(statusHtml: string, withIntervals: boolean): number {
+export function rowHeightPt(statusHtml: string, intervalLines: number | boolean): number {
   const text = statusHtml.replace(/<[^>]*>/g, '').replace(/&[a-z#0-9]+;/g, 'x');
   const statusLines = Math.max(1, Math.ceil(text.length / 27));
-  const values = 7 * 1.3 + (withIntervals ? 6 * 1.3 : 0);
+  const values = 7 * 1.3 + Number(intervalLines) * 6 * 1.3;
   return Math.max(values, statusLines * 6.6 * 1.3) + 0.8 / 25.4 * 72 + 0.6;
 }
 
@@ -397,13 +401,13 @@ function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Map
     const cells = r
       ? [
           fmt(row.alphaDeg, 2), fmt(r.alphaCorrDeg, 2), fmt(r.q, 1), fmt(r.V, 2), fmt(r.Re / 1e6, 3),
-          fmt(r.cl, 4) + halfWidth(u?.cl, 4), fmt(r.clMom, 4) + halfWidth(u?.clMom, 4),
-          fmt(r.cd, 5) + halfWidth(u?.cd, 5), fmt(r.cdp, 5) + halfWidth(u?.cdp, 5), fmt(r.cmc4, 4) + halfWidth(u?.cmc4, 4),
-          fmt(r.gammaPressure, 3) + halfWidth(u?.gammaPressure, 3), fmt(r.gammaMomentum, 3) + halfWidth(u?.gammaMomentum, 3),
+          fmt(r.cl, 4) + intervalReach(u?.cl, r.cl, 4), fmt(r.clMom, 4) + intervalReach(u?.clMom, r.clMom, 4),
+          fmt(r.cd, 5) + intervalReach(u?.cd, r.cd, 5), fmt(r.cdp, 5) + intervalReach(u?.cdp, r.cdp, 5), fmt(r.cmc4, 4) + intervalReach(u?.cmc4, r.cmc4, 4),
+          fmt(r.gammaPressure, 3) + intervalReach(u?.gammaPressure, r.gammaPressure, 3), fmt(r.gammaMomentum, 3) + intervalReach(u?.gammaMomentum, r.gammaMomentum, 3),
         ]
       : [fmt(row.alphaDeg, 2), '–', '–', '–', '–', '–', '–', '–', '–', '–', '–', '–'];
     const status = `${statusCell(row, stale.get(row.run)?.short)}${methodNote(byRun.get(row.run))}`;
-    heights.push(rowHeightPt(status, cells.some((c) => c.includes('class="u"'))));
+    heights.push(rowHeightPt(status, Math.max(0, ...cells.map((c) => c.split('class="u"').length - 1))));
     return `<tr${cls ? ` class="${cls}"` : ''} data-run="${row.run}"><td class="n">${mark}${row.run}</td><td class="n">${escapeHtml(localTime(row.time, tz, true))}</td>${cells
       .map((c) => `<td class="n">${c}</td>`)
       .join('')}<td class="status">${status}</td></tr>`;
@@ -418,7 +422,7 @@ function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Map
   return `<table class="runs">${head}${tbody}</table>
 <p class="sub">${SEVERITY.reject.glyph} and a solid left bar: at least one ${SEVERITY.reject.word} flag (${SEVERITY.reject.meaning.toLowerCase()}); ${SEVERITY.warn.glyph} and a dashed bar: ${SEVERITY.warn.word} flags only (${SEVERITY.warn.meaning.toLowerCase()}). Times are local (${escapeHtml(zoneOffset(new Date(args.generatedAt), tz))}).
 α corr, q, V, Re, cl, cd and cm are wall-corrected (${escapeHtml(CORRECTION_WORDS[settings.correction] ?? settings.correction)}); the status column names each run's method.
-cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl with V and cl corrected.${args.results?.length ? ' Small figures under a value: half the width of its 95 % Monte Carlo coverage interval (JCGM 101:2008), same basis as the value.' : ''}</p>`;
+cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl with V and cl corrected.${args.results?.length ? ' Small figures under a value: how far its 95 % Monte Carlo coverage interval (JCGM 101:2008) reaches above (+) and below (−) it, ± when both are the same; same basis as the value.' : ''}</p>`;
 }
 
 

@@ -2,7 +2,7 @@
 // Parsed with happy-dom so the checks look at the document structure, not at substrings only.
 import { describe, expect, it } from 'vitest';
 import { Window } from 'happy-dom';
-import { daySheetHtml, dragAxis, fmt, localTime, personName, runRanges, runsWord, settingsDifferences } from '../main/daysheet';
+import { daySheetHtml, dragAxis, fmt, intervalReach, localTime, personName, runRanges, runsWord, settingsDifferences } from '../main/daysheet';
 import { escapeHtml, niceStep, niceTicks, svgPlot } from '../main/svgplot';
 import type { RunResult } from '../app/types';
 import { fixtureRuns, fixtureSession, fixtureSetup, fixtureSummary, LIFT_FLAG, UNSTEADY_FLAG } from './helpers/sheetFixture';
@@ -176,6 +176,30 @@ describe('day sheet', () => {
     });
     // Without results the sheet draws no bars.
     expect(sheet().doc.querySelectorAll('path.ubar').length).toBe(0);
+  });
+
+  it('prints how far each interval reaches from the value: ± when both sides print alike, else + over −', () => {
+    // Our own presentation rule (no source): the tap-resolution error is estimated with its sign
+    // and not applied, so an interval may reach further on one side (docs/UNCERTAINTY.md).
+    expect(intervalReach({ value: 0.5, u: 0.005, lo: 0.49, hi: 0.51 }, 0.5, 4)).toBe('<span class="u">±0.0100</span>');
+    expect(intervalReach({ value: 0.5, u: 0.005, lo: 0.497, hi: 0.515 }, 0.5, 4)).toBe('<span class="u">+0.0150</span><span class="u">−0.0030</span>');
+    expect(intervalReach({ value: 0.5, u: NaN, lo: NaN, hi: NaN }, 0.5, 4)).toBe('');
+    // In the run table: an asymmetric cl interval shows both reaches, about the printed cl.
+    const runs = fixtureRuns();
+    const summary = fixtureSummary(runs);
+    const q = summary.polar[0];
+    const results = [{
+      run: q.run,
+      correction: { method: 'barlow-rae-pope', sigma: 0.0159, epsSb: 0.004, epsWb: 0.001, eps: 0.005 },
+      corrections: { requested: 'auto', applied: 'barlow-rae-pope', reason: 'test', methods: [], signature: null, teCp: 0.1, maskellDrag: { cd: 0.01, source: 'pressure' } },
+      uncertainty: { cl: { value: q.cl, u: 0.004, lo: q.cl - 0.002, hi: q.cl + 0.012 } },
+    }] as unknown as RunResult[];
+    const win = new Window();
+    win.document.write(daySheetHtml({ session: fixtureSession(), setup: fixtureSetup(), runs, summary, paper: 'A4', generatedAt: '2026-11-18T18:00:00Z', timeZone: 'UTC', results }));
+    const row = win.document.querySelector(`table.runs tr[data-run="${q.run}"]`)!;
+    const spans = [...row.querySelectorAll('span.u')].map((e) => e.textContent);
+    expect(spans).toEqual(['+0.0120', '−0.0020']);
+    expect(win.document.body.textContent).toContain('reaches above (+) and below (−) it');
   });
 
   it('lists a flag raised identically on several runs once, with its runs', () => {
