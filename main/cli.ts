@@ -248,19 +248,23 @@ function dataRunsOf(store: Store, sessionId: number): number[] {
   return store.listRuns(sessionId).filter((r) => r.kind === 'data').map((r) => r.run);
 }
 
-async function reduceAndTell(store: Store, sessionId: number, g: GlobalOpts, opts: { runs?: number[]; settings?: Partial<Settings> }): Promise<RunResult[]> {
+async function reduceAndTell(store: Store, sessionId: number, g: GlobalOpts, opts: { runs?: number[]; settings?: Partial<Settings> }): Promise<void> {
   const bar = progress();
   const t0 = performance.now();
-  let res: { results: RunResult[] };
+  // Saved in bounded batches (main/reduceService.ts SaveInBatches): only the flagged runs' lines
+  // are kept for the report, not every result of a large session.
+  const flagged: string[] = [];
+  let reduced = 0;
   try {
-    res = await D().reduceStoredSessionAsync(store, sessionId, { ...opts, actor: actorOf(g), onProgress: bar.onProgress });
+    ({ reduced } = await D().reduceStoredSessionAsync(store, sessionId, {
+      ...opts, actor: actorOf(g), onProgress: bar.onProgress,
+      batches: { size: D().SAVE_BATCH, onSaved: (rs) => { for (const r of rs) if (r.flags.length) flagged.push(resultLine(r)); } },
+    }));
   } finally {
     bar.stop();
   }
-  const flagged = res.results.filter((r) => r.flags.length);
-  out(`session ${sessionId}: reduced ${res.results.length} run(s) in ${((performance.now() - t0) / 1000).toFixed(2)} s, ${flagged.length} flagged`);
-  for (const r of flagged) out(`  ${resultLine(r)}`);
-  return res.results;
+  out(`session ${sessionId}: reduced ${reduced} run(s) in ${((performance.now() - t0) / 1000).toFixed(2)} s, ${flagged.length} flagged`);
+  for (const line of flagged) out(`  ${line}`);
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -21,7 +21,7 @@ import { INDEX_FILE, LONG_LOG_DEFAULT, SETUP_FILE } from '../app/log/session';
 import { parseRunIndexDetailed } from '../app/log/runIndex';
 import type { Store, RunRow, ImportProgress, ImportReport } from './store';
 import { folderSource, importSession, importSessionFolder, type SessionSource } from './import';
-import { reduceStoredSessionAsync, sessionSummary } from './reduceService';
+import { reduceStoredSessionAsync, SAVE_BATCH, sessionSummary } from './reduceService';
 import { runsNeedingReduction } from './repair';
 import { verifyResults } from './verify';
 import { zeroRunsFor } from '../app/samples';
@@ -313,7 +313,7 @@ async function reduceAfterImport(
   const affected = report.importedRuns.length ? runsAffectedBy(store.listRuns(report.sessionId), report.importedRuns) : [];
   const runs = [...new Set([...affected, ...runsNeedingReduction(store, report.sessionId)])].sort((a, b) => a - b);
   if (runs.length === 0) return 0;
-  return (await reduceStoredSessionAsync(store, report.sessionId, { runs, actor, onProgress })).results.length;
+  return (await reduceStoredSessionAsync(store, report.sessionId, { runs, actor, onProgress, batches: { size: SAVE_BATCH } })).reduced;
 }
 
 /** Import the bundled demo session unless the db already holds it (same folder); reduce it.

@@ -9,6 +9,16 @@ import { ImportPool } from './importPool';
 
 type ReduceOpts = { runs?: number[]; settings?: Partial<Settings>; actor?: string; onProgress?: (p: ImportProgress) => void };
 
+/** Saving a large reduction in bounded batches (issue 14, bounded memory): `size` runs are reduced,
+ *  stored (one transaction and one audit entry a batch) and handed to `onSaved`, then let go, so
+ *  memory holds one batch of results, not the whole session's. A crash between batches leaves the
+ *  later runs without a current result; the next ingest or start of the app reduces them
+ *  (main/repair.ts), as after a crash before the save. */
+export type SaveInBatches = { size: number; onSaved?: (results: RunResult[]) => void };
+/** Runs a batch when a caller asks for batches without saying how many (about 25–50 MB of results
+ *  at 96 taps and 64 rake probes; measured with the bench, no source). */
+export const SAVE_BATCH = 32;
+
 /** What a reduction needs from the store: the setup, the settings and the runs with zeros applied
  *  (also used by main/verify.ts to re-run a reduction the page sends). */
 export function reductionInputs(store: Store, sessionId: number, opts: ReduceOpts): { setup: Setup; settings: Settings; zeroed: ZeroedRun[] } {
@@ -34,17 +44,16 @@ export function reductionInputs(store: Store, sessionId: number, opts: ReduceOpt
   return { setup, settings, zeroed };
 }
 
-function storeResults(store: Store, sessionId: number, results: RunResult[], opts: ReduceOpts): { results: RunResult[]; summary: SessionSummary } {
-  if (results.length) {
-    try {
-      store.saveResults(sessionId, results, opts.actor ?? 'reduce');
-    } catch (e) {
-      // Nothing of the reduction was stored; the next ingest (or start of the app) redoes it.
-      if (isDiskFull(e, store.file)) throw new StoreFullError(store.file, e instanceof Error ? e.message : String(e), 'saving the results');
-      throw e;
-    }
+/** Store results as a new reduction; a full disk is said as such. */
+function saveReduced(store: Store, sessionId: number, results: RunResult[], opts: ReduceOpts): void {
+  if (!results.length) return;
+  try {
+    store.saveResults(sessionId, results, opts.actor ?? 'reduce');
+  } catch (e) {
+    // Nothing of this save was stored; the next ingest (or start of the app) redoes it.
+    if (isDiskFull(e, store.file)) throw new StoreFullError(store.file, e instanceof Error ? e.message : String(e), 'saving the results');
+    throw e;
   }
-  return { results, summary: sessionSummary(store, sessionId) };
 }
 
 /** Reduce (all data runs, or opts.runs) on this thread and store the results as a new reduction. */
@@ -54,7 +63,9 @@ export function reduceStoredSession(
   opts: ReduceOpts = {},
 ): { results: RunResult[]; summary: SessionSummary } {
   const { setup, settings, zeroed } = reductionInputs(store, sessionId, opts);
-  return storeResults(store, sessionId, reduceHere(setup, zeroed, settings, progressOf(opts, zeroed.length)), opts);
+  const results = reduceHere(setup, zeroed, settings, progressOf(opts, zeroed.length));
+  saveReduced(store, sessionId, results, opts);
+  return { results, summary: sessionSummary(store, sessionId) };
 }
 
 /** Progress of a reduction of `total` runs, `done` of them reduced. */
@@ -99,17 +110,37 @@ export function reduceWorkersFor(runs: number, draws: number): number {
 export async function reduceStoredSessionAsync(
   store: Store,
   sessionId: number,
-  opts: ReduceOpts & { workers?: number | 'auto' } = {},
-): Promise<{ results: RunResult[]; summary: SessionSummary }> {
+  opts: ReduceOpts & { workers?: number | 'auto'; batches?: SaveInBatches } = {},
+): Promise<{ results: RunResult[]; summary: SessionSummary; reduced: number }> {
   const { setup, settings, zeroed } = reductionInputs(store, sessionId, opts);
   const total = zeroed.length;
   const tell = progressOf(opts, total);
   const workers = opts.workers === undefined || opts.workers === 'auto' ? reduceWorkersFor(total, settings.mcDraws) : opts.workers;
-  const results = workers === 1 && total > 1
-    ? await reduceBeside(setup, zeroed, settings, tell)
-    : (workers > 1 && total > 1 ? await reduceOnThreads(setup, zeroed, settings, workers, tell) : null)
-      ?? reduceHere(setup, zeroed, settings, tell);
-  return storeResults(store, sessionId, results, opts);
+  const reduceSome = async (part: ZeroedRun[], tellPart: (done: number) => void): Promise<RunResult[]> =>
+    (workers === 1 && part.length > 1
+      ? await reduceBeside(setup, part, settings, tellPart)
+      : (workers > 1 && part.length > 1 ? await reduceOnThreads(setup, part, settings, workers, tellPart) : null)
+        ?? reduceHere(setup, part, settings, tellPart));
+  const b = opts.batches;
+  if (!b || total <= b.size) {
+    const results = await reduceSome(zeroed, tell);
+    saveReduced(store, sessionId, results, opts);
+    b?.onSaved?.(results);
+    return { results: b ? [] : results, summary: sessionSummary(store, sessionId), reduced: results.length };
+  }
+  // Threads start once a batch: give each batch enough runs to pay for that.
+  const size = Math.max(1, workers > 1 ? Math.max(b.size, 16 * workers) : b.size);
+  let done = 0;
+  for (let k = 0; k < total; k += size) {
+    const part = zeroed.slice(k, k + size);
+    const base = done;
+    const results = await reduceSome(part, (n) => tell(base + n));
+    saveReduced(store, sessionId, results, opts);
+    done += results.length;
+    b.onSaved?.(results);
+    for (let i = k; i < k + part.length; i++) (zeroed as (ZeroedRun | undefined)[])[i] = undefined; // let the inputs go too
+  }
+  return { results: [], summary: sessionSummary(store, sessionId), reduced: done };
 }
 
 /** The runs reduced on worker threads, in chunks, results in run order; null if the threads did

@@ -6,6 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { Store } from '../main/store';
 import { importSessionFolder, readSessionFolder } from '../main/import';
 import { reduceStoredSession, reduceStoredSessionAsync, reduceWorkersFor, sessionSummary } from '../main/reduceService';
+import { repairUnreduced, runsNeedingReduction } from '../main/repair';
 import { setImportWorkerScript } from '../main/importPool';
 import { averageRun, zeroRunsFor } from '../app/samples';
 import { writeSessionFolder } from '../main/logwriter';
@@ -175,4 +176,46 @@ describe('re-reducing part of a session', () => {
     own.close();
   });
 
+});
+
+describe('saving in bounded batches (issue 14, bounded memory)', () => {
+  it('stores exactly what one save stores, a batch at a time in run order, and keeps no results', async () => {
+    const one = Store.open(join(dir, 'batch-one.sqlite'));
+    const many = Store.open(join(dir, 'batch-many.sqlite'));
+    for (const s of [one, many]) await importSessionFolder(s, join(dir, 'day'), { actor: 'test' });
+    const whole = reduceStoredSession(one, 1, { actor: 'test' });
+    const seen: number[][] = [];
+    const progress: number[] = [];
+    const batched = await reduceStoredSessionAsync(many, 1, {
+      actor: 'test', workers: 0, onProgress: (p) => progress.push(p.runsDone), batches: { size: 2, onSaved: (rs) => seen.push(rs.map((r) => r.run)) },
+    });
+    expect(batched.results).toEqual([]);
+    expect(batched.reduced).toBe(dataRuns.length);
+    expect(seen.flat()).toEqual(dataRuns);
+    expect(seen.every((b) => b.length <= 2)).toBe(true);
+    expect(progress.at(-1)).toBe(dataRuns.length);
+    for (const run of dataRuns) expect(many.latestResult(1, run)).toEqual(one.latestResult(1, run));
+    expect(batched.summary).toEqual(whole.summary);
+    one.close();
+    many.close();
+  });
+
+  it('a failure after the first batch leaves the later runs unreduced, and the repair gives the same results', async () => {
+    const ref = Store.open(join(dir, 'batch-ref.sqlite'));
+    const cut = Store.open(join(dir, 'batch-cut.sqlite'));
+    for (const s of [ref, cut]) await importSessionFolder(s, join(dir, 'day'), { actor: 'test' });
+    reduceStoredSession(ref, 1, { actor: 'test' });
+    let batches = 0;
+    await expect(reduceStoredSessionAsync(cut, 1, {
+      actor: 'test', workers: 0, batches: { size: 2, onSaved: () => { if (++batches === 1) throw new Error('killed here'); } },
+    })).rejects.toThrow('killed here');
+    // The first batch is stored whole; nothing of the rest.
+    expect(runsNeedingReduction(cut, 1)).toEqual(dataRuns.slice(2));
+    for (const run of dataRuns.slice(0, 2)) expect(cut.latestResult(1, run)).toEqual(ref.latestResult(1, run));
+    await repairUnreduced(cut, { actor: 'test' });
+    expect(runsNeedingReduction(cut, 1)).toEqual([]);
+    for (const run of dataRuns) expect(cut.latestResult(1, run)).toEqual(ref.latestResult(1, run));
+    ref.close();
+    cut.close();
+  });
 });
