@@ -213,12 +213,22 @@ export const SHAPE_ALPHA_SPAN = 6;
 /** … in steps of this (degrees). */
 export const SHAPE_ALPHA_STEP = 0.25;
 
+/** A tap whose leverage on the fitted shape (the hat-matrix diagonal of the fit's linearised
+ *  parameters a, b, α_eff) exceeds this is judged with the fit that includes it: the taps at the
+ *  leading edge fix α_eff, and the others alone predict them poorly where the row is not the
+ *  inviscid shape (docs/TAP-JUDGEMENT.md §1). */
+export const SHAPE_LOO_LEVERAGE = 0.35;
+
+interface ShapeFit { sse: number; a: number; b: number; alpha: number; cp: ArrayLike<number> }
+
 /**
  * The verdicts of the shape-aided prediction (OutlierOptions.shape): the inviscid Cp at the
  * run's α, fitted to the row's taps as a + b·Cp_inv(α_eff) (least squares over α_eff within
  * ±SHAPE_ALPHA_SPAN of the run's α, a and b free: the viscous loss of circulation and suction
  * peak, an offset in the references), and the same leave-one-out prediction applied to the
  * difference Cp − fit, which is smooth where Cp itself is steep (behind the leading edge). The
+ * fit that judges a tap leaves that tap out, so a glitch cannot tilt the shape towards itself;
+ * only taps of high leverage (SHAPE_LOO_LEVERAGE) are judged with the fit of the whole row. The
  * difference's taps carry the channel uncertainty and b times the shape's own (app/tapShape.ts).
  * Tap by tap, the verdict of the two (on Cp itself or on the difference) with the smaller combined
  * uncertainty is taken: the choice is made on the uncertainty, never on the residual.
@@ -227,36 +237,95 @@ function withShape(
   active: readonly JudgedTap[], at: readonly number[], raw: (TapVerdict | null)[], shape: NonNullable<OutlierOptions['shape']>, positionU: number,
 ): (TapVerdict | null)[] {
   const n = active.length;
-  let best: { sse: number; a: number; b: number; alpha: number; cp: ArrayLike<number> } = { sse: Infinity, a: 0, b: 0, alpha: shape.alphaDeg, cp: [] };
+  const m = n - 1;
+  const y = active.map((t) => t.cp);
+  const none = (): ShapeFit => ({ sse: Infinity, a: 0, b: 0, alpha: shape.alphaDeg, cp: [] });
+  let whole = none();
+  const without = Array.from({ length: n }, none);
   for (let ae = shape.alphaDeg - SHAPE_ALPHA_SPAN; ae <= shape.alphaDeg + SHAPE_ALPHA_SPAN + 1e-9; ae += SHAPE_ALPHA_STEP) {
     const all = shape.cp(ae);
-    let sx = 0; let sy = 0; let sxx = 0; let sxy = 0;
+    let sx = 0; let sy = 0; let sxx = 0; let sxy = 0; let syy = 0;
     for (let i = 0; i < n; i++) {
       const v = all[at[i]];
-      sx += v; sy += active[i].cp; sxx += v * v; sxy += v * active[i].cp;
+      sx += v; sy += y[i]; sxx += v * v; sxy += v * y[i]; syy += y[i] * y[i];
     }
-    const den = n * sxx - sx * sx;
-    if (!(den > 0)) continue;
-    const b = (n * sxy - sx * sy) / den;
-    const a = (sy - b * sx) / n;
-    let sse = 0;
-    for (let i = 0; i < n; i++) sse += (active[i].cp - a - b * all[at[i]]) ** 2;
-    if (sse < best.sse) best = { sse, a, b, alpha: ae, cp: all };
+    const fit = (cnt: number, x: number, yy: number, xx: number, xy: number, y2: number): ShapeFit | null => {
+      const den = cnt * xx - x * x;
+      if (!(den > 0)) return null;
+      const b = (cnt * xy - x * yy) / den;
+      const a = (yy - b * x) / cnt;
+      return { sse: y2 - 2 * a * yy - 2 * b * xy + cnt * a * a + 2 * a * b * x + b * b * xx, a, b, alpha: ae, cp: all };
+    };
+    const w = fit(n, sx, sy, sxx, sxy, syy);
+    if (w && w.sse < whole.sse) whole = w;
+    for (let k = 0; k < n; k++) {
+      const xk = all[at[k]];
+      const f = fit(m, sx - xk, sy - y[k], sxx - xk * xk, sxy - xk * y[k], syy - y[k] * y[k]);
+      if (f && f.sse < without[k].sse) without[k] = f;
+    }
   }
   // A shape that does not even rise with the measured Cp (b ≤ 0) says nothing about the row.
-  if (!(best.b > 0) || !Number.isFinite(best.sse)) return raw;
-  const uShape = shape.u(best.alpha);
-  const fit = (i: number) => best.a + best.b * best.cp[at[i]];
-  const diff = active.map((t, i) => ({ ...t, cp: t.cp - fit(i), u: Math.hypot(t.u, best.b * uShape[at[i]]) }));
-  const viaShape = judgeChain(diff, positionU);
-  return raw.map((r, i) => {
-    const v = viaShape[i];
+  if (!(whole.b > 0) || !Number.isFinite(whole.sse)) return raw;
+  const s = arcLength(active);
+  const differenceFrom = (f: ShapeFit) => {
+    const uShape = shape.u(f.alpha);
+    return active.map((t, i) => ({ ...t, cp: t.cp - f.a - f.b * f.cp[at[i]], u: Math.hypot(t.u, f.b * uShape[at[i]]) }));
+  };
+  const wholeDiff = differenceFrom(whole);
+  const leverage = shapeLeverage(whole, shape, at);
+  return raw.map((r, k) => {
+    let f = whole;
+    let diff = wholeDiff;
+    const own = without[k];
+    if (leverage[k] <= SHAPE_LOO_LEVERAGE && own.b > 0 && Number.isFinite(own.sse)) {
+      f = own;
+      diff = differenceFrom(own);
+    }
+    const v = predictTap(diff, k, positionU, s);
     if (!v) return r;
     if (r && !(v.u < r.u)) return r;
-    const predicted = v.predicted + fit(i);
-    const residual = active[i].cp - predicted;
-    return { id: v.id, cp: active[i].cp, predicted, residual, u: v.u, score: v.u > 0 ? Math.abs(residual) / v.u : Infinity };
+    const predicted = v.predicted + f.a + f.b * f.cp[at[k]];
+    const residual = active[k].cp - predicted;
+    return { id: v.id, cp: active[k].cp, predicted, residual, u: v.u, score: v.u > 0 ? Math.abs(residual) / v.u : Infinity };
   });
+}
+
+/** Each tap's leverage on the fit a + b·Cp_inv(α_eff): the diagonal of J(JᵀJ)⁻¹Jᵀ with the rows
+ *  J_i = [1, Cp_inv,i, b·∂Cp_inv,i/∂α] at the fitted α_eff (the derivative by central difference
+ *  over one α step). A singular fit gives every tap leverage 1 (all judged with the whole fit). */
+function shapeLeverage(f: ShapeFit, shape: NonNullable<OutlierOptions['shape']>, at: readonly number[]): Float64Array {
+  const n = at.length;
+  const up = shape.cp(f.alpha + SHAPE_ALPHA_STEP);
+  const dn = shape.cp(f.alpha - SHAPE_ALPHA_STEP);
+  const J = at.map((j) => [1, f.cp[j], (f.b * (up[j] - dn[j])) / (2 * SHAPE_ALPHA_STEP)]);
+  const M = [[0, 0, 0], [0, 0, 0], [0, 0, 0]];
+  for (const row of J) for (let p = 0; p < 3; p++) for (let q = 0; q < 3; q++) M[p][q] += row[p] * row[q];
+  const C = inverse3(M);
+  const h = new Float64Array(n).fill(1);
+  if (!C) return h;
+  for (let i = 0; i < n; i++) {
+    let v = 0;
+    for (let p = 0; p < 3; p++) for (let q = 0; q < 3; q++) v += J[i][p] * C[p][q] * J[i][q];
+    h[i] = v;
+  }
+  return h;
+}
+
+/** The inverse of a 3×3 matrix by cofactors; null when singular. */
+function inverse3(m: readonly (readonly number[])[]): number[][] | null {
+  const [a, b, c] = m[0];
+  const [d, e, f] = m[1];
+  const [g, h, i] = m[2];
+  const A = e * i - f * h;
+  const B = -(d * i - f * g);
+  const C = d * h - e * g;
+  const det = a * A + b * B + c * C;
+  if (!(Math.abs(det) > 1e-300) || !Number.isFinite(det)) return null;
+  return [
+    [A / det, -(b * i - c * h) / det, (b * f - c * e) / det],
+    [B / det, (a * i - c * g) / det, -(a * f - c * d) / det],
+    [C / det, -(a * h - b * g) / det, (a * e - b * d) / det],
+  ];
 }
 
 /** A keep decision (Settings.keptTaps): "C07@12" keeps tap C07 in run 12 against the automatic
