@@ -372,7 +372,7 @@ function nominalPass(
     uCp,
     positionU: setup.model.tapPositionUncertainty,
     keep: keptFor(settings.keptTaps, info.run),
-    inviscid: { geometry: setup.model.geometry, alphaDeg: info.alphaDeg },
+    inviscid: { geometry: setup.model.geometry, alphaDeg: info.alphaDeg, mach: first.fs.M },
   });
   const nominal = bad.length
     ? runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad, correct: provisional })

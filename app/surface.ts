@@ -291,7 +291,24 @@ export interface TapCheckContext {
   keep?: ReadonlySet<string>;
   /** The model's geometry and the run's α: rows of SHAPE_MIN_ROW taps or more are also judged
    *  against the fitted inviscid shape (app/tapShape.ts, tapCheck.ts findRowOutliers `shape`). */
-  inviscid?: { geometry: Geometry; alphaDeg: number };
+  inviscid?: { geometry: Geometry; alphaDeg: number; mach?: number };
+}
+
+/**
+ * The Kármán–Tsien rule: the compressible Cp at free-stream Mach number M from the incompressible
+ * Cp₀ of the same section, Cp = Cp₀ / (β + M²/(1 + β)·Cp₀/2), β = √(1 − M²) (Tsien, J. Aero. Sci.
+ * 6, 1939; von Kármán, J. Aero. Sci. 8, 1941; as in Anderson, Fundamentals of Aerodynamics, ch. 11,
+ * from memory). Unlike a factor 1/β it grows with the suction: at M 0.3 a Cp₀ of −3.5 becomes
+ * −4.0 (−3.67 by Prandtl–Glauert), the difference a linear fit a + b·Cp₀ cannot take up at a
+ * suction peak. Also returns dCp/dCp₀ = β/(β + M²/(1 + β)·Cp₀/2)², for the shape's uncertainty.
+ * Where the denominator would fall below β/4 (Cp₀ far below any subsonic peak) Cp₀ is held there.
+ */
+export function karmanTsien(cp0: number, M: number): { cp: number; slope: number } {
+  if (!(M > 0)) return { cp: cp0, slope: 1 };
+  const beta = Math.sqrt(1 - M * M);
+  const c = (M * M) / (1 + beta) / 2;
+  const den = Math.max(beta / 4, beta + c * cp0);
+  return { cp: cp0 / den, slope: beta / (den * den) };
 }
 
 /** Fewest taps a row needs for the shape-aided prediction: the fit takes three parameters (α_eff,
@@ -345,7 +362,17 @@ export function detectBadTaps(
     if (context.inviscid && chain.length >= SHAPE_MIN_ROW) {
       try {
         const sh = inviscidShape(context.inviscid.geometry, chain);
-        shape = { alphaDeg: context.inviscid.alphaDeg, cp: sh.cp, u: sh.u };
+        const M = context.inviscid.mach ?? 0;
+        shape = M > 0 && M < 1
+          ? {
+            alphaDeg: context.inviscid.alphaDeg,
+            cp: (a) => sh.cp(a).map((v) => karmanTsien(v, M).cp),
+            u: (a) => {
+              const cp0 = sh.cp(a);
+              return sh.u(a).map((v, i) => v * karmanTsien(cp0[i], M).slope);
+            },
+          }
+          : { alphaDeg: context.inviscid.alphaDeg, cp: sh.cp, u: sh.u };
       } catch {
         shape = undefined; // a geometry the panel method cannot solve: the plain test alone
       }

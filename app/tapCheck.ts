@@ -184,6 +184,18 @@ export function judgeChain(chain: readonly JudgedTap[], positionU = 0): (TapVerd
   return chain.map((_, k) => predictTap(chain, k, positionU, s));
 }
 
+/** A row's highest Cp at or above this is taken for a stagnation-region reading (ours, no
+ *  source: well above any Cp a tap away from the stagnation point reads on an attached section,
+ *  below the 1 a tap at the stagnation point reads). */
+export const STAGNATION_REGION_CP = 0.8;
+/** … and at most this (ours, no source: a q reading 20 % low; a higher reading is a tap fault,
+ *  not a stagnation reading) … */
+export const STAGNATION_REGION_MAX = 1.25;
+/** … at a tap within this fraction of the row's chordwise extent from its foremost tap (the
+ *  stagnation point of an attached section stays within a few per cent of the chord of the
+ *  leading edge; ours, no source). */
+export const STAGNATION_REGION_X = 0.1;
+
 /** The outliers of one row, in the order they were found (worst first), each with its verdict at
  *  the moment it was dropped. `chain` is the row's judged taps in contour order. */
 export function findRowOutliers(chain: readonly JudgedTap[], o: OutlierOptions): TapVerdict[] {
@@ -195,9 +207,26 @@ export function findRowOutliers(chain: readonly JudgedTap[], o: OutlierOptions):
   while (active.length >= TAP_CHECK_MIN_ROW - 2 && found.length < most) {
     const raw = judgeChain(active, o.positionU ?? 0);
     const verdicts = o.shape ? withShape(active, at, raw, o.shape, o.positionU ?? 0) : raw;
+    // The row's highest reading, when it is a stagnation-region value, is beyond what a
+    // polynomial through two neighbours on each side can predict (the peak is narrower than the
+    // tap spacing): judged by its neighbours alone it is never dropped; a reading above
+    // stagnation is the references' matter (referenceCheck). The fitted shape, which resolves the
+    // peak, may still find it.
+    let peak = 0;
+    let xMin = Infinity;
+    let xMax = -Infinity;
+    for (let k = 0; k < active.length; k++) {
+      if (active[k].cp > active[peak].cp) peak = k;
+      xMin = Math.min(xMin, active[k].x);
+      xMax = Math.max(xMax, active[k].x);
+    }
+    const top = active[peak];
+    const peakShielded = top.cp >= STAGNATION_REGION_CP && top.cp <= STAGNATION_REGION_MAX
+      && top.x - xMin <= STAGNATION_REGION_X * (xMax - xMin);
     let worst = -1;
     for (let k = 0; k < verdicts.length; k++) {
       const v = verdicts[k];
+      if (k === peak && peakShielded && v === raw[k]) continue;
       if (v && !o.keep?.has(v.id) && v.score > o.k && (worst < 0 || v.score > verdicts[worst]!.score)) worst = k;
     }
     if (worst < 0) break;
@@ -267,9 +296,13 @@ function withShape(
   // A shape that does not even rise with the measured Cp (b ≤ 0) says nothing about the row.
   if (!(whole.b > 0) || !Number.isFinite(whole.sse)) return raw;
   const s = arcLength(active);
+  // A tap's position error moves it along the whole Cp, not along the difference: the fitted
+  // shape is read at the nominal position while the tap measures at the true one, so each tap of
+  // the difference carries |d(b·Cp_inv)/ds|·positionU, and the difference's own slope adds nothing.
   const differenceFrom = (f: ShapeFit) => {
     const uShape = shape.u(f.alpha);
-    return active.map((t, i) => ({ ...t, cp: t.cp - f.a - f.b * f.cp[at[i]], u: Math.hypot(t.u, f.b * uShape[at[i]]) }));
+    const slope = positionU > 0 ? slopeAlong(s, active.map((_, i) => f.b * f.cp[at[i]])) : null;
+    return active.map((t, i) => ({ ...t, cp: t.cp - f.a - f.b * f.cp[at[i]], u: Math.hypot(t.u, f.b * uShape[at[i]], slope ? slope[i] * positionU : 0) }));
   };
   const wholeDiff = differenceFrom(whole);
   const leverage = shapeLeverage(whole, shape, at);
@@ -281,13 +314,32 @@ function withShape(
       f = own;
       diff = differenceFrom(own);
     }
-    const v = predictTap(diff, k, positionU, s);
+    const v = predictTap(diff, k, 0, s);
     if (!v) return r;
     if (r && !(v.u < r.u)) return r;
     const predicted = v.predicted + f.a + f.b * f.cp[at[k]];
     const residual = active[k].cp - predicted;
     return { id: v.id, cp: active[k].cp, predicted, residual, u: v.u, score: v.u > 0 ? Math.abs(residual) / v.u : Infinity };
   });
+}
+
+/** |df/ds| at each point of a polygon's samples: the derivative of the parabola through each
+ *  point and its two neighbours (one-sided at the ends). */
+function slopeAlong(s: ArrayLike<number>, f: ArrayLike<number>): Float64Array {
+  const n = f.length;
+  const out = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const a = Math.max(0, Math.min(n - 3, i - 1));
+    const [i0, i1, i2] = [a, a + 1, a + 2];
+    const h0 = s[i1] - s[i0];
+    const h1 = s[i2] - s[i1];
+    if (!(h0 > 0) || !(h1 > 0)) continue;
+    const d0 = (f[i1] - f[i0]) / h0;
+    const d1 = (f[i2] - f[i1]) / h1;
+    const c = (d1 - d0) / (h0 + h1); // second divided difference
+    out[i] = Math.abs(d0 + c * (2 * s[i] - s[i0] - s[i1]));
+  }
+  return out;
 }
 
 /** Each tap's leverage on the fit a + b·Cp_inv(α_eff): the diagonal of J(JᵀJ)⁻¹Jᵀ with the rows

@@ -44,15 +44,27 @@ describe('the exact section used', () => {
 });
 
 describe('leave-one-out test on exact sections, α −8° … 16°', () => {
-  // Measured (docs/TAP-JUDGEMENT.md): 0 of 25 angles with a tap dropped at 24, 48 and 96 taps;
-  // 1 of 25 at 16 taps (a leading-edge tap); rows of fewer than 12 taps are not judged.
+  // Measured (docs/TAP-JUDGEMENT.md): 0 of 25 angles with a tap dropped at 16, 24, 48 and 96 taps
+  // (at 16 taps the stagnation tap at 0° was dropped until the row's stagnation-region peak was
+  // shielded from the neighbours' prediction); rows of fewer than 12 taps are not judged.
   it.each([24, 48, 96])('%i taps: no tap dropped at any angle', (count) => {
     for (let a = -8; a <= 16; a++) expect(judge(row(a, count)), `α = ${a}°`).toEqual([]);
   });
-  it('16 taps: a tap dropped at no more than 1 of 25 angles', () => {
-    let dropped = 0;
-    for (let a = -8; a <= 16; a++) if (judge(row(a, 16)).length) dropped++;
-    expect(dropped).toBeLessThanOrEqual(1);
+  it('16 taps: no tap dropped at any angle, the stagnation-region peak included', () => {
+    for (let a = -8; a <= 16; a++) expect(judge(row(a, 16)), `α = ${a}°`).toEqual([]);
+  });
+  it('the shielded peak is only the row\'s highest reading, and only a stagnation-region one', () => {
+    // The same 16-tap row at 0° with the peak lowered to 0.7 Cp: no longer a stagnation-region
+    // reading, it is judged as any tap (and, 0.3 below the exact 0.998, dropped).
+    const base = row(0, 16);
+    const peak = base.reduce((b, t) => (t.cp > b.cp ? t : b));
+    expect(peak.cp).toBeGreaterThan(0.99);
+    expect(judge(base.map((t) => (t.id === peak.id ? { ...t, cp: 0.7 } : t))).map((v) => v.id)).toEqual([peak.id]);
+    // A glitch that makes an aft tap the row's highest reading is no stagnation reading.
+    const aft = base.filter((t) => t.x > 0.5)[0];
+    const glitched = base.map((t) => (t.id === aft.id ? { ...t, cp: t.cp + 1.4 } : t));
+    expect(Math.max(...glitched.map((t) => t.cp))).toBe(aft.cp + 1.4);
+    expect(judge(glitched).map((v) => v.id)).toEqual([aft.id]);
   });
   it('a row of 10 taps is not judged', () => {
     expect(judge(row(4, 10).map((t, i) => (i === 5 ? { ...t, cp: t.cp + 1 } : t)))).toEqual([]);
@@ -149,12 +161,11 @@ describe('shape-aided prediction (the fitted inviscid shape, app/tapShape.ts), a
   }
   // Measured (docs/TAP-JUDGEMENT.md §1); bounds are the figures rounded down (found) or up (wrong).
   it('exact rows: no tap dropped at 24, 48, 96 taps, α −8° … 16°; 16-tap rows keep the plain test', () => {
-    for (const n of [24, 48, 96]) expect(falseAlarms(row, n), `${n} taps`).toBe(0);
-    expect(falseAlarms(row, 16)).toBeLessThanOrEqual(1);
+    for (const n of [16, 24, 48, 96]) expect(falseAlarms(row, n), `${n} taps`).toBe(0);
   });
-  it('viscous-like rows: no tap dropped at 24, 48, 96 taps; at most 3 of 25 angles at 16 taps', () => {
+  it('viscous-like rows: no tap dropped at 24, 48, 96 taps; at most 1 of 25 angles at 16 taps', () => {
     for (const n of [24, 48, 96]) expect(falseAlarms(viscousRow, n), `${n} taps`).toBe(0);
-    expect(falseAlarms(viscousRow, 16)).toBeLessThanOrEqual(3);
+    expect(falseAlarms(viscousRow, 16)).toBeLessThanOrEqual(1);
   });
   it('planted glitches on exact rows: 0.1 and 0.2 Cp at 48 taps, 0.3 Cp at 24 taps', () => {
     const a = glitchRates(row, 48, 0.1);
@@ -164,8 +175,8 @@ describe('shape-aided prediction (the fitted inviscid shape, app/tapShape.ts), a
     expect(a.wrong).toBe(0);
     expect(b.found).toBeGreaterThan(0.985);
     expect(b.wrong).toBe(0);
-    expect(c.found).toBeGreaterThan(0.93);
-    expect(c.wrong).toBeLessThanOrEqual(1);
+    expect(c.found).toBeGreaterThan(0.9);
+    expect(c.wrong).toBe(0);
   }, 60_000);
   it('planted glitches on viscous-like rows: the same cases', () => {
     const a = glitchRates(viscousRow, 48, 0.1);
@@ -175,8 +186,8 @@ describe('shape-aided prediction (the fitted inviscid shape, app/tapShape.ts), a
     expect(a.wrong).toBe(0);
     expect(b.found).toBeGreaterThan(0.96);
     expect(b.wrong).toBe(0);
-    expect(c.found).toBeGreaterThan(0.81);
-    expect(c.wrong).toBeLessThanOrEqual(14);
+    expect(c.found).toBeGreaterThan(0.82);
+    expect(c.wrong).toBeLessThanOrEqual(4);
   }, 60_000);
 });
 
