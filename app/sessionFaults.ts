@@ -68,14 +68,16 @@ export function sessionFindings(results: readonly Pick<ResultDigest, 'run' | 'fl
     });
   }
   findings.sort((a, b) => (a.tap < b.tap ? -1 : a.tap > b.tap ? 1 : 0));
-  const known = new Set(findings.map((f) => `${f.code}\u0000${f.tap}`));
-  const explained = (r: Pick<ResultDigest, 'dropped'>, f: Flag) => {
-    if (f.code !== 'leaking-tap' && f.code !== 'bad-tap') return false;
-    const taps = tapsOf(r, f.code);
-    return taps.length > 0 && taps.every((t) => known.has(`${f.code}\u0000${t}`));
-  };
-  const needsDecision = results.filter((r) => r.flags.some((f) => !explained(r, f))).map((r) => r.run);
+  const needsDecision = results.filter((r) => r.flags.some((f) => !explainedByFindings(r, f, findings))).map((r) => r.run);
   return { findings, needsDecision };
+}
+
+/** Whether a run's flag is explained by the session findings: a leaking-tap or bad-tap flag all of
+ *  whose taps are findings of that code (then it is a note on the run, not a decision). */
+export function explainedByFindings(r: Pick<ResultDigest, 'dropped'>, f: Flag, findings: readonly Pick<SessionFinding, 'code' | 'tap'>[]): boolean {
+  if (f.code !== 'leaking-tap' && f.code !== 'bad-tap') return false;
+  const taps = tapsOf(r, f.code);
+  return taps.length > 0 && taps.every((t) => findings.some((x) => x.code === f.code && x.tap === t));
 }
 
 /** What channelFindings reads of a run: its index entry and its channels' sample statistics. */

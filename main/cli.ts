@@ -10,9 +10,10 @@ import type { Store, RunRow, ImportProgress } from './store';
 import type * as CliDeps from './cliDeps';
 import pkg from '../package.json';
 import { isLogError } from '../app/log/errors';
-import { flagsLine } from '../app/flags';
+import { flagShort, flagsLine } from '../app/flags';
+import { explainedByFindings, sessionFindings } from '../app/sessionFaults';
 import { staleRunNumbers } from '../app/stale';
-import { DEFAULT_SETTINGS, type Flag, type RunResult, type Settings } from '../app/types';
+import { DEFAULT_SETTINGS, type Flag, type ResultDigest, type RunResult, type SessionFinding, type Settings } from '../app/types';
 
 export const DEFAULT_DB = 'rakeline.sqlite';
 
@@ -207,14 +208,53 @@ export const METHOD_COLUMN: Record<string, string> = {
   'wall-signature': 'signature', maskell: 'Maskell', 'barlow-rae-pope': 'BRP', 'allen-vincenti': 'A&V', none: 'none',
 };
 
+/** What the session findings (app/sessionFaults.ts) say of the run list: the findings, each run's
+ *  automatic drops (to tell which flags they explain) and the runs still needing a decision. */
+export interface FindingsView {
+  findings: SessionFinding[];
+  dropped: ReadonlyMap<number, Pick<ResultDigest, 'dropped'>>;
+  needsDecision: number[];
+  dataRuns: number;
+}
+
+/** The findings of the latest results of a session's data runs, rejected runs left out (as the
+ *  day log and the sheet count them). */
+export function findingsView(digests: readonly ResultDigest[], rejected: ReadonlySet<number>): FindingsView {
+  const counted = digests.filter((d) => !rejected.has(d.run));
+  const { findings, needsDecision } = sessionFindings(counted);
+  return { findings, dropped: new Map(digests.map((d) => [d.run, d])), needsDecision, dataRuns: counted.length };
+}
+
+/** A run's flags for the text outputs: the flags a session finding explains become a note after
+ *  the rest ("note: leaking tap (session finding)"), since they are not a decision on this run. */
+export function flagsText(run: number, flags: readonly Flag[], view?: FindingsView): string {
+  const d = view?.dropped.get(run);
+  if (!view || !d || !view.findings.length) return flagsLine(flags, 'short');
+  const own = flags.filter((f) => !explainedByFindings(d, f, view.findings));
+  const noted = flags.filter((f) => explainedByFindings(d, f, view.findings));
+  const notes = noted.map((f) => `note: ${flagShort(f.code)} (session finding)`);
+  return own.length ? [flagsLine(own, 'short'), ...notes].join('; ') : notes.join('; ') || 'ok';
+}
+
+/** The lines under a run list or a reduction report that state the findings once. */
+export function findingsLines(view: FindingsView): string[] {
+  if (!view.findings.length) return [];
+  return [
+    'Session findings (reported once; on each run a note, not a decision):',
+    ...view.findings.map((f) => `  ${f.text}`),
+    `${view.needsDecision.length} of ${view.dataRuns} data run(s) need a decision${view.needsDecision.length ? `: runs ${view.needsDecision.join(', ')}` : ''}`,
+  ];
+}
+
 /** The run list as a fixed-width text table; `methods` (run → applied wall-correction method)
- *  fills the `wall` column ('-' where a run has no result). */
-export function runsTable(rows: RunRow[], methods: ReadonlyMap<number, string> = new Map()): string {
+ *  fills the `wall` column ('-' where a run has no result); with `view` the flags that session
+ *  findings explain are shown as notes and the findings are stated once under the table. */
+export function runsTable(rows: RunRow[], methods: ReadonlyMap<number, string> = new Map(), view?: FindingsView): string {
   const head = `${'run'.padStart(4)} ${'kind'.padEnd(4)} ${'time'.padEnd(8)} ${'a_geo'.padStart(6)} ${'a_cor'.padStart(6)} ${'q_Pa'.padStart(7)} ${'Re_1e6'.padStart(6)} ${'cl_p'.padStart(7)} ${'cl_mom'.padStart(7)} ${'cd_wake'.padStart(8)} ${'cm_c4'.padStart(7)} ${'wall'.padEnd(9)}  flags`;
   const lines = rows.map((r) => {
     const x = r.result;
     const t = (/T(\d{2}:\d{2}:\d{2})/.exec(r.time)?.[1] ?? r.time).padEnd(8);
-    const status = r.kind === 'zero' ? 'wind-off zero' : x ? flagsLine(x.flags, 'short') : 'not reduced';
+    const status = r.kind === 'zero' ? 'wind-off zero' : x ? flagsText(r.run, x.flags, view) : 'not reduced';
     const review = `${r.review ? ` [${r.review.verdict} by ${r.review.actor}]` : ''}${r.stale ? ' [stale]' : ''}`;
     const m = x ? methods.get(r.run) : undefined;
     const wall = (m ? METHOD_COLUMN[m] ?? m : '-').padEnd(9);
@@ -225,14 +265,19 @@ export function runsTable(rows: RunRow[], methods: ReadonlyMap<number, string> =
   const note = stale.length
     ? [`${stale.length} stale result(s), reduced with other settings, bad taps or zeros than the session's now: runs ${stale.join(", ")} (\`reduce --stale\` re-reduces them)`]
     : [];
-  return [head, ...lines, ...note, ...(rows.some((r) => r.result) ? [key] : [])].join('\n');
+  return [head, ...lines, ...note, ...(view ? findingsLines(view) : []), ...(rows.some((r) => r.result) ? [key] : [])].join('\n');
 }
 
 /** One line for a reduced run (used by `reduce` and `follow`). */
-export function resultLine(r: RunResult, prefix = 'run'): string {
+export function resultLine(r: RunResult, prefix = 'run', view?: FindingsView): string {
+  return `${resultHead(r, prefix)}, ${flagsText(r.run, r.flags, view)}`;
+}
+
+/** The coefficients part of resultLine. */
+function resultHead(r: RunResult, prefix: string): string {
   const c = r.corrected;
   const f = (v: number, d: number) => (Number.isFinite(v) ? v.toFixed(d) : '-');
-  return `${prefix} ${r.run}: alpha ${f(c.alphaDeg, 2)} deg, q ${f(c.q, 1)} Pa, cl ${f(c.cl, 4)} (momentum ${f(D().correctedMomentumCl(r), 4)}), cd ${f(c.cd, 5)}, cm ${f(c.cmc4, 4)}, ${flagsLine(r.flags, 'short')}`;
+  return `${prefix} ${r.run}: alpha ${f(c.alphaDeg, 2)} deg, q ${f(c.q, 1)} Pa, cl ${f(c.cl, 4)} (momentum ${f(D().correctedMomentumCl(r), 4)}), cd ${f(c.cd, 5)}, cm ${f(c.cmc4, 4)}`;
 }
 
 function writeOut(text: string, file: string | undefined, what: string): void {
@@ -253,18 +298,27 @@ async function reduceAndTell(store: Store, sessionId: number, g: GlobalOpts, opt
   const t0 = performance.now();
   // Saved in bounded batches (main/reduceService.ts SaveInBatches): only the flagged runs' lines
   // are kept for the report, not every result of a large session.
-  const flagged: string[] = [];
+  const flagged: { run: number; head: string; flags: Flag[] }[] = [];
   let reduced = 0;
   try {
     ({ reduced } = await D().reduceStoredSessionAsync(store, sessionId, {
       ...opts, actor: actorOf(g), onProgress: bar.onProgress,
-      batches: { size: D().SAVE_BATCH, onSaved: (rs) => { for (const r of rs) if (r.flags.length) flagged.push(resultLine(r)); } },
+      batches: {
+        size: D().SAVE_BATCH,
+        // Only the report line's parts are kept of a flagged run, not the result.
+        onSaved: (rs) => { for (const r of rs) if (r.flags.length) flagged.push({ run: r.run, head: resultHead(r, 'run'), flags: r.flags }); },
+      },
     }));
   } finally {
     bar.stop();
   }
-  out(`session ${sessionId}: reduced ${reduced} run(s) in ${((performance.now() - t0) / 1000).toFixed(2)} s, ${flagged.length} flagged`);
-  for (const line of flagged) out(`  ${line}`);
+  const secs = ((performance.now() - t0) / 1000).toFixed(2);
+  // The findings of the whole session's latest results (not only of the runs just reduced).
+  const view = findingsView(store.latestDigests(sessionId), store.rejectedRuns(sessionId));
+  const deciding = flagged.filter((r) => view.needsDecision.includes(r.run) || !view.dropped.has(r.run));
+  out(`session ${sessionId}: reduced ${reduced} run(s) in ${secs} s, ${flagged.length} flagged${view.findings.length ? `, ${deciding.length} of them needing a decision` : ''}`);
+  for (const r of deciding) out(`  ${r.head}, ${flagsText(r.run, r.flags, view)}`);
+  for (const line of findingsLines(view)) out(line);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -544,7 +598,8 @@ Examples:
         if (o.stale) rows = rows.filter((r) => r.stale);
         if (o.format === 'json') return out(JSON.stringify(rows, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2));
         if (o.format === 'csv') return void process.stdout.write(D().exportResultsCsv(rows, store.getSetup(sid), store.latestResults(sid)));
-        out(runsTable(rows, new Map(store.latestDigests(sid).map((d) => [d.run, d.correction.method]))));
+        const digests = store.latestDigests(sid);
+        out(runsTable(rows, new Map(digests.map((d) => [d.run, d.correction.method])), findingsView(digests, store.rejectedRuns(sid))));
       });
     });
 

@@ -51,3 +51,26 @@ describe('demo day: persistent faults', () => {
     expect(r2.needsDecision).toEqual([4]);
   });
 });
+
+describe('the command line states the findings once (main/cli.ts runsTable, findingsView)', () => {
+  it('a flag a finding explains is a note on its run; the rest stay flags; the count is of runs needing a decision', async () => {
+    const { findingsView, flagsText, findingsLines } = await import('../main/cli');
+    const digests = results.map((r) => ({ ...r, dropped: r.dropped ?? [] })) as unknown as Parameters<typeof findingsView>[0];
+    const view = findingsView(digests, new Set());
+    const leak = demo.faults.find((f) => f.code === 'leaking-tap')!;
+    for (const r of results) {
+      const text = flagsText(r.run, r.flags, view);
+      expect(text, `run ${r.run}`).toContain('note: leaking tap (session finding)');
+      expect(text.startsWith('check: leaking tap'), `run ${r.run}`).toBe(false);
+      // A run needing a decision shows its own flags first.
+      if (summary.needsDecision!.includes(r.run)) expect(text, `run ${r.run}`).toMatch(/^(hold|check): /);
+      else expect(text, `run ${r.run}`).toMatch(/^note: /);
+    }
+    const lines = findingsLines(view);
+    expect(lines.filter((l) => l.includes(leak.tap!))).toHaveLength(1);
+    expect(lines.at(-1)).toBe(`${summary.needsDecision!.length} of ${results.length} data run(s) need a decision: runs ${summary.needsDecision!.join(', ')}`);
+    // A rejected run is left out of the count, as on the day log and the sheet.
+    const rejected = summary.needsDecision![0];
+    expect(findingsView(digests, new Set([rejected])).needsDecision).not.toContain(rejected);
+  });
+});
