@@ -2,6 +2,7 @@
 // new reduction (history kept). The session summary comes from the latest stored digests.
 import { availableParallelism } from 'node:os';
 import type { RunResult, SessionSummary, Settings, Setup, ZeroedRun } from '../app/types';
+type Averaged = ReturnType<Store['getAveraged']>[number];
 import { averageRuns, prepareRuns, reduceRun, summariseSession } from '../app/reduce';
 import { zeroRunsFor } from '../app/samples';
 import { isDiskFull, StoreFullError, type ImportProgress, type Store } from './store';
@@ -21,7 +22,7 @@ export const SAVE_BATCH = 32;
 
 /** What a reduction needs from the store: the setup, the settings and the runs with zeros applied
  *  (also used by main/verify.ts to re-run a reduction the page sends). */
-export function reductionInputs(store: Store, sessionId: number, opts: ReduceOpts): { setup: Setup; settings: Settings; zeroed: ZeroedRun[] } {
+export function reductionInputs(store: Store, sessionId: number, opts: ReduceOpts): { setup: Setup; settings: Settings; zeroed: ZeroedRun[]; all?: Averaged[] } {
   const setup = store.getSetup(sessionId);
   const stored = store.getSettings(sessionId);
   const settings: Settings = { ...stored, ...(opts.settings ?? {}) };
@@ -41,7 +42,10 @@ export function reductionInputs(store: Store, sessionId: number, opts: ReduceOpt
     ? store.getAveraged(sessionId, needed ?? undefined)
     : averageRuns(index.filter((i) => !needed || needed.has(i.run)).map((i) => store.getRawRun(sessionId, i.run)), settings);
   const zeroed = prepareRuns(setup, averaged).filter((z) => !wanted || wanted.has(z.info.run));
-  return { setup, settings, zeroed };
+  // Every run's stored averages, when that is what was read: the session summary needs the same
+  // (its channel findings), and reading them twice cost ~85 ms of a 100-run reduction.
+  const all = !needed && settings.spikeK === stored.spikeK ? averaged : undefined;
+  return { setup, settings, zeroed, all };
 }
 
 /** Store results as a new reduction; a full disk is said as such. */
@@ -62,10 +66,10 @@ export function reduceStoredSession(
   sessionId: number,
   opts: ReduceOpts = {},
 ): { results: RunResult[]; summary: SessionSummary } {
-  const { setup, settings, zeroed } = reductionInputs(store, sessionId, opts);
+  const { setup, settings, zeroed, all } = reductionInputs(store, sessionId, opts);
   const results = reduceHere(setup, zeroed, settings, progressOf(opts, zeroed.length));
   saveReduced(store, sessionId, results, opts);
-  return { results, summary: sessionSummary(store, sessionId) };
+  return { results, summary: sessionSummary(store, sessionId, { averaged: all }) };
 }
 
 /** Progress of a reduction of `total` runs, `done` of them reduced. */
@@ -112,7 +116,7 @@ export async function reduceStoredSessionAsync(
   sessionId: number,
   opts: ReduceOpts & { workers?: number | 'auto'; batches?: SaveInBatches } = {},
 ): Promise<{ results: RunResult[]; summary: SessionSummary; reduced: number }> {
-  const { setup, settings, zeroed } = reductionInputs(store, sessionId, opts);
+  const { setup, settings, zeroed, all } = reductionInputs(store, sessionId, opts);
   const total = zeroed.length;
   const tell = progressOf(opts, total);
   const workers = opts.workers === undefined || opts.workers === 'auto' ? reduceWorkersFor(total, settings.mcDraws) : opts.workers;
@@ -126,7 +130,7 @@ export async function reduceStoredSessionAsync(
     const results = await reduceSome(zeroed, tell);
     saveReduced(store, sessionId, results, opts);
     b?.onSaved?.(results);
-    return { results: b ? [] : results, summary: sessionSummary(store, sessionId), reduced: results.length };
+    return { results: b ? [] : results, summary: sessionSummary(store, sessionId, { averaged: all }), reduced: results.length };
   }
   // Threads start once a batch: give each batch enough runs to pay for that.
   const size = Math.max(1, workers > 1 ? Math.max(b.size, 16 * workers) : b.size);
@@ -140,7 +144,7 @@ export async function reduceStoredSessionAsync(
     b.onSaved?.(results);
     for (let i = k; i < k + part.length; i++) (zeroed as (ZeroedRun | undefined)[])[i] = undefined; // let the inputs go too
   }
-  return { results: [], summary: sessionSummary(store, sessionId), reduced: done };
+  return { results: [], summary: sessionSummary(store, sessionId, { averaged: all }), reduced: done };
 }
 
 /** The runs reduced on worker threads, in chunks, results in run order; null if the threads did
@@ -250,10 +254,11 @@ async function reduceBeside(setup: Setup, zeroed: ZeroedRun[], settings: Setting
 }
 
 /** Session summary from the latest stored result of every data run. Runs a reviewer rejected are
- *  left out unless includeRejected. */
-export function sessionSummary(store: Store, sessionId: number, opts: { includeRejected?: boolean } = {}): SessionSummary {
+ *  left out unless includeRejected. `averaged`: every run's stored averages when the caller has
+ *  just read them (store.getAveraged(sessionId)), so they are not read again. */
+export function sessionSummary(store: Store, sessionId: number, opts: { includeRejected?: boolean; averaged?: Averaged[] } = {}): SessionSummary {
   const setup = store.getSetup(sessionId);
   const rejected = opts.includeRejected ? new Set<number>() : store.rejectedRuns(sessionId);
   const results = store.latestDigests(sessionId).filter((r) => opts.includeRejected || !rejected.has(r.run));
-  return summariseSession(setup, results, store.getIndex(sessionId), store.getAveraged(sessionId));
+  return summariseSession(setup, results, store.getIndex(sessionId), opts.averaged ?? store.getAveraged(sessionId));
 }
