@@ -334,6 +334,7 @@ async function follow(folder: string, g: GlobalOpts, settleMs: number, reduce: b
   let again = false;
   let lastError = '';
   const warnedChanged = new Set<string>();
+  const saidFindings = new Set<string>();
 
   let retry: ReturnType<typeof setTimeout> | null = null;
   const step = async () => {
@@ -363,7 +364,15 @@ async function follow(folder: string, g: GlobalOpts, settleMs: number, reduce: b
       if (!todo.length) return;
       const { results } = D().reduceStoredSession(store, rep.sessionId, { runs: todo, actor });
       const freshSet = new Set(rep.importedRuns);
-      for (const r of results) out(resultLine(r, freshSet.has(r.run) ? 'run' : 'updated run'));
+      // Faults that persist over the runs so far are said once, as they become session findings;
+      // on each run's line they are then a note.
+      const view = findingsView(store.latestDigests(rep.sessionId), store.rejectedRuns(rep.sessionId));
+      for (const f of view.findings) {
+        const k = `${f.code}:${f.tap}`;
+        if (!saidFindings.has(k)) note(`session finding: ${f.text}`);
+        saidFindings.add(k);
+      }
+      for (const r of results) out(resultLine(r, freshSet.has(r.run) ? 'run' : 'updated run', view));
     } catch (e) {
       const msg = e instanceof Error ? e.message : String(e);
       // A half-written or not-yet-complete session is normal while acquisition runs: say it once.
