@@ -122,6 +122,8 @@ describe('columns Monte Carlo and staged budget = the per-draw reference, bit fo
     // The glitch was dropped and the stalled wake flagged: the awkward paths were exercised.
     const r = reduceRun(setup, planted[3], awkward.settings);
     expect((r.dropped ?? []).map((d) => d.id)).toContain('U05');
+    // … and the stagnation tap at 1.05 was kept (it points at the references, issue 9).
+    expect((r.dropped ?? []).map((d) => d.id)).not.toContain('L01');
     expect(r.flags.map((f) => f.code)).toContain('wake-not-captured');
     // No wind-off zero at all.
     const noZero = caseOf('mini, no zeros', setup, raws.filter((x) => x.info.kind !== 'zero'), { mcDraws: 120 });
