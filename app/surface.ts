@@ -363,16 +363,22 @@ export function detectBadTaps(
       try {
         const sh = inviscidShape(context.inviscid.geometry, chain);
         const M = context.inviscid.mach ?? 0;
-        shape = M > 0 && M < 1
-          ? {
-            alphaDeg: context.inviscid.alphaDeg,
-            cp: (a) => sh.cp(a).map((v) => karmanTsien(v, M).cp),
-            u: (a) => {
-              const cp0 = sh.cp(a);
-              return sh.u(a).map((v, i) => v * karmanTsien(cp0[i], M).slope);
-            },
+        const cp = M > 0 && M < 1 ? (a: number) => sh.cp(a).map((v) => karmanTsien(v, M).cp) : sh.cp;
+        const u = M > 0 && M < 1
+          ? (a: number) => {
+            const cp0 = sh.cp(a);
+            return sh.u(a).map((v, i) => v * karmanTsien(cp0[i], M).slope);
           }
-          : { alphaDeg: context.inviscid.alphaDeg, cp: sh.cp, u: sh.u };
+          : sh.u;
+        // The test asks for the same α_eff grid in every pass over the row: each computed once.
+        const cpAt = new Map<number, Float64Array>();
+        const uAt = new Map<number, Float64Array>();
+        const once = (cache: Map<number, Float64Array>, f: (a: number) => Float64Array) => (a: number) => {
+          let v = cache.get(a);
+          if (!v) cache.set(a, (v = f(a)));
+          return v;
+        };
+        shape = { alphaDeg: context.inviscid.alphaDeg, cp: once(cpAt, cp), u: once(uAt, u) };
       } catch {
         shape = undefined; // a geometry the panel method cannot solve: the plain test alone
       }

@@ -107,8 +107,11 @@ function arcLength(chain: readonly JudgedTap[]): Float64Array {
 
 /** The verdict on chain[k] from its neighbours (see the module comment); null when the tap has too
  *  few distinct neighbours to be predicted. */
-export function predictTap(chain: readonly JudgedTap[], k: number, positionU = 0, s: ArrayLike<number> = arcLength(chain)): TapVerdict | null {
-  const own = predictCore(chain, k, positionU, s, -1);
+export function predictTap(
+  chain: readonly JudgedTap[], k: number, positionU = 0, s: ArrayLike<number> = arcLength(chain),
+  cp: ArrayLike<number> = chain.map((t) => t.cp), uOf: ArrayLike<number> = chain.map((t) => t.u),
+): TapVerdict | null {
+  const own = predictCore(chain, k, positionU, s, -1, cp, uOf);
   if (!own) return own;
   // Cross-validation: how well the nearest neighbour on each side is predicted by the same rule
   // without itself and without tap k. Where the neighbours cannot be predicted (a sparse leading
@@ -116,7 +119,7 @@ export function predictTap(chain: readonly JudgedTap[], k: number, positionU = 0
   let cv = 0;
   for (const j of [own.left, own.right]) {
     if (j < 0) continue;
-    const vj = predictCore(chain, j, positionU, s, k);
+    const vj = predictCore(chain, j, positionU, s, k, cp, uOf);
     if (vj) cv = Math.max(cv, Math.abs(vj.residual));
   }
   const u = Math.sqrt(own.u * own.u + cv * cv);
@@ -124,10 +127,9 @@ export function predictTap(chain: readonly JudgedTap[], k: number, positionU = 0
 }
 
 function predictCore(
-  chain: readonly JudgedTap[], k: number, positionU: number, s: ArrayLike<number>, skip: number,
+  chain: readonly JudgedTap[], k: number, positionU: number, s: ArrayLike<number>, skip: number, cp: ArrayLike<number>, uOf: ArrayLike<number>,
 ): (TapVerdict & { left: number; right: number }) | null {
   const n = chain.length;
-  const cp = chain.map((t) => t.cp);
   const distinct = (i: number) => i !== skip && Math.abs(s[i] - s[k]) > 1e-9;
   const left: number[] = [];
   const right: number[] = [];
@@ -161,7 +163,7 @@ function predictCore(
   const w: number[] = [];
   const predicted = lagrange(s, cp, nodes, s[k], w);
   let noise = 0;
-  for (let a = 0; a < nodes.length; a++) noise += w[a] * w[a] * chain[nodes[a]].u ** 2;
+  for (let a = 0; a < nodes.length; a++) noise += w[a] * w[a] * uOf[nodes[a]] ** 2;
   let model = 0;
   for (const set of alternatives) model = Math.max(model, Math.abs(lagrange(s, cp, set, s[k]) - predicted));
   let pos = 0;
@@ -170,10 +172,10 @@ function predictCore(
     const slope = (lagrange(s, cp, nodes, s[k] + h) - lagrange(s, cp, nodes, s[k] - h)) / (2 * h);
     pos = slope * positionU;
   }
-  const u = Math.sqrt(chain[k].u ** 2 + noise + model * model + pos * pos);
-  const residual = chain[k].cp - predicted;
+  const u = Math.sqrt(uOf[k] ** 2 + noise + model * model + pos * pos);
+  const residual = cp[k] - predicted;
   return {
-    id: chain[k].id, cp: chain[k].cp, predicted, residual, u, score: u > 0 ? Math.abs(residual) / u : Infinity,
+    id: chain[k].id, cp: cp[k], predicted, residual, u, score: u > 0 ? Math.abs(residual) / u : Infinity,
     left: left.length ? left[0] : -1, right: right.length ? right[0] : -1,
   };
 }
@@ -181,7 +183,9 @@ function predictCore(
 /** Every tap's verdict on a chain in contour order (null where a tap cannot be predicted). */
 export function judgeChain(chain: readonly JudgedTap[], positionU = 0): (TapVerdict | null)[] {
   const s = arcLength(chain);
-  return chain.map((_, k) => predictTap(chain, k, positionU, s));
+  const cp = chain.map((t) => t.cp);
+  const u = chain.map((t) => t.u);
+  return chain.map((_, k) => predictTap(chain, k, positionU, s, cp, u));
 }
 
 /** A row's highest Cp at or above this is taken for a stagnation-region reading (ours, no
@@ -270,7 +274,12 @@ function withShape(
   const y = active.map((t) => t.cp);
   const none = (): ShapeFit => ({ sse: Infinity, a: 0, b: 0, alpha: shape.alphaDeg, cp: [] });
   let whole = none();
-  const without = Array.from({ length: n }, none);
+  // The best fit without each tap, kept in columns while the α_eff grid is searched.
+  const bestSse = new Float64Array(n).fill(Infinity);
+  const bestA = new Float64Array(n);
+  const bestB = new Float64Array(n);
+  const bestAlpha = new Float64Array(n);
+  const bestCp: ArrayLike<number>[] = new Array(n);
   for (let ae = shape.alphaDeg - SHAPE_ALPHA_SPAN; ae <= shape.alphaDeg + SHAPE_ALPHA_SPAN + 1e-9; ae += SHAPE_ALPHA_STEP) {
     const all = shape.cp(ae);
     let sx = 0; let sy = 0; let sxx = 0; let sxy = 0; let syy = 0;
@@ -278,43 +287,62 @@ function withShape(
       const v = all[at[i]];
       sx += v; sy += y[i]; sxx += v * v; sxy += v * y[i]; syy += y[i] * y[i];
     }
-    const fit = (cnt: number, x: number, yy: number, xx: number, xy: number, y2: number): ShapeFit | null => {
-      const den = cnt * xx - x * x;
-      if (!(den > 0)) return null;
-      const b = (cnt * xy - x * yy) / den;
-      const a = (yy - b * x) / cnt;
-      return { sse: y2 - 2 * a * yy - 2 * b * xy + cnt * a * a + 2 * a * b * x + b * b * xx, a, b, alpha: ae, cp: all };
-    };
-    const w = fit(n, sx, sy, sxx, sxy, syy);
-    if (w && w.sse < whole.sse) whole = w;
+    {
+      const den = n * sxx - sx * sx;
+      if (den > 0) {
+        const b = (n * sxy - sx * sy) / den;
+        const a = (sy - b * sx) / n;
+        const sse = syy - 2 * a * sy - 2 * b * sxy + n * a * a + 2 * a * b * sx + b * b * sxx;
+        if (sse < whole.sse) whole = { sse, a, b, alpha: ae, cp: all };
+      }
+    }
+    // Without tap k: the sums less its own term.
     for (let k = 0; k < n; k++) {
       const xk = all[at[k]];
-      const f = fit(m, sx - xk, sy - y[k], sxx - xk * xk, sxy - xk * y[k], syy - y[k] * y[k]);
-      if (f && f.sse < without[k].sse) without[k] = f;
+      const x = sx - xk; const yy = sy - y[k]; const xx = sxx - xk * xk; const xy = sxy - xk * y[k]; const y2 = syy - y[k] * y[k];
+      const den = m * xx - x * x;
+      if (!(den > 0)) continue;
+      const b = (m * xy - x * yy) / den;
+      const a = (yy - b * x) / m;
+      const sse = y2 - 2 * a * yy - 2 * b * xy + m * a * a + 2 * a * b * x + b * b * xx;
+      if (sse < bestSse[k]) {
+        bestSse[k] = sse; bestA[k] = a; bestB[k] = b; bestAlpha[k] = ae; bestCp[k] = all;
+      }
     }
   }
+  const without = (k: number): ShapeFit => (Number.isFinite(bestSse[k])
+    ? { sse: bestSse[k], a: bestA[k], b: bestB[k], alpha: bestAlpha[k], cp: bestCp[k] }
+    : none());
   // A shape that does not even rise with the measured Cp (b ≤ 0) says nothing about the row.
   if (!(whole.b > 0) || !Number.isFinite(whole.sse)) return raw;
   const s = arcLength(active);
   // A tap's position error moves it along the whole Cp, not along the difference: the fitted
   // shape is read at the nominal position while the tap measures at the true one, so each tap of
   // the difference carries |d(b·Cp_inv)/ds|·positionU, and the difference's own slope adds nothing.
+  // The shape's own uncertainty and its slope along the row at each α_eff, once: the fits without
+  // one tap mostly share an α_eff (b > 0, so |d(b·Cp_inv)/ds| = b·|dCp_inv/ds|).
+  const perAlpha = new Map<number, { u: ArrayLike<number>; slope: Float64Array | null }>();
   const differenceFrom = (f: ShapeFit) => {
-    const uShape = shape.u(f.alpha);
-    const slope = positionU > 0 ? slopeAlong(s, active.map((_, i) => f.b * f.cp[at[i]])) : null;
-    return active.map((t, i) => ({ ...t, cp: t.cp - f.a - f.b * f.cp[at[i]], u: Math.hypot(t.u, f.b * uShape[at[i]], slope ? slope[i] * positionU : 0) }));
+    let pa = perAlpha.get(f.alpha);
+    if (!pa) {
+      pa = { u: shape.u(f.alpha), slope: positionU > 0 ? slopeAlong(s, at.map((j) => f.cp[j])) : null };
+      perAlpha.set(f.alpha, pa);
+    }
+    const { u: uShape, slope } = pa;
+    for (let i = 0; i < n; i++) {
+      dCp[i] = active[i].cp - f.a - f.b * f.cp[at[i]];
+      dU[i] = Math.hypot(active[i].u, f.b * uShape[at[i]], slope ? f.b * slope[i] * positionU : 0);
+    }
   };
-  const wholeDiff = differenceFrom(whole);
+  // The difference's Cp and u, filled for one fit at a time (no arrays made per tap).
+  const dCp = new Float64Array(n);
+  const dU = new Float64Array(n);
   const leverage = shapeLeverage(whole, shape, at);
   return raw.map((r, k) => {
-    let f = whole;
-    let diff = wholeDiff;
-    const own = without[k];
-    if (leverage[k] <= SHAPE_LOO_LEVERAGE && own.b > 0 && Number.isFinite(own.sse)) {
-      f = own;
-      diff = differenceFrom(own);
-    }
-    const v = predictTap(diff, k, 0, s);
+    const own = without(k);
+    const f = leverage[k] <= SHAPE_LOO_LEVERAGE && own.b > 0 && Number.isFinite(own.sse) ? own : whole;
+    differenceFrom(f);
+    const v = predictTap(active, k, 0, s, dCp, dU);
     if (!v) return r;
     if (r && !(v.u < r.u)) return r;
     const predicted = v.predicted + f.a + f.b * f.cp[at[k]];
