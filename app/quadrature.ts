@@ -1,6 +1,7 @@
-// Elementary numerics shared by the reduction modules: composite trapezoid rule and piecewise-linear
-// interpolation (standard numerical analysis, e.g. Press et al., Numerical Recipes, 3rd ed., §4.1
-// and §3.1). Pure; no dependencies.
+// Elementary numerics shared by the reduction modules: composite trapezoid rule, piecewise-linear
+// interpolation and the inverse of a small symmetric positive-definite matrix by Cholesky
+// (standard numerical analysis, e.g. Press et al., Numerical Recipes, 3rd ed., §4.1, §3.1 and
+// §2.9). Pure; no dependencies.
 
 /** Composite trapezoid ∫ y dx over points given in increasing x (caller sorts). */
 export function trapezoid(x: ArrayLike<number>, y: ArrayLike<number>): number {
@@ -86,4 +87,38 @@ export function applyStencil(lo: number, hi: number, t: number, ys: ArrayLike<nu
  *  first and call this only on failure, so the message is built only when it is thrown. */
 export function requireFinite(value: number, what: string): void {
   if (!Number.isFinite(value)) throw new Error(`${what} must be a finite number (got ${value})`);
+}
+
+/** Inverse of a symmetric positive-definite k × k matrix by Cholesky; null if not positive. */
+export function spdInverse(M: Float64Array, k: number): Float64Array | null {
+  const L = new Float64Array(k * k);
+  for (let i = 0; i < k; i++) {
+    for (let j = 0; j <= i; j++) {
+      let s = M[i * k + j];
+      for (let p = 0; p < j; p++) s -= L[i * k + p] * L[j * k + p];
+      if (i === j) {
+        if (!(s > 0)) return null;
+        L[i * k + i] = Math.sqrt(s);
+      } else {
+        L[i * k + j] = s / L[j * k + j];
+      }
+    }
+  }
+  const inv = new Float64Array(k * k);
+  const col = new Float64Array(k);
+  for (let c = 0; c < k; c++) {
+    // Solve L y = e_c, then Lᵀ x = y.
+    for (let i = 0; i < k; i++) {
+      let s = i === c ? 1 : 0;
+      for (let p = 0; p < i; p++) s -= L[i * k + p] * col[p];
+      col[i] = s / L[i * k + i];
+    }
+    for (let i = k - 1; i >= 0; i--) {
+      let s = col[i];
+      for (let p = i + 1; p < k; p++) s -= L[p * k + i] * col[p];
+      col[i] = s / L[i * k + i];
+    }
+    for (let i = 0; i < k; i++) inv[i * k + c] = col[i];
+  }
+  return inv;
 }

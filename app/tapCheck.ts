@@ -31,6 +31,8 @@
 //    (Cp − Cp_stag)·q low. The tap is kept; the run gets a reference flag. Only a tap that stands out
 //    from its own neighbours (test 1) is a tap problem.
 
+import { spdInverse } from './quadrature';
+
 /** γ of air (REDUCTION.md §1). */
 const GAMMA = 1.4;
 
@@ -254,6 +256,21 @@ export const SHAPE_LOO_LEVERAGE = 0.35;
 
 interface ShapeFit { sse: number; a: number; b: number; alpha: number; cp: ArrayLike<number> }
 
+/** The result of the last lineFit (one scratch object: the fit runs for every tap at every α_eff). */
+const LINE = { a: 0, b: 0, sse: 0 };
+/** Least squares y = a + b·x from the sums of cnt points (Σx, Σy, Σx², Σxy, Σy²), into LINE;
+ *  false when the x do not vary. The residual sum of squares from the same sums. */
+function lineFit(cnt: number, sx: number, sy: number, sxx: number, sxy: number, syy: number): boolean {
+  const den = cnt * sxx - sx * sx;
+  if (!(den > 0)) return false;
+  const b = (cnt * sxy - sx * sy) / den;
+  const a = (sy - b * sx) / cnt;
+  LINE.a = a;
+  LINE.b = b;
+  LINE.sse = syy - 2 * a * sy - 2 * b * sxy + cnt * a * a + 2 * a * b * sx + b * b * sxx;
+  return true;
+}
+
 /**
  * The verdicts of the shape-aided prediction (OutlierOptions.shape): the inviscid Cp at the
  * run's α, fitted to the row's taps as a + b·Cp_inv(α_eff) (least squares over α_eff within
@@ -287,27 +304,12 @@ function withShape(
       const v = all[at[i]];
       sx += v; sy += y[i]; sxx += v * v; sxy += v * y[i]; syy += y[i] * y[i];
     }
-    {
-      const den = n * sxx - sx * sx;
-      if (den > 0) {
-        const b = (n * sxy - sx * sy) / den;
-        const a = (sy - b * sx) / n;
-        const sse = syy - 2 * a * sy - 2 * b * sxy + n * a * a + 2 * a * b * sx + b * b * sxx;
-        if (sse < whole.sse) whole = { sse, a, b, alpha: ae, cp: all };
-      }
-    }
+    if (lineFit(n, sx, sy, sxx, sxy, syy) && LINE.sse < whole.sse) whole = { ...LINE, alpha: ae, cp: all };
     // Without tap k: the sums less its own term.
     for (let k = 0; k < n; k++) {
       const xk = all[at[k]];
-      const x = sx - xk; const yy = sy - y[k]; const xx = sxx - xk * xk; const xy = sxy - xk * y[k]; const y2 = syy - y[k] * y[k];
-      const den = m * xx - x * x;
-      if (!(den > 0)) continue;
-      const b = (m * xy - x * yy) / den;
-      const a = (yy - b * x) / m;
-      const sse = y2 - 2 * a * yy - 2 * b * xy + m * a * a + 2 * a * b * x + b * b * xx;
-      if (sse < bestSse[k]) {
-        bestSse[k] = sse; bestA[k] = a; bestB[k] = b; bestAlpha[k] = ae; bestCp[k] = all;
-      }
+      if (!lineFit(m, sx - xk, sy - y[k], sxx - xk * xk, sxy - xk * y[k], syy - y[k] * y[k]) || !(LINE.sse < bestSse[k])) continue;
+      bestSse[k] = LINE.sse; bestA[k] = LINE.a; bestB[k] = LINE.b; bestAlpha[k] = ae; bestCp[k] = all;
     }
   }
   const without = (k: number): ShapeFit => (Number.isFinite(bestSse[k])
@@ -378,34 +380,17 @@ function shapeLeverage(f: ShapeFit, shape: NonNullable<OutlierOptions['shape']>,
   const up = shape.cp(f.alpha + SHAPE_ALPHA_STEP);
   const dn = shape.cp(f.alpha - SHAPE_ALPHA_STEP);
   const J = at.map((j) => [1, f.cp[j], (f.b * (up[j] - dn[j])) / (2 * SHAPE_ALPHA_STEP)]);
-  const M = [[0, 0, 0], [0, 0, 0], [0, 0, 0]];
-  for (const row of J) for (let p = 0; p < 3; p++) for (let q = 0; q < 3; q++) M[p][q] += row[p] * row[q];
-  const C = inverse3(M);
+  const M = new Float64Array(9);
+  for (const row of J) for (let p = 0; p < 3; p++) for (let q = 0; q < 3; q++) M[p * 3 + q] += row[p] * row[q];
+  const C = spdInverse(M, 3);
   const h = new Float64Array(n).fill(1);
   if (!C) return h;
   for (let i = 0; i < n; i++) {
     let v = 0;
-    for (let p = 0; p < 3; p++) for (let q = 0; q < 3; q++) v += J[i][p] * C[p][q] * J[i][q];
+    for (let p = 0; p < 3; p++) for (let q = 0; q < 3; q++) v += J[i][p] * C[p * 3 + q] * J[i][q];
     h[i] = v;
   }
   return h;
-}
-
-/** The inverse of a 3×3 matrix by cofactors; null when singular. */
-function inverse3(m: readonly (readonly number[])[]): number[][] | null {
-  const [a, b, c] = m[0];
-  const [d, e, f] = m[1];
-  const [g, h, i] = m[2];
-  const A = e * i - f * h;
-  const B = -(d * i - f * g);
-  const C = d * h - e * g;
-  const det = a * A + b * B + c * C;
-  if (!(Math.abs(det) > 1e-300) || !Number.isFinite(det)) return null;
-  return [
-    [A / det, -(b * i - c * h) / det, (b * f - c * e) / det],
-    [B / det, (a * i - c * g) / det, -(a * f - c * d) / det],
-    [C / det, -(a * h - b * g) / det, (a * e - b * d) / det],
-  ];
 }
 
 /** A keep decision (Settings.keptTaps): "C07@12" keeps tap C07 in run 12 against the automatic

@@ -47,6 +47,8 @@
 //                      being read as a wake source.
 // (options.terms = 'basic' drops the two shift terms.)
 
+import { spdInverse } from './quadrature';
+
 export type SignatureTerm = 'vortex' | 'source' | 'doublet' | 'vortexShift' | 'doubletShift';
 
 export interface SignatureOptions {
@@ -214,40 +216,6 @@ export function imageVelocity(term: SignatureTerm, x: number, x0: number, h: num
 }
 
 // ---- small dense linear algebra (k ≤ 6) ----
-
-/** Inverse of a symmetric positive-definite k × k matrix by Cholesky; null if not positive. */
-function spdInverse(M: Float64Array, k: number): Float64Array | null {
-  const L = new Float64Array(k * k);
-  for (let i = 0; i < k; i++) {
-    for (let j = 0; j <= i; j++) {
-      let s = M[i * k + j];
-      for (let p = 0; p < j; p++) s -= L[i * k + p] * L[j * k + p];
-      if (i === j) {
-        if (!(s > 0)) return null;
-        L[i * k + i] = Math.sqrt(s);
-      } else {
-        L[i * k + j] = s / L[j * k + j];
-      }
-    }
-  }
-  const inv = new Float64Array(k * k);
-  const col = new Float64Array(k);
-  for (let c = 0; c < k; c++) {
-    // Solve L y = e_c, then Lᵀ x = y.
-    for (let i = 0; i < k; i++) {
-      let s = i === c ? 1 : 0;
-      for (let p = 0; p < i; p++) s -= L[i * k + p] * col[p];
-      col[i] = s / L[i * k + i];
-    }
-    for (let i = k - 1; i >= 0; i--) {
-      let s = col[i];
-      for (let p = i + 1; p < k; p++) s -= L[p * k + i] * col[p];
-      col[i] = s / L[i * k + i];
-    }
-    for (let i = 0; i < k; i++) inv[i * k + c] = col[i];
-  }
-  return inv;
-}
 
 /** Eigenvalues of a symmetric k × k matrix (cyclic Jacobi; Golub & Van Loan §8.5). */
 function symEigenvalues(M: Float64Array, k: number): number[] {
