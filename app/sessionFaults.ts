@@ -73,11 +73,14 @@ export function sessionFindings(results: readonly Pick<ResultDigest, 'run' | 'fl
 }
 
 /** Whether a run's flag is explained by the session findings: a leaking-tap or bad-tap flag all of
- *  whose taps are findings of that code (then it is a note on the run, not a decision). */
+ *  whose taps are findings of that code, or have a dead or saturated channel, the finding that
+ *  replaces theirs in the session summary (then it is a note on the run, not a decision). */
 export function explainedByFindings(r: Pick<ResultDigest, 'dropped'>, f: Flag, findings: readonly Pick<SessionFinding, 'code' | 'tap'>[]): boolean {
   if (f.code !== 'leaking-tap' && f.code !== 'bad-tap') return false;
   const taps = tapsOf(r, f.code);
-  return taps.length > 0 && taps.every((t) => findings.some((x) => x.code === f.code && x.tap === t));
+  const explains = (x: Pick<SessionFinding, 'code' | 'tap'>, t: string) =>
+    x.tap === t && (x.code === f.code || x.code === 'dead-channel' || x.code === 'saturated-channel');
+  return taps.length > 0 && taps.every((t) => findings.some((x) => explains(x, t)));
 }
 
 /** What channelFindings reads of a run: its index entry and its channels' sample statistics. */

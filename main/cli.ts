@@ -11,9 +11,9 @@ import type * as CliDeps from './cliDeps';
 import pkg from '../package.json';
 import { isLogError } from '../app/log/errors';
 import { flagShort, flagsLine } from '../app/flags';
-import { explainedByFindings, sessionFindings } from '../app/sessionFaults';
+import { explainedByFindings } from '../app/sessionFaults';
 import { staleRunNumbers } from '../app/stale';
-import { DEFAULT_SETTINGS, type Flag, type ResultDigest, type RunResult, type SessionFinding, type Settings } from '../app/types';
+import { DEFAULT_SETTINGS, type Flag, type ResultDigest, type RunResult, type SessionFinding, type SessionSummary, type Settings } from '../app/types';
 
 export const DEFAULT_DB = 'rakeline.sqlite';
 
@@ -208,8 +208,9 @@ export const METHOD_COLUMN: Record<string, string> = {
   'wall-signature': 'signature', maskell: 'Maskell', 'barlow-rae-pope': 'BRP', 'allen-vincenti': 'A&V', none: 'none',
 };
 
-/** What the session findings (app/sessionFaults.ts) say of the run list: the findings, each run's
- *  automatic drops (to tell which flags they explain) and the runs still needing a decision. */
+/** What the session summary (the day log's and the sheet's: main/reduceService.ts sessionSummary)
+ *  says of the run list: its findings and the runs still needing a decision, with each run's
+ *  automatic drops to tell which of its flags the findings explain. */
 export interface FindingsView {
   findings: SessionFinding[];
   dropped: ReadonlyMap<number, Pick<ResultDigest, 'dropped'>>;
@@ -217,12 +218,13 @@ export interface FindingsView {
   dataRuns: number;
 }
 
-/** The findings of the latest results of a session's data runs, rejected runs left out (as the
- *  day log and the sheet count them). */
-export function findingsView(digests: readonly ResultDigest[], rejected: ReadonlySet<number>): FindingsView {
-  const counted = digests.filter((d) => !rejected.has(d.run));
-  const { findings, needsDecision } = sessionFindings(counted);
-  return { findings, dropped: new Map(digests.map((d) => [d.run, d])), needsDecision, dataRuns: counted.length };
+export function findingsView(summary: SessionSummary, runs: Iterable<Pick<ResultDigest, 'run' | 'dropped'>>): FindingsView {
+  return {
+    findings: summary.findings ?? [],
+    dropped: new Map([...runs].map((r) => [r.run, r])),
+    needsDecision: summary.needsDecision ?? [],
+    dataRuns: summary.polar.length,
+  };
 }
 
 /** A run's flags for the text outputs: the flags a session finding explains become a note after
@@ -298,15 +300,16 @@ async function reduceAndTell(store: Store, sessionId: number, g: GlobalOpts, opt
   const t0 = performance.now();
   // Saved in bounded batches (main/reduceService.ts SaveInBatches): only the flagged runs' lines
   // are kept for the report, not every result of a large session.
-  const flagged: { run: number; head: string; flags: Flag[] }[] = [];
+  const flagged: { run: number; head: string; flags: Flag[]; dropped: RunResult['dropped'] }[] = [];
   let reduced = 0;
+  let summary: SessionSummary;
   try {
-    ({ reduced } = await D().reduceStoredSessionAsync(store, sessionId, {
+    ({ reduced, summary } = await D().reduceStoredSessionAsync(store, sessionId, {
       ...opts, actor: actorOf(g), onProgress: bar.onProgress,
       batches: {
         size: D().SAVE_BATCH,
         // Only the report line's parts are kept of a flagged run, not the result.
-        onSaved: (rs) => { for (const r of rs) if (r.flags.length) flagged.push({ run: r.run, head: resultHead(r, 'run'), flags: r.flags }); },
+        onSaved: (rs) => { for (const r of rs) if (r.flags.length) flagged.push({ run: r.run, head: resultHead(r, 'run'), flags: r.flags, dropped: r.dropped }); },
       },
     }));
   } finally {
@@ -314,8 +317,8 @@ async function reduceAndTell(store: Store, sessionId: number, g: GlobalOpts, opt
   }
   const secs = ((performance.now() - t0) / 1000).toFixed(2);
   // The findings of the whole session's latest results (not only of the runs just reduced).
-  const view = findingsView(store.latestDigests(sessionId), store.rejectedRuns(sessionId));
-  const deciding = flagged.filter((r) => view.needsDecision.includes(r.run) || !view.dropped.has(r.run));
+  const view = findingsView(summary, flagged);
+  const deciding = flagged.filter((r) => view.needsDecision.includes(r.run));
   out(`session ${sessionId}: reduced ${reduced} run(s) in ${secs} s, ${flagged.length} flagged${view.findings.length ? `, ${deciding.length} of them needing a decision` : ''}`);
   for (const r of deciding) out(`  ${r.head}, ${flagsText(r.run, r.flags, view)}`);
   for (const line of findingsLines(view)) out(line);
@@ -362,11 +365,11 @@ async function follow(folder: string, g: GlobalOpts, settleMs: number, reduce: b
       }
       const todo = runsAffectedBy(rows, rep.importedRuns);
       if (!todo.length) return;
-      const { results } = D().reduceStoredSession(store, rep.sessionId, { runs: todo, actor });
+      const { results, summary } = D().reduceStoredSession(store, rep.sessionId, { runs: todo, actor });
       const freshSet = new Set(rep.importedRuns);
       // Faults that persist over the runs so far are said once, as they become session findings;
       // on each run's line they are then a note.
-      const view = findingsView(store.latestDigests(rep.sessionId), store.rejectedRuns(rep.sessionId));
+      const view = findingsView(summary, results);
       for (const f of view.findings) {
         const k = `${f.code}:${f.tap}`;
         if (!saidFindings.has(k)) note(`session finding: ${f.text}`);
@@ -608,7 +611,11 @@ Examples:
         if (o.format === 'json') return out(JSON.stringify(rows, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2));
         if (o.format === 'csv') return void process.stdout.write(D().exportResultsCsv(rows, store.getSetup(sid), store.latestResults(sid)));
         const digests = store.latestDigests(sid);
-        out(runsTable(rows, new Map(digests.map((d) => [d.run, d.correction.method])), findingsView(digests, store.rejectedRuns(sid))));
+        // The tap findings and the runs needing a decision, as the day log has them; its dead and
+        // saturated channels are for `reduce`, the day log and the sheet (start-up: reading every
+        // run's statistics would add a quarter to this command).
+        const summary = D().sessionSummary(store, sid, { digests, channels: false });
+        out(runsTable(rows, new Map(digests.map((d) => [d.run, d.correction.method])), findingsView(summary, digests)));
       });
     });
 

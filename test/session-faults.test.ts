@@ -4,9 +4,9 @@
 // needing a decision are the runs of the planted faults only.
 import { beforeAll, describe, expect, it } from 'vitest';
 import { demoSession, type DemoSession } from '../resources/demo/scenario';
-import { reduceRawSession } from '../app/reduce';
+import { reduceRawSession, summariseSession } from '../app/reduce';
 import { sessionFindings } from '../app/sessionFaults';
-import type { RunResult, SessionSummary } from '../app/types';
+import type { ResultDigest, RunResult, SessionSummary } from '../app/types';
 
 let demo: DemoSession;
 let results: RunResult[];
@@ -55,8 +55,9 @@ describe('demo day: persistent faults', () => {
 describe('the command line states the findings once (main/cli.ts runsTable, findingsView)', () => {
   it('a flag a finding explains is a note on its run; the rest stay flags; the count is of runs needing a decision', async () => {
     const { findingsView, flagsText, findingsLines } = await import('../main/cli');
-    const digests = results.map((r) => ({ ...r, dropped: r.dropped ?? [] })) as unknown as Parameters<typeof findingsView>[0];
-    const view = findingsView(digests, new Set());
+    // The view is the session summary's (the day log's and the sheet's), with each run's drops.
+    const view = findingsView(summary, results);
+    expect(view.findings).toEqual(summary.findings);
     const leak = demo.faults.find((f) => f.code === 'leaking-tap')!;
     for (const r of results) {
       const text = flagsText(r.run, r.flags, view);
@@ -69,8 +70,20 @@ describe('the command line states the findings once (main/cli.ts runsTable, find
     const lines = findingsLines(view);
     expect(lines.filter((l) => l.includes(leak.tap!))).toHaveLength(1);
     expect(lines.at(-1)).toBe(`${summary.needsDecision!.length} of ${results.length} data run(s) need a decision: runs ${summary.needsDecision!.join(', ')}`);
-    // A rejected run is left out of the count, as on the day log and the sheet.
+    // A rejected run is left out of the count, as on the day log and the sheet (the summary leaves
+    // the runs a reviewer rejected out: main/reduceService.ts sessionSummary).
     const rejected = summary.needsDecision![0];
-    expect(findingsView(digests, new Set([rejected])).needsDecision).not.toContain(rejected);
+    const without = summariseSession(demo.setup, results.filter((r) => r.run !== rejected) as unknown as ResultDigest[], demo.index);
+    expect(findingsView(without, results).needsDecision).not.toContain(rejected);
+    expect(findingsLines(findingsView(without, results)).at(-1)).toMatch(new RegExp(`of ${results.length - 1} data run`));
+  });
+
+  it('a tap whose channel is dead is explained by that finding, which replaces its leak finding', async () => {
+    const { findingsView, flagsText } = await import('../main/cli');
+    const leak = summary.findings!.find((f) => f.code === 'leaking-tap')!;
+    const dead = { ...leak, code: 'dead-channel' as const, channel: 'P_X', text: `${leak.tap}: dead channel` };
+    const view = findingsView({ ...summary, findings: [dead] }, results);
+    const r = results.find((x) => !summary.needsDecision!.includes(x.run))!;
+    expect(flagsText(r.run, r.flags, view)).toBe('note: leaking tap (session finding)');
   });
 });
