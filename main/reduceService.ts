@@ -93,7 +93,12 @@ function reduceHere(setup: Setup, zeroed: ZeroedRun[], settings: Settings, tell:
  *  session, compiled build, other work on the machine, load 3.3–5.1), this thread alone 1.99 /
  *  3.46 / 3.96 s against 4.46 / 4.48 / 5.25 s with one thread beside it (reduceBeside, workers: 1),
  *  which spent ~1 s more CPU (its own compile of the core, a cold start). Before the columns
- *  Monte Carlo, two threads with the calling thread idle took 3.8 s for 250 runs against 3.0 s. */
+ *  Monte Carlo, two threads with the calling thread idle took 3.8 s for 250 runs against 3.0 s.
+ *  Re-measured 2026-12-03 with the threads started once per reduction instead of once per saved
+ *  batch (they were three cold threads for those 82 runs): 1.97–2.72 s alone against 2.72–3.01 s
+ *  beside. On this machine two busy threads slow each other to ~1.7× their time alone, and two
+ *  separate processes do the same (~1.5×), so a second thread buys little here whatever the
+ *  code; hence none below four cores. */
 export function reduceWorkersFor(runs: number, draws: number): number {
   // RAKELINE_REDUCE_THREADS=N sets the number (0: this thread only), for measuring.
   const forced = Number(process.env.RAKELINE_REDUCE_THREADS ?? '');
@@ -121,42 +126,81 @@ export async function reduceStoredSessionAsync(
   const total = zeroed.length;
   const tell = progressOf(opts, total);
   const workers = opts.workers === undefined || opts.workers === 'auto' ? reduceWorkersFor(total, settings.mcDraws) : opts.workers;
+  // The threads start once for the whole reduction and serve every batch: a thread's first runs
+  // cost it ~0.3–1 s of compiling and caching (measured, 2 cores), which a pool per batch paid
+  // again at every batch (three cold threads for the 82 runs of the 100-run bench session).
+  const pools = new Threads(workers > 1 ? Math.min(workers, total) : 1);
   const reduceSome = async (part: ZeroedRun[], tellPart: (done: number) => void): Promise<RunResult[]> =>
     (workers === 1 && part.length > 1
-      ? await reduceBeside(setup, part, settings, tellPart)
-      : (workers > 1 && part.length > 1 ? await reduceOnThreads(setup, part, settings, workers, tellPart) : null)
+      ? await reduceBeside(pools, setup, part, settings, tellPart)
+      : (workers > 1 && part.length > 1 ? await reduceOnThreads(pools, setup, part, settings, workers, tellPart) : null)
         ?? reduceHere(setup, part, settings, tellPart));
-  const b = opts.batches;
-  if (!b || total <= b.size) {
-    const results = await reduceSome(zeroed, tell);
-    saveReduced(store, sessionId, results, opts);
-    b?.onSaved?.(results);
-    return { results: b ? [] : results, summary: sessionSummary(store, sessionId, { averaged: all }), reduced: results.length };
+  try {
+    const b = opts.batches;
+    if (!b || total <= b.size) {
+      const results = await reduceSome(zeroed, tell);
+      saveReduced(store, sessionId, results, opts);
+      b?.onSaved?.(results);
+      return { results: b ? [] : results, summary: sessionSummary(store, sessionId, { averaged: all }), reduced: results.length };
+    }
+    const size = Math.max(1, b.size);
+    let done = 0;
+    for (let k = 0; k < total; k += size) {
+      const part = zeroed.slice(k, k + size);
+      const base = done;
+      const results = await reduceSome(part, (n) => tell(base + n));
+      saveReduced(store, sessionId, results, opts);
+      done += results.length;
+      b.onSaved?.(results);
+      for (let i = k; i < k + part.length; i++) (zeroed as (ZeroedRun | undefined)[])[i] = undefined; // let the inputs go too
+    }
+    return { results: [], summary: sessionSummary(store, sessionId, { averaged: all }), reduced: done };
+  } finally {
+    await pools.close();
   }
-  // Threads start once a batch: give each batch enough runs to pay for that.
-  const size = Math.max(1, workers > 1 ? Math.max(b.size, 16 * workers) : b.size);
-  let done = 0;
-  for (let k = 0; k < total; k += size) {
-    const part = zeroed.slice(k, k + size);
-    const base = done;
-    const results = await reduceSome(part, (n) => tell(base + n));
-    saveReduced(store, sessionId, results, opts);
-    done += results.length;
-    b.onSaved?.(results);
-    for (let i = k; i < k + part.length; i++) (zeroed as (ZeroedRun | undefined)[])[i] = undefined; // let the inputs go too
+}
+
+/** How many thread pools reductions have started (for tests). */
+export const threadStarts = { pools: 0 };
+
+/** The worker threads of one reduction, started when first asked for and kept until close. A pool
+ *  that failed to start is not tried again (null: reduce on the calling thread). */
+class Threads {
+  private pool: ImportPool | null = null;
+  private tried = false;
+  constructor(private readonly size: number) {}
+  get(): ImportPool | null {
+    if (this.pool?.broken) {
+      void this.pool.close();
+      this.pool = null;
+    }
+    if (!this.pool && !this.tried) {
+      this.tried = true;
+      try {
+        this.pool = new ImportPool(this.size);
+        threadStarts.pools++;
+      } catch (e) {
+        process.emitWarning(`rakeline: reduction threads unavailable (${e instanceof Error ? e.message : String(e)}); reducing on the main thread`);
+      }
+    }
+    return this.pool;
   }
-  return { results: [], summary: sessionSummary(store, sessionId, { averaged: all }), reduced: done };
+  async close(): Promise<void> {
+    const p = this.pool;
+    this.pool = null;
+    if (p) await p.close();
+  }
 }
 
 /** The runs reduced on worker threads, in chunks, results in run order; null if the threads did
  *  not run (the caller then reduces on its own thread). */
 async function reduceOnThreads(
-  setup: Setup, zeroed: ZeroedRun[], settings: Settings, workers: number, tell: (done: number) => void,
+  threads: Threads, setup: Setup, zeroed: ZeroedRun[], settings: Settings, workers: number, tell: (done: number) => void,
 ): Promise<RunResult[] | null> {
   const total = zeroed.length;
-  let pool: ImportPool | null = null;
+  const pool = threads.get();
+  if (!pool) return null;
   try {
-    pool = new ImportPool(Math.min(workers, total));
     // Chunks of a few runs: enough to keep every thread busy to the end, few enough messages.
     const size = Math.max(1, Math.min(16, Math.ceil(total / (4 * workers))));
     let done = 0;
@@ -177,8 +221,6 @@ async function reduceOnThreads(
     if (pool && !pool.broken) throw e;
     process.emitWarning(`rakeline: reduction threads unavailable (${e instanceof Error ? e.message : String(e)}); reducing on the main thread`);
     return null;
-  } finally {
-    if (pool) await pool.close();
   }
 }
 
@@ -195,7 +237,7 @@ export const besideShare = { thread: 0, here: 0 };
  * reduce (it failed to start or stopped, or the core refused a run there) is reduced here
  * afterwards, in run order, so a refused run gives the error it gives on this thread.
  */
-async function reduceBeside(setup: Setup, zeroed: ZeroedRun[], settings: Settings, tell: (done: number) => void): Promise<RunResult[]> {
+async function reduceBeside(threads: Threads, setup: Setup, zeroed: ZeroedRun[], settings: Settings, tell: (done: number) => void): Promise<RunResult[]> {
   const total = zeroed.length;
   const out: RunResult[] = new Array(total);
   let front = 0;
@@ -205,12 +247,7 @@ async function reduceBeside(setup: Setup, zeroed: ZeroedRun[], settings: Setting
   const inFlight = new Set<Promise<void>>();
   besideShare.thread = 0;
   besideShare.here = 0;
-  let pool: ImportPool | null = null;
-  try {
-    pool = new ImportPool(1);
-  } catch (e) {
-    process.emitWarning(`rakeline: reduction thread unavailable (${e instanceof Error ? e.message : String(e)}); reducing on the main thread`);
-  }
+  const pool = threads.get();
   const give = (): void => {
     if (!pool || pool.broken || back - front <= BESIDE_CHUNK) return;
     const lo = back - BESIDE_CHUNK;
@@ -230,19 +267,16 @@ async function reduceBeside(setup: Setup, zeroed: ZeroedRun[], settings: Setting
     });
     inFlight.add(p);
   };
-  try {
-    give();
-    give();
-    while (front < back) {
-      out[front] = reduceRun(setup, zeroed[front], settings);
-      front++;
-      tell(++done);
-      if (inFlight.size) await new Promise<void>((r) => setImmediate(r));
-    }
-    while (inFlight.size) await Promise.all([...inFlight]);
-  } finally {
-    if (pool) await pool.close();
+  // The pool is the whole reduction's (Threads), closed when the reduction ends.
+  give();
+  give();
+  while (front < back) {
+    out[front] = reduceRun(setup, zeroed[front], settings);
+    front++;
+    tell(++done);
+    if (inFlight.size) await new Promise<void>((r) => setImmediate(r));
   }
+  while (inFlight.size) await Promise.all([...inFlight]);
   besideShare.here = total - besideShare.thread;
   failed.sort((a, b) => a[0] - b[0]);
   for (const [lo, hi] of failed) {

@@ -7,9 +7,10 @@ import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { Store } from '../main/store';
 import { importSessionFolder } from '../main/import';
-import { besideShare, reduceStoredSessionAsync } from '../main/reduceService';
+import { besideShare, reduceStoredSessionAsync, threadStarts } from '../main/reduceService';
 import { setImportWorkerScript } from '../main/importPool';
 import { cleanupTempDirs, miniFolder, tempDir } from './helpers/store-fixtures';
+import type { RunResult } from '../app/types';
 
 afterAll(() => cleanupTempDirs());
 
@@ -38,6 +39,26 @@ describe('reduction shared with one worker thread', () => {
     expect(besideShare.thread).toBeGreaterThanOrEqual(8);
     expect(besideShare.here).toBeGreaterThan(0);
     expect(Object.keys(beside.results[13].uncertainty).length).toBeGreaterThan(3);
+    store.close();
+  }, 60_000);
+
+  it('saved in batches, starts its threads once for all of them and stores the same numbers', async () => {
+    const dir = tempDir();
+    const f = miniFolder(join(dir, 's'), { setup: { taps: 10, rakeProbes: 7, wallTaps: 4 }, runs: { dataRuns: 13, samples: 30, seed: 5 } });
+    const store = Store.open(join(dir, 'db.sqlite'));
+    await importSessionFolder(store, f.dir, { actor: 'x', workers: 0 });
+    const settings = { mcDraws: 40 };
+    const alone = await reduceStoredSessionAsync(store, 1, { settings, workers: 0 });
+    for (const workers of [1, 2]) {
+      const before = threadStarts.pools;
+      const saved: RunResult[] = [];
+      const r = await reduceStoredSessionAsync(store, 1, { settings, workers, batches: { size: 4, onSaved: (rs) => saved.push(...rs) } });
+      expect(r.reduced).toBe(13);
+      // Four batches (4 + 4 + 4 + 1 runs), one pool.
+      expect(threadStarts.pools - before).toBe(1);
+      expect(saved.map((x) => x.run)).toEqual(alone.results.map((x) => x.run));
+      expect(differences(saved, alone.results)).toEqual([]);
+    }
     store.close();
   }, 60_000);
 
