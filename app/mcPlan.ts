@@ -31,7 +31,7 @@ import { correctionOf, type CorrectionPlan } from './correctionChoice';
 import { signatureInterference, type SignaturePlan } from './wallSignature';
 import { ADJ, adjustedCorrection, correctedLift } from './reductionErrors';
 import { applyStencil, linearStencil, trapezoid } from './quadrature';
-import { compareUpper, contourIntegrals, type ContourRule } from './surface';
+import { compareUpper, contourIntegrals, type ContourRule, type RowShape, type RowShapeArrays } from './surface';
 import type { Coefficients, RunInfo, Setup, Surface } from './types';
 import { jonesIntegral, jonesTerm } from './wake';
 import { angleFluxIntegral, angleFluxTerm, momentumCl, speedRatio, wallGrid } from './walls';
@@ -62,6 +62,8 @@ export interface PlanNominal {
   walls: { F: number; FMom?: number } | null;
   /** Contour rule of the surface integration (Settings.contourRule; default 'linear'). */
   rule?: ContourRule;
+  /** The main row's shape of the 'shape' rule (app/shapeRule.ts), kept for every draw. */
+  shape?: RowShape | null;
 }
 
 /** The outputs of one draw. */
@@ -107,6 +109,10 @@ export interface McPlan {
   slotVal: Int32Array;
   slotX0: Float64Array;
   slotY: Float64Array;
+  /** The 'shape' rule's shape at each slot's tap (null for the other rules), and the shape's
+   *  arrays handed to contourIntegrals (`v` is the draw's contour order, filled per draw). */
+  slotV: Float64Array | null;
+  shape: RowShapeArrays | null;
   /** Tie order of orderContour (y, then id, then input order) within a surface. */
   slotRank: Float64Array;
   // Wake (nT = 0: no wake).
@@ -267,6 +273,18 @@ export function buildMcPlan(
   const nT = tVal.length;
   const nA = aVal.length;
   const nG = walls ? walls.gx.length : 0;
+  // The 'shape' rule: the shape's value at each slot's tap (a tap without one: no plan).
+  let slotV: Float64Array | null = null;
+  if ((nominal.rule ?? 'linear') === 'shape') {
+    const sh = nominal.shape;
+    if (!sh) return null;
+    slotV = new Float64Array(n);
+    for (let k = 0; k < n; k++) {
+      const f = sh.v.get(slots[k].t.id);
+      if (f === undefined) return null;
+      slotV[k] = f;
+    }
+  }
   const plan: McPlan = {
     chord: setup.model.chord,
     height: setup.facility.sectionHeight,
@@ -288,6 +306,8 @@ export function buildMcPlan(
     slotVal: Int32Array.from(slots, (s) => allVal[s.i]),
     slotX0: Float64Array.from(slots, (s) => s.t.x),
     slotY: Float64Array.from(slots, (s) => s.t.y),
+    slotV,
+    shape: slotV && nominal.shape ? { v: new Float64Array(n), cn: nominal.shape.cn, ca: nominal.shape.ca, cmLE: nominal.shape.cmLE } : null,
     slotRank: Float64Array.from(slots, (s) => rankOf.get(s.i)!),
     nT,
     tVal,
@@ -514,7 +534,12 @@ export function evalPlanStages(
       oy[k] = slotY[s];
       ocp[k] = cp[s];
     }
-    main = contourIntegrals(ox, oy, ocp, n, nU, alphaDeg, P.rule);
+    const sh = P.shape;
+    if (sh && P.slotV) {
+      const ov = sh.v as Float64Array;
+      for (let k = 0; k < n; k++) ov[k] = P.slotV[perm[k]];
+    }
+    main = contourIntegrals(ox, oy, ocp, n, nU, alphaDeg, P.rule, sh ?? undefined);
   } else {
     main = snap!.main;
     P.reordered = snap!.reordered;

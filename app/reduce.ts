@@ -13,7 +13,8 @@ import {
 } from './types';
 import { freeStream } from './air';
 import { averageRun, applyZeros, unsteadiness } from './samples';
-import { detectBadTaps, reduceSurface, type BadTap } from './surface';
+import { detectBadTaps, reduceSurface, type BadTap, type RowShape } from './surface';
+import { rowShape } from './shapeRule';
 import { keptFor, referenceCheck, type ReferenceFinding } from './tapCheck';
 import { channelFindings, sessionFindings, type ChannelRun } from './sessionFaults';
 import { inviscidCp } from './panel';
@@ -163,6 +164,9 @@ interface CoreInput {
   bad: { id: string; reason: string }[];
   /** How to correct (the nominal pass resolves 'auto'; its first pass uses the classical plan). */
   correct: CorrectionPlan;
+  /** Each row's inviscid shape for the 'shape' contour rule (app/shapeRule.ts), by row: fitted by
+   *  the nominal pass (absent: fitted here), kept by the Monte Carlo draws. */
+  shapes?: ReadonlyMap<string, RowShape | null>;
 }
 
 interface CoreOutput {
@@ -182,6 +186,8 @@ interface CoreOutput {
   gamma: { pressure: number; momentum: number; wall: number };
   /** Corrected momentum cl and corrected Γ (app/reductionErrors.ts correctedLift). */
   lift: ReturnType<typeof correctedLift>;
+  /** The rows' shapes of the 'shape' contour rule (empty for the other rules). */
+  shapes: Map<string, RowShape | null>;
 }
 
 function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp: CoreInput): CoreOutput {
@@ -217,13 +223,23 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     a === L.mainRow ? -1 : b === L.mainRow ? 1 : a.localeCompare(b),
   );
   const rows: RowLoads[] = [];
+  const shapes = new Map<string, RowShape | null>();
   const mainTaps = taps.filter((t) => t.row === L.mainRow);
   for (const row of rowNames) {
     const own = taps.filter((t) => t.row === row);
     const rt = row === L.mainRow ? own : completeRow(own, mainTaps);
     // A row needs both surfaces to be integrated; short rows that cover one side only are skipped.
     if (!rt.some((t) => t.surface === 'upper') || !rt.some((t) => t.surface === 'lower')) continue;
-    const loads = reduceSurface(rt, inp.alphaDeg, inp.bad, settings.contourRule);
+    let shape: RowShape | null = null;
+    if (settings.contourRule === 'shape') {
+      if (inp.shapes) shape = inp.shapes.get(row) ?? null;
+      else {
+        const badIds = new Set(inp.bad.map((b) => b.id));
+        shape = rowShape(setup.model.geometry, rt.filter((t) => !t.bad && !badIds.has(t.id)), inp.alphaDeg, fs.M);
+      }
+      shapes.set(row, shape);
+    }
+    const loads = reduceSurface(rt, inp.alphaDeg, inp.bad, settings.contourRule, shape);
     const z = setup.taps.find((t) => t.row === row)?.z ?? 0;
     rows.push({ ...loads, row, z });
   }
@@ -310,6 +326,7 @@ function runCore(setup: Setup, L: Layout, info: RunInfo, settings: Settings, inp
     corrected,
     correction,
     correctionInputs,
+    shapes,
     clMomentum,
     gamma: {
       pressure: gammaFromCl(uncorrected.cl, fs.V, setup.model.chord),
@@ -664,7 +681,10 @@ function mainRowArrays(nominal: CoreOutput, mainRow: string, L: Layout, uPa: Rea
   const chOf = new Map(L.taps.map(({ tap, ch }) => [tap.id, ch.name]));
   const q = nominal.fs.qu;
   const ucp = good.map((t) => (uPa.get(chOf.get(t.id) ?? '') ?? 0) / Math.abs(q));
-  return { x: good.map((t) => t.x), y: good.map((t) => t.y), cp: good.map((t) => t.cp), n: good.length, nUpper, ucp };
+  const sh = nominal.main.rule === 'shape' ? nominal.shapes.get(mainRow) : null;
+  const v = sh ? good.map((t) => sh.v.get(t.id)) : [];
+  const shape = sh && v.every((f) => f !== undefined) ? { v: v as number[], cn: sh.cn, ca: sh.ca, cmLE: sh.cmLE } : undefined;
+  return { x: good.map((t) => t.x), y: good.map((t) => t.y), cp: good.map((t) => t.cp), n: good.length, nUpper, ucp, ...(shape ? { shape } : {}) };
 }
 
 function mcModel(
@@ -687,7 +707,7 @@ function mcModel(
     chord: setup.model.chord,
     height: setup.facility.sectionHeight,
     correction: nominal.correction,
-    rule: settings.contourRule,
+    rule: nominal.main.rule ?? 'linear',
   });
 
   const perturbed: Record<string, number> = {};
@@ -704,14 +724,15 @@ function mcModel(
   });
   const core = (vals: Float64Array, tapDx: Float64Array, alphaDeg: number, kq: number, adj?: Float64Array): Record<UKey, number> => {
     for (let k = 0; k < names.length; k++) perturbed[names[k]] = vals[k];
-    return outputs(runCore(setup, L, run.info, settings, { values, alphaDeg, kq, tapDx, adj, bad, correct }));
+    return outputs(runCore(setup, L, run.info, settings, { values, alphaDeg, kq, tapDx, adj, bad, correct, shapes: nominal.shapes }));
   };
 
   const plan: McPlan | null = usePlan
     ? buildMcPlan(setup, planLayout(L), run.info, correct, bad, {
         mainRow: nominal.main.row,
         walls: nominal.walls,
-        rule: settings.contourRule,
+        rule: nominal.main.rule ?? 'linear',
+        shape: nominal.shapes.get(nominal.main.row) ?? null,
       }, index)
     : null;
   const o: McValues = { cl: NaN, cd: NaN, cdp: NaN, cmc4: NaN, clMom: NaN, gammaPressure: NaN, gammaMomentum: NaN, gammaWall: NaN };

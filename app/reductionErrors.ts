@@ -50,7 +50,7 @@
 //   (c/4h) value.
 // Pure module.
 
-import { contourIntegrals, type ContourIntegrals, type ContourRule } from './surface';
+import { contourIntegrals, type ContourIntegrals, type ContourRule, type RowShapeArrays } from './surface';
 import { jonesIntegral, jonesTerm } from './wake';
 import { trapezoid } from './quadrature';
 import { fitNose } from './contourSpline';
@@ -99,12 +99,14 @@ export interface RowArrays {
   /** Standard uncertainty of each tap's Cp from its own channel (independent errors), if known:
    *  the integration estimate takes its expected noise out of the halves' disagreement. */
   ucp?: ArrayLike<number>;
+  /** The 'shape' rule's shape at these taps and its own integrals (app/shapeRule.ts). */
+  shape?: RowShapeArrays;
 }
 
 type Loads = Pick<ContourIntegrals, 'cl' | 'cdp' | 'cmc4'>;
 
 function loadsOf(r: RowArrays, alphaDeg: number, rule: ContourRule = 'linear'): Loads {
-  return contourIntegrals(r.x, r.y, r.cp, r.n, r.nUpper, alphaDeg, rule);
+  return contourIntegrals(r.x, r.y, r.cp, r.n, r.nUpper, alphaDeg, rule, r.shape);
 }
 
 /** Every `step`-th point along the contour from `start` (the interleaved subsets), or null when a
@@ -113,15 +115,17 @@ function subset(r: RowArrays, step: number, start: number): RowArrays | null {
   const x: number[] = [];
   const y: number[] = [];
   const cp: number[] = [];
+  const v: number[] = [];
   let nUpper = 0;
   for (let k = start; k < r.n; k += step) {
     x.push(r.x[k]);
     y.push(r.y[k]);
     cp.push(r.cp[k]);
+    if (r.shape) v.push(r.shape.v[k]);
     if (k < r.nUpper) nUpper++;
   }
   if (nUpper < 2 || x.length - nUpper < 2) return null;
-  return { x, y, cp, n: x.length, nUpper };
+  return { x, y, cp, n: x.length, nUpper, ...(r.shape ? { shape: { ...r.shape, v } } : {}) };
 }
 
 /** The order of each contour rule's integration error in the tap spacing h: the linear rule
@@ -129,7 +133,7 @@ function subset(r: RowArrays, step: number, start: number): RowArrays | null {
  *  cubic-spline interpolants, O(h⁴) (de Boor 1978 ch. IV, memory). Measured for the linear rule on
  *  the exact sections of REDUCTION.md §11 (scripts/coverage-diagnose.ts, docs/UNCERTAINTY.md): the
  *  true error is −(I₁ − I₂)/3 to within 3 % (median) at 24, 48 and 96 taps. */
-export const RULE_ORDER: Record<ContourRule, number> = { linear: 2, spline: 4 };
+export const RULE_ORDER: Record<ContourRule, number> = { linear: 2, spline: 4, shape: 2 };
 
 /** The integration estimate of one row: `shift`, the estimated error of the reduced value with its
  *  sign (exact ≈ reduced + shift), and `u`, the standard uncertainty left after it. */

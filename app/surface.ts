@@ -95,19 +95,46 @@ function validatePoints(points: readonly ContourPoint[], what: string): void {
 export type ContourIntegrals = Pick<SurfaceLoads, 'cn' | 'ca' | 'cl' | 'cdp' | 'cmLE' | 'cmc4' | 'teCp'> & {
   teUpper: TeSurfaceMethod;
   teLower: TeSurfaceMethod;
+  /** The 'shape' rule's slope b as applied (0: the linear rule's integrals, no shape or b ≤ 0). */
+  shapeB: number;
 };
 
 /** How Cp (and the contour between taps) is interpolated for the integrals: 'linear' — straight
  *  segments between taps, Cp linear along each; 'spline' — cubic splines of the contour and the
  *  surface speed in the square-root plane of the nose, through the taps (app/contourSpline.ts).
  *  'linear' is the default here and in Settings.contourRule. */
-export type ContourRule = 'spline' | 'linear';
+export type ContourRule = 'shape' | 'spline' | 'linear';
 
 /** The words a result uses for each rule. */
 export const CONTOUR_RULE_TEXT: Record<ContourRule, string> = {
+  shape: 'Cp linear between taps plus the fitted inviscid shape\'s own departure from linear (panel solution of the model at the fitted α_eff and the run\'s Mach number, scaled by the fitted b)',
   spline: 'cubic splines of the contour and the surface speed in the square-root plane of the nose (not-a-knot, trailing edge at both ends)',
   linear: 'Cp linear between taps on straight segments',
 };
+
+/** The inviscid shape of one row for the 'shape' rule (app/shapeRule.ts): its Cp at each tap, in
+ *  the order of the taps integrated, and its own integrals over the whole contour. The rule adds
+ *  b·(shape integrals − the linear rule's integrals of the shape at the taps) to the linear rule's
+ *  integrals of the measured Cp, b being the slope of the least-squares fit Cp ≈ a + b·shape over
+ *  the taps: the integral of a + b·shape(s) plus the measured departure from it, linear between
+ *  taps (the constant a integrates to nothing round a closed contour). Linear in the measured Cp. */
+/** A row's shape for the 'shape' rule, by tap id (app/shapeRule.ts rowShape): fitted once in the
+ *  nominal pass and kept for the Monte Carlo draws. `rms`: of the nominal fit's residuals. */
+export interface RowShape {
+  v: ReadonlyMap<string, number>;
+  cn: number;
+  ca: number;
+  cmLE: number;
+  alphaEffDeg: number;
+  rms: number;
+}
+
+export interface RowShapeArrays {
+  v: ArrayLike<number>;
+  cn: number;
+  ca: number;
+  cmLE: number;
+}
 
 let nodeX = new Float64Array(256);
 let nodeY = new Float64Array(256);
@@ -116,7 +143,7 @@ let nodeCp = new Float64Array(256);
 /** See ContourIntegrals. */
 export function contourIntegrals(
   x: ArrayLike<number>, y: ArrayLike<number>, cp: ArrayLike<number>, n: number, nUpper: number, alphaDeg: number,
-  rule: ContourRule = 'linear',
+  rule: ContourRule = 'linear', shape?: RowShapeArrays,
 ): ContourIntegrals {
   // Trailing-edge value of each surface at x/c = 1: linear through the tap nearest the trailing
   // edge and the next one with a distinct x (by more than 1e-9), else the nearest tap.
@@ -207,9 +234,20 @@ export function contourIntegrals(
     }
   }
   // Outward normal of the counter-clockwise contour is (dy, −dx)/ds; force = −∮ Cp n ds.
-  const cn = sCpDx;
-  const ca = -sCpDy;
-  const cmLE = -sMom;
+  let cn = sCpDx;
+  let ca = -sCpDy;
+  let cmLE = -sMom;
+  let shapeB = 0;
+  if (rule === 'shape' && shape && n >= 3) {
+    const b = shapeSlope(cp, shape.v, n);
+    if (b > 0) {
+      shapeB = b;
+      shapeLinear(x, y, shape.v, n, nUpper);
+      cn += b * (shape.cn - SL.cn);
+      ca += b * (shape.ca - SL.ca);
+      cmLE += b * (shape.cmLE - SL.cmLE);
+    }
+  }
   const a = (alphaDeg * Math.PI) / 180;
   return {
     cn,
@@ -221,13 +259,86 @@ export function contourIntegrals(
     teCp,
     teUpper,
     teLower,
+    shapeB,
   };
+}
+
+/** The slope b of the least-squares line cp ≈ a + b·v over n taps (0 when v does not vary). */
+export function shapeSlope(cp: ArrayLike<number>, v: ArrayLike<number>, n: number): number {
+  let sv = 0;
+  let sc = 0;
+  for (let i = 0; i < n; i++) {
+    sv += v[i];
+    sc += cp[i];
+  }
+  const mv = sv / n;
+  const mc = sc / n;
+  let svv = 0;
+  let svc = 0;
+  for (let i = 0; i < n; i++) {
+    const dv = v[i] - mv;
+    svv += dv * dv;
+    svc += dv * (cp[i] - mc);
+  }
+  return svv > 0 ? svc / svv : 0;
+}
+
+/** The linear rule's cn, ca, cm_LE of values f at the taps (scratch result SL; the trailing-edge
+ *  closure as contourIntegrals makes it). */
+const SL = { cn: 0, ca: 0, cmLE: 0 };
+function shapeLinear(x: ArrayLike<number>, y: ArrayLike<number>, f: ArrayLike<number>, n: number, nUpper: number): void {
+  let teU = f[0];
+  let teUy = y[0];
+  for (let k = 1; k < nUpper; k++) {
+    if (x[0] - x[k] > 1e-9) {
+      const t = (1 - x[0]) / (x[0] - x[k]);
+      teU = f[0] + t * (f[0] - f[k]);
+      teUy = y[0] + t * (y[0] - y[k]);
+      break;
+    }
+  }
+  let teL = f[n - 1];
+  let teLy = y[n - 1];
+  for (let k = n - 2; k >= nUpper; k--) {
+    if (x[n - 1] - x[k] > 1e-9) {
+      const t = (1 - x[n - 1]) / (x[n - 1] - x[k]);
+      teL = f[n - 1] + t * (f[n - 1] - f[k]);
+      teLy = y[n - 1] + t * (y[n - 1] - y[k]);
+      break;
+    }
+  }
+  const teX = 1;
+  const teY = 0.5 * (teUy + teLy);
+  const teF = 0.5 * (teU + teL);
+  let sDx = 0;
+  let sDy = 0;
+  let sMom = 0;
+  let px = teX;
+  let py = teY;
+  let pf = teF;
+  for (let k = 0; k <= n; k++) {
+    const qx = k < n ? x[k] : teX;
+    const qy = k < n ? y[k] : teY;
+    const qf = k < n ? f[k] : teF;
+    const dx = qx - px;
+    const dy = qy - py;
+    sDx += 0.5 * (pf + qf) * dx;
+    sDy += 0.5 * (pf + qf) * dy;
+    sMom += (dx / 6) * (pf * (2 * px + qx) + qf * (px + 2 * qx));
+    sMom += (dy / 6) * (pf * (2 * py + qy) + qf * (py + 2 * qy));
+    px = qx;
+    py = qy;
+    pf = qf;
+  }
+  SL.cn = sDx;
+  SL.ca = -sDy;
+  SL.cmLE = -sMom;
 }
 
 /** Integrates Cp around the closed contour of one row (see the module comment). The points are
  *  ordered here, so the result does not depend on their order. Needs at least one tap on each
  *  surface. `bridged` is always empty: the caller passes only good taps (see reduceSurface). */
-export function integrateContour(points: readonly ContourPoint[], alphaDeg: number, rule: ContourRule = 'linear'): SurfaceLoads {
+export function integrateContour(points: readonly ContourPoint[], alphaDeg: number, rule: ContourRule = 'linear', shape?: RowShape | null): SurfaceLoads {
   validatePoints(points, 'integrateContour');
   if (!Number.isFinite(alphaDeg)) throw new Error(`integrateContour: angle of attack is not finite (${alphaDeg})`);
   const ordered = orderContour(points);
@@ -247,9 +358,23 @@ export function integrateContour(points: readonly ContourPoint[], alphaDeg: numb
     y[k] = ordered[k].y;
     cp[k] = ordered[k].cp;
   }
-  const r = contourIntegrals(x, y, cp, n, nUpper, alphaDeg, rule);
+  let arrays: RowShapeArrays | undefined;
+  if (rule === 'shape' && shape) {
+    const v = new Float64Array(n);
+    let all = true;
+    for (let k = 0; k < n; k++) {
+      const f = shape.v.get(ordered[k].id);
+      if (f === undefined) all = false;
+      else v[k] = f;
+    }
+    if (all) arrays = { v, cn: shape.cn, ca: shape.ca, cmLE: shape.cmLE };
+  }
+  const r = contourIntegrals(x, y, cp, n, nUpper, alphaDeg, rule, arrays);
+  // The rule named is the one applied: 'shape' without a shape (or with b ≤ 0) is the linear rule.
+  const used: ContourRule = rule === 'shape' && !(r.shapeB > 0) ? 'linear' : rule;
   return {
-    rule,
+    rule: used,
+    ...(used === 'shape' && shape ? { shapeFit: { alphaEffDeg: shape.alphaEffDeg, b: r.shapeB, rms: shape.rms } } : {}),
     cn: r.cn,
     ca: r.ca,
     cl: r.cl,
@@ -403,6 +528,7 @@ export function reduceSurface(
   alphaDeg: number,
   bad: readonly { id: string; reason?: string }[],
   rule: ContourRule = 'linear',
+  shape?: RowShape | null,
 ): SurfaceLoads {
   const rowNames = [...new Set(taps.map((t) => t.row))];
   if (rowNames.length > 1) {
@@ -418,6 +544,6 @@ export function reduceSurface(
       );
     }
   }
-  const loads = integrateContour(good, alphaDeg, rule);
+  const loads = integrateContour(good, alphaDeg, rule, shape);
   return { ...loads, bridged: orderContour(taps.filter(isBad)).map((t) => t.id) };
 }

@@ -101,3 +101,43 @@ export function inviscidShape(g: Geometry, taps: readonly { x: number; y: number
   cache.set(key, shape);
   return shape;
 }
+
+/** The finer solution's Cp coefficients at its own panel midpoints, with the midpoints' polygon
+ *  (TE → upper → LE → lower → TE) and how many of them are on the upper surface. */
+interface Midpoints extends Coefs { x: Float64Array; y: Float64Array; nUpper: number }
+const midCache = new Map<string, Midpoints>();
+
+function midpointsOf(g: Geometry): Midpoints {
+  const key = geometryKey(g);
+  let m = midCache.get(key);
+  if (m) return m;
+  const { x, y } = geometryPoints(g, SHAPE_PANELS);
+  const s0 = panelSolve(x, y, 0);
+  const s90 = panelSolve(x, y, 90);
+  const s45 = panelSolve(x, y, 45);
+  const n = s0.cp.length;
+  const A = new Float64Array(n);
+  const B = new Float64Array(n);
+  const C = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    A[i] = 1 - s0.cp[i];
+    B[i] = 1 - s90.cp[i];
+    C[i] = 1 - s45.cp[i] - (A[i] + B[i]) / 2;
+  }
+  let nUpper = 0;
+  while (nUpper < n && s0.surface[nUpper] === 'upper') nUpper++;
+  m = { A, B, C, x: Float64Array.from(s0.xm), y: Float64Array.from(s0.ym), nUpper };
+  if (midCache.size >= CACHE_SIZE) midCache.delete(midCache.keys().next().value!);
+  midCache.set(key, m);
+  return m;
+}
+
+/** The inviscid shape's Cp at the finer solution's panel midpoints at alphaDeg, passed through
+ *  `map` (the compressibility rule), with the midpoints' polygon: what the 'shape' contour rule
+ *  integrates as the shape's own integral (app/shapeRule.ts). */
+export function shapeAtMidpoints(g: Geometry, alphaDeg: number, map: (cp0: number) => number = (c) => c): { x: Float64Array; y: Float64Array; cp: Float64Array; nUpper: number } {
+  const m = midpointsOf(g);
+  const cp = cpOf(m, alphaDeg);
+  for (let i = 0; i < cp.length; i++) cp[i] = map(cp[i]);
+  return { x: m.x, y: m.y, cp, nUpper: m.nUpper };
+}

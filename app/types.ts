@@ -200,7 +200,7 @@ export interface Settings {
    *  straight segments) or 'spline' (cubic splines of the contour and the surface speed in the
    *  square-root plane of the nose, app/contourSpline.ts; more accurate on sparse rows, but not
    *  linear in the taps' Cp — see docs/TAP-JUDGEMENT.md §3). */
-  contourRule: 'linear' | 'spline';
+  contourRule: 'shape' | 'linear' | 'spline';
   /** Wind-off leak: a tap whose wind-off zero departs from the median zero of the taps by more
    *  than this many Pa is flagged as leaking. */
   leakPa: number;
@@ -411,7 +411,10 @@ export interface SurfaceLoads {
   teMethod: string;
   /** The contour rule used (app/surface.ts ContourRule); absent in results of core < 0.3.0, which
    *  were all 'linear'. */
-  rule?: 'spline' | 'linear';
+  rule?: 'shape' | 'spline' | 'linear';
+  /** The 'shape' rule's fit (app/shapeRule.ts): the inviscid shape's α_eff, deg, and the slope b
+   *  of Cp ≈ a + b·shape over the row's taps, with the rms of the fit's residuals. */
+  shapeFit?: { alphaEffDeg: number; b: number; rms: number };
   /** Ids of taps dropped and bridged. */
   bridged: string[];
 }

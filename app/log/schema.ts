@@ -31,7 +31,7 @@ export const settingsSchema = z
     tapCheckK: z.number().min(1).max(100),
     tapCheckMinU: z.number().min(0).max(1),
     stagnationK: z.number().min(0).max(100),
-    contourRule: z.enum(['linear', 'spline']),
+    contourRule: z.enum(['shape', 'linear', 'spline']),
     leakPa: z.number().min(0).max(1e5),
     zeroDriftFraction: z.number().min(0).max(1),
     machLimit: z.number().min(0).max(1),
