@@ -307,7 +307,7 @@ export function buildMcPlan(
     slotX0: Float64Array.from(slots, (s) => s.t.x),
     slotY: Float64Array.from(slots, (s) => s.t.y),
     slotV,
-    shape: slotV && nominal.shape ? { v: new Float64Array(n), cn: nominal.shape.cn, ca: nominal.shape.ca, cmLE: nominal.shape.cmLE } : null,
+    shape: slotV && nominal.shape ? { v: new Float64Array(n), cn: nominal.shape.cn, ca: nominal.shape.ca, cmLE: nominal.shape.cmLE, fitX: nominal.shape.fitX } : null,
     slotRank: Float64Array.from(slots, (s) => rankOf.get(s.i)!),
     nT,
     tVal,

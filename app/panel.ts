@@ -355,7 +355,7 @@ function buildBasis(x: readonly number[], y: readonly number[]): Basis {
 }
 
 const basisCache = new Map<string, Basis>();
-const BASIS_CACHE_SIZE = 16;
+const BASIS_CACHE_SIZE = 128;
 
 function cachedBasis(x: readonly number[], y: readonly number[]): Basis {
   const key = `${x.join(',')}|${y.join(',')}`;

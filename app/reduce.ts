@@ -363,8 +363,11 @@ function nominalPass(
     return x;
   };
 
-  // First pass: Cp with no taps dropped, to detect bad taps.
-  const first = runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad: [], correct: provisional });
+  // First pass: Cp with no taps dropped, to detect bad taps. Its loads are the nominal ones only
+  // when no tap is bad; with the 'shape' rule it integrates by the linear rule (the shape is
+  // fitted once, to the taps kept, in the second pass, which then always runs).
+  const shapeRule = settings.contourRule === 'shape';
+  const first = runCore(setup, L, info, shapeRule ? { ...settings, contourRule: 'linear' } : settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad: [], correct: provisional });
   const zeroByTap: Record<string, number> | undefined = run.zeroRaw
     ? Object.fromEntries(L.taps.map(({ tap, ch }) => [tap.id, run.zeroRaw![ch.name]]).filter(([, z]) => Number.isFinite(z as number)))
     : undefined;
@@ -391,7 +394,7 @@ function nominalPass(
     keep: keptFor(settings.keptTaps, info.run),
     inviscid: { geometry: setup.model.geometry, alphaDeg: info.alphaDeg, mach: first.fs.M },
   });
-  const nominal = bad.length
+  const nominal = bad.length || shapeRule
     ? runCore(setup, L, info, settings, { values, alphaDeg: info.alphaDeg, kq: setup.facility.qCalibration, bad, correct: provisional })
     : first;
   // The references, row by row, from the taps kept (app/tapCheck.ts referenceCheck).
@@ -683,7 +686,7 @@ function mainRowArrays(nominal: CoreOutput, mainRow: string, L: Layout, uPa: Rea
   const ucp = good.map((t) => (uPa.get(chOf.get(t.id) ?? '') ?? 0) / Math.abs(q));
   const sh = nominal.main.rule === 'shape' ? nominal.shapes.get(mainRow) : null;
   const v = sh ? good.map((t) => sh.v.get(t.id)) : [];
-  const shape = sh && v.every((f) => f !== undefined) ? { v: v as number[], cn: sh.cn, ca: sh.ca, cmLE: sh.cmLE } : undefined;
+  const shape = sh && v.every((f) => f !== undefined) ? { v: v as number[], cn: sh.cn, ca: sh.ca, cmLE: sh.cmLE, fitX: sh.fitX, u: sh.u, halves: sh.halves } : undefined;
   return { x: good.map((t) => t.x), y: good.map((t) => t.y), cp: good.map((t) => t.cp), n: good.length, nUpper, ucp, ...(shape ? { shape } : {}) };
 }
 

@@ -125,7 +125,9 @@ function subset(r: RowArrays, step: number, start: number): RowArrays | null {
     if (k < r.nUpper) nUpper++;
   }
   if (nUpper < 2 || x.length - nUpper < 2) return null;
-  return { x, y, cp, n: x.length, nUpper, ...(r.shape ? { shape: { ...r.shape, v } } : {}) };
+  // The 'shape' rule on a half: its own departure (RowShape.halves), the shape at its taps.
+  const h = r.shape && step === 2 && r.shape.halves ? r.shape.halves[start] : null;
+  return { x, y, cp, n: x.length, nUpper, ...(r.shape && h ? { shape: { ...r.shape, ...h, v, halves: undefined, u: undefined } } : {}) };
 }
 
 /** The order of each contour rule's integration error in the tap spacing h: the linear rule
@@ -181,7 +183,7 @@ export function integrationError(r: RowArrays, alphaDeg: number, rule: ContourRu
   const u = { cl: 0, cdp: 0, cmc4: 0 };
   for (const k of ['cl', 'cdp', 'cmc4'] as const) {
     shift[k] = f * (whole[k] - 0.5 * (l0[k] + l1[k]));
-    u[k] = Math.hypot(rel * shift[k], f * Math.sqrt(vD[k]));
+    u[k] = Math.hypot(rel * shift[k], f * Math.sqrt(vD[k]), r.shape?.u ? r.shape.u[k] : 0);
   }
   return { shift, u };
 }

@@ -127,13 +127,26 @@ export interface RowShape {
   cmLE: number;
   alphaEffDeg: number;
   rms: number;
+  /** Standard uncertainty of the rule's correction from the shape's own discretisation (on the
+   *  uncorrected cl, cd_p, cm_c/4). */
+  u: { cl: number; cdp: number; cmc4: number };
+  /** Taps at x/c ≤ fitX are fitted (app/shapeRule.ts SHAPE_FIT_X). */
+  fitX: number;
+  /** The departure (cn, ca, cm_LE) for the row's two interleaved halves, in contour order. */
+  halves: [ShapeDeparture, ShapeDeparture];
 }
+
+export type ShapeDeparture = { cn: number; ca: number; cmLE: number };
 
 export interface RowShapeArrays {
   v: ArrayLike<number>;
   cn: number;
   ca: number;
   cmLE: number;
+  fitX: number;
+  /** RowShape.u and .halves, carried for the integration estimate (app/reductionErrors.ts). */
+  u?: { cl: number; cdp: number; cmc4: number };
+  halves?: [ShapeDeparture, ShapeDeparture];
 }
 
 let nodeX = new Float64Array(256);
@@ -239,13 +252,12 @@ export function contourIntegrals(
   let cmLE = -sMom;
   let shapeB = 0;
   if (rule === 'shape' && shape && n >= 3) {
-    const b = shapeSlope(cp, shape.v, n);
+    const b = shapeSlope(cp, shape.v, n, x, shape.fitX);
     if (b > 0) {
       shapeB = b;
-      shapeLinear(x, y, shape.v, n, nUpper);
-      cn += b * (shape.cn - SL.cn);
-      ca += b * (shape.ca - SL.ca);
-      cmLE += b * (shape.cmLE - SL.cmLE);
+      cn += b * shape.cn;
+      ca += b * shape.ca;
+      cmLE += b * shape.cmLE;
     }
   }
   const a = (alphaDeg * Math.PI) / 180;
@@ -263,76 +275,30 @@ export function contourIntegrals(
   };
 }
 
-/** The slope b of the least-squares line cp ≈ a + b·v over n taps (0 when v does not vary). */
-export function shapeSlope(cp: ArrayLike<number>, v: ArrayLike<number>, n: number): number {
+/** The slope b of the least-squares line cp ≈ a + b·v over the taps at x/c ≤ fitX (0 when v does
+ *  not vary or fewer than 3 taps are fitted). */
+export function shapeSlope(cp: ArrayLike<number>, v: ArrayLike<number>, n: number, x: ArrayLike<number>, fitX: number): number {
   let sv = 0;
   let sc = 0;
+  let m = 0;
   for (let i = 0; i < n; i++) {
+    if (!(x[i] <= fitX)) continue;
     sv += v[i];
     sc += cp[i];
+    m++;
   }
-  const mv = sv / n;
-  const mc = sc / n;
+  if (m < 3) return 0;
+  const mv = sv / m;
+  const mc = sc / m;
   let svv = 0;
   let svc = 0;
   for (let i = 0; i < n; i++) {
+    if (!(x[i] <= fitX)) continue;
     const dv = v[i] - mv;
     svv += dv * dv;
     svc += dv * (cp[i] - mc);
   }
   return svv > 0 ? svc / svv : 0;
-}
-
-/** The linear rule's cn, ca, cm_LE of values f at the taps (scratch result SL; the trailing-edge
- *  closure as contourIntegrals makes it). */
-const SL = { cn: 0, ca: 0, cmLE: 0 };
-function shapeLinear(x: ArrayLike<number>, y: ArrayLike<number>, f: ArrayLike<number>, n: number, nUpper: number): void {
-  let teU = f[0];
-  let teUy = y[0];
-  for (let k = 1; k < nUpper; k++) {
-    if (x[0] - x[k] > 1e-9) {
-      const t = (1 - x[0]) / (x[0] - x[k]);
-      teU = f[0] + t * (f[0] - f[k]);
-      teUy = y[0] + t * (y[0] - y[k]);
-      break;
-    }
-  }
-  let teL = f[n - 1];
-  let teLy = y[n - 1];
-  for (let k = n - 2; k >= nUpper; k--) {
-    if (x[n - 1] - x[k] > 1e-9) {
-      const t = (1 - x[n - 1]) / (x[n - 1] - x[k]);
-      teL = f[n - 1] + t * (f[n - 1] - f[k]);
-      teLy = y[n - 1] + t * (y[n - 1] - y[k]);
-      break;
-    }
-  }
-  const teX = 1;
-  const teY = 0.5 * (teUy + teLy);
-  const teF = 0.5 * (teU + teL);
-  let sDx = 0;
-  let sDy = 0;
-  let sMom = 0;
-  let px = teX;
-  let py = teY;
-  let pf = teF;
-  for (let k = 0; k <= n; k++) {
-    const qx = k < n ? x[k] : teX;
-    const qy = k < n ? y[k] : teY;
-    const qf = k < n ? f[k] : teF;
-    const dx = qx - px;
-    const dy = qy - py;
-    sDx += 0.5 * (pf + qf) * dx;
-    sDy += 0.5 * (pf + qf) * dy;
-    sMom += (dx / 6) * (pf * (2 * px + qx) + qf * (px + 2 * qx));
-    sMom += (dy / 6) * (pf * (2 * py + qy) + qf * (py + 2 * qy));
-    px = qx;
-    py = qy;
-    pf = qf;
-  }
-  SL.cn = sDx;
-  SL.ca = -sDy;
-  SL.cmLE = -sMom;
 }
 
 /** Integrates Cp around the closed contour of one row (see the module comment). The points are
@@ -367,7 +333,7 @@ export function integrateContour(points: readonly ContourPoint[], alphaDeg: numb
       if (f === undefined) all = false;
       else v[k] = f;
     }
-    if (all) arrays = { v, cn: shape.cn, ca: shape.ca, cmLE: shape.cmLE };
+    if (all) arrays = { v, cn: shape.cn, ca: shape.ca, cmLE: shape.cmLE, fitX: shape.fitX };
   }
   const r = contourIntegrals(x, y, cp, n, nUpper, alphaDeg, rule, arrays);
   // The rule named is the one applied: 'shape' without a shape (or with b ≤ 0) is the linear rule.

@@ -20,9 +20,23 @@ export interface InviscidShape {
   cp(alphaDeg: number): Float64Array;
   /** Standard uncertainty of that Cp from the discretisation, at alphaDeg. */
   u(alphaDeg: number): Float64Array;
+  /** The coarser solution's Cp at each tap (SHAPE_PANELS / 2 panels). */
+  coarse(alphaDeg: number): Float64Array;
+  /** Each tap's place on the finer and the coarser solution's midpoint polygon (index of the
+   *  midpoint before it + fraction along to the next), and its largest distance from the finer
+   *  one, in chords. */
+  pos: { fine: Float64Array; coarse: Float64Array; maxDist: number };
 }
 
-interface Coefs { A: Float64Array; B: Float64Array; C: Float64Array }
+interface Coefs {
+  A: Float64Array;
+  B: Float64Array;
+  C: Float64Array;
+  /** Each tap's place on the midpoints' polygon (index of the midpoint before it + fraction) and
+   *  its distance from that polygon, in chords (coefsAt only). */
+  pos?: Float64Array;
+  dist?: Float64Array;
+}
 
 function coefsAt(g: Geometry, nPanels: number, taps: readonly { x: number; y: number }[]): Coefs {
   const { x, y } = geometryPoints(g, nPanels);
@@ -33,6 +47,8 @@ function coefsAt(g: Geometry, nPanels: number, taps: readonly { x: number; y: nu
   const A = new Float64Array(n);
   const B = new Float64Array(n);
   const C = new Float64Array(n);
+  const pos = new Float64Array(n);
+  const dist = new Float64Array(n);
   const xm = s0.xm;
   const ym = s0.ym;
   for (let t = 0; t < n; t++) {
@@ -58,8 +74,10 @@ function coefsAt(g: Geometry, nPanels: number, taps: readonly { x: number; y: nu
     A[t] = a;
     B[t] = b;
     C[t] = 1 - lerp(s45.cp) - (a + b) / 2;
+    pos[t] = bi + bf;
+    dist[t] = best;
   }
-  return { A, B, C };
+  return { A, B, C, pos, dist };
 }
 
 function cpOf(k: Coefs, alphaDeg: number): Float64Array {
@@ -89,6 +107,8 @@ export function inviscidShape(g: Geometry, taps: readonly { x: number; y: number
     const coarse = coefsAt(g, SHAPE_PANELS / 2, taps);
     shape = {
       cp: (alphaDeg) => cpOf(fine, alphaDeg),
+      coarse: (alphaDeg) => cpOf(coarse, alphaDeg),
+      pos: { fine: fine.pos!, coarse: coarse.pos!, maxDist: Math.max(0, ...fine.dist!) },
       u: (alphaDeg) => {
         const f = cpOf(fine, alphaDeg);
         const c = cpOf(coarse, alphaDeg);
@@ -107,11 +127,11 @@ export function inviscidShape(g: Geometry, taps: readonly { x: number; y: number
 interface Midpoints extends Coefs { x: Float64Array; y: Float64Array; nUpper: number }
 const midCache = new Map<string, Midpoints>();
 
-function midpointsOf(g: Geometry): Midpoints {
-  const key = geometryKey(g);
+function midpointsOf(g: Geometry, panels: number): Midpoints {
+  const key = `${panels}#${geometryKey(g)}`;
   let m = midCache.get(key);
   if (m) return m;
-  const { x, y } = geometryPoints(g, SHAPE_PANELS);
+  const { x, y } = geometryPoints(g, panels);
   const s0 = panelSolve(x, y, 0);
   const s90 = panelSolve(x, y, 90);
   const s45 = panelSolve(x, y, 45);
@@ -132,11 +152,13 @@ function midpointsOf(g: Geometry): Midpoints {
   return m;
 }
 
-/** The inviscid shape's Cp at the finer solution's panel midpoints at alphaDeg, passed through
+/** The inviscid shape's Cp at the panel midpoints (of the finer solution unless `panels` says) at alphaDeg, passed through
  *  `map` (the compressibility rule), with the midpoints' polygon: what the 'shape' contour rule
  *  integrates as the shape's own integral (app/shapeRule.ts). */
-export function shapeAtMidpoints(g: Geometry, alphaDeg: number, map: (cp0: number) => number = (c) => c): { x: Float64Array; y: Float64Array; cp: Float64Array; nUpper: number } {
-  const m = midpointsOf(g);
+export function shapeAtMidpoints(
+  g: Geometry, alphaDeg: number, map: (cp0: number) => number = (c) => c, panels = SHAPE_PANELS,
+): { x: Float64Array; y: Float64Array; cp: Float64Array; nUpper: number } {
+  const m = midpointsOf(g, panels);
   const cp = cpOf(m, alphaDeg);
   for (let i = 0; i < cp.length; i++) cp[i] = map(cp[i]);
   return { x: m.x, y: m.y, cp, nUpper: m.nUpper };

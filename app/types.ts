@@ -18,8 +18,9 @@
  *  integration error estimated with its sign (Richardson at the rule's order) and its uncertainty
  *  from the leading-edge resolution, the intervals placed with it and holding the value
  *  (app/reductionErrors.ts; the values themselves unchanged); the spline rule leaves out a tap next
- *  to the trailing edge (app/contourSpline.ts TE_MERGE). */
-export const CORE_VERSION = '0.8.0';
+ *  to the trailing edge (app/contourSpline.ts TE_MERGE); 0.9.0: the 'shape' contour rule
+ *  (app/shapeRule.ts) is the default, each row naming the rule used and its fit. */
+export const CORE_VERSION = '0.9.0';
 
 export type PressureUnit =
   | 'Pa' | 'kPa' | 'hPa' | 'mbar' | 'psi' | 'inH2O' | 'mmH2O' | 'mmHg' | 'torr';
@@ -196,10 +197,12 @@ export interface Settings {
   /** Stagnation check: the row's highest Cp above the isentropic Cp_stag by more than stagnationK
    *  standard uncertainties gives a reference flag (the tap is kept). */
   stagnationK: number;
-  /** Contour rule of the surface integration: 'linear' (the default: Cp linear between taps on
+  /** Contour rule of the surface integration: 'shape' (the default: Cp linear between taps plus
+   *  the fitted inviscid shape's own departure from linear, app/shapeRule.ts; rows it cannot
+   *  stand on are integrated by 'linear' and say so), 'linear' (Cp linear between taps on
    *  straight segments) or 'spline' (cubic splines of the contour and the surface speed in the
-   *  square-root plane of the nose, app/contourSpline.ts; more accurate on sparse rows, but not
-   *  linear in the taps' Cp — see docs/TAP-JUDGEMENT.md §3). */
+   *  square-root plane of the nose, app/contourSpline.ts; not linear in the taps' Cp) — see
+   *  docs/TAP-JUDGEMENT.md §3. */
   contourRule: 'shape' | 'linear' | 'spline';
   /** Wind-off leak: a tap whose wind-off zero departs from the median zero of the taps by more
    *  than this many Pa is flagged as leaking. */
@@ -243,7 +246,7 @@ export const DEFAULT_SETTINGS: Settings = {
   tapCheckK: 4,
   tapCheckMinU: 0.005,
   stagnationK: 2,
-  contourRule: 'linear',
+  contourRule: 'shape',
   leakPa: 15,
   zeroDriftFraction: 0.01,
   machLimit: 0.3,

@@ -11,6 +11,7 @@ import type { Flag, Interval, PolarPoint, RunResult, SessionSummary, Settings, S
 import { CORE_VERSION, DEFAULT_SETTINGS } from '../app/types';
 import { badTapWords, flagLabel, flagShort, severityWord, SEVERITY } from '../app/flags';
 import { sweepDirections } from '../app/sweeps';
+import { CONTOUR_RULE_TEXT } from '../app/surface';
 import type { StaleMark } from '../app/stale';
 import { escapeHtml, OKABE_ITO, offScalePoints, svgPlot, type PlotPoint, type PlotSeries, type PlotSpec } from './svgplot';
 
@@ -141,7 +142,7 @@ const SETTING_WORDS: { key: keyof Settings; words: string; show: (s: Settings) =
   { key: 'wakeEdgeTol', words: 'Wake captured when rake edges within', show: (s) => `${s.wakeEdgeTol} of Cpt = 1` },
   { key: 'tapCheckK', words: 'Tap outlier beyond', show: (s) => `${s.tapCheckK} × combined σ (tap σ ≥ ${s.tapCheckMinU} Cp)` },
   { key: 'stagnationK', words: 'References flagged when the top Cp exceeds Cp_stag by', show: (s) => `${s.stagnationK} σ` },
-  { key: 'contourRule', words: 'Contour rule', show: (s) => s.contourRule },
+  { key: 'contourRule', words: 'Contour rule', show: (s) => `${s.contourRule}: ${CONTOUR_RULE_TEXT[s.contourRule]}${s.contourRule === 'shape' ? '; rows it cannot stand on by the linear rule' : ''}` },
   { key: 'leakPa', words: 'Leak at wind-off above', show: (s) => `${s.leakPa} Pa` },
   { key: 'zeroDriftFraction', words: 'Zero drift above', show: (s) => `${fmt(s.zeroDriftFraction * 100, 1)} % of q` },
   { key: 'machLimit', words: 'Mach limit', show: (s) => `M > ${s.machLimit}` },
@@ -282,6 +283,7 @@ h3 { font-size: 9pt; margin: 2mm 0 1mm; break-after: avoid; }
 .plots figure { margin: 0; break-inside: avoid; page-break-inside: avoid; }
 .plot-row { break-inside: avoid; page-break-inside: avoid; margin-bottom: 2mm; }
 tbody.tail { break-inside: avoid; page-break-inside: avoid; }
+table.runs tr.note td { padding: 0; border: none; background: #fff; }
 .plots figcaption { font-size: 8pt; max-width: 91mm; }
 table { border-collapse: collapse; width: 100%; }
 thead { display: table-header-group; } tfoot { display: table-footer-group; }
@@ -362,6 +364,9 @@ export function intervalReach(iv: Interval | undefined, value: number, d: number
 export const PAGE_BODY_PT: Record<DaySheetArgs['paper'], number> = { A4: (297 - 28) / 25.4 * 72, Letter: (279.4 - 28) / 25.4 * 72 };
 /** The least share of a page the last page of the sheet holds (the run table's kept tail). */
 export const TAIL_FRACTION = 0.4;
+/** Characters of the run table's 8 pt note a printed line holds (about 180 mm of text; common
+ *  practice, no source). */
+const NOTE_CHARS_PER_LINE = 150;
 
 /** Estimated printed height of one run-table row, pt (common practice, no source: 7 pt values
  *  at line height 1.3, one or two more 6 pt lines for the interval's reach; the status column is
@@ -412,17 +417,21 @@ function runTable(args: DaySheetArgs, settings: Settings, tz: string, stale: Map
       .map((c) => `<td class="n">${c}</td>`)
       .join('')}<td class="status">${status}</td></tr>`;
   });
-  // Balanced pagination: the table ends the sheet, so its last rows are kept together in a
-  // tbody that does not break (Chromium honours break-inside on table sections): the last page
-  // then holds at least TAIL_FRACTION of a page of rows instead of a line or two.
-  const n = tailRows(heights, PAGE_BODY_PT[args.paper] * TAIL_FRACTION);
-  const tbody = n < body.length
-    ? `<tbody>${body.slice(0, body.length - n).join('\n')}</tbody><tbody class="tail">${body.slice(body.length - n).join('\n')}</tbody>`
-    : `<tbody class="tail">${body.join('\n')}</tbody>`;
-  return `<table class="runs">${head}${tbody}</table>
-<p class="sub">${SEVERITY.reject.glyph} and a solid left bar: at least one ${SEVERITY.reject.word} flag (${SEVERITY.reject.meaning.toLowerCase()}); ${SEVERITY.warn.glyph} and a dashed bar: ${SEVERITY.warn.word} flags only (${SEVERITY.warn.meaning.toLowerCase()}). Times are local (${escapeHtml(zoneOffset(new Date(args.generatedAt), tz))}).
+  const note = `<p class="sub">${SEVERITY.reject.glyph} and a solid left bar: at least one ${SEVERITY.reject.word} flag (${SEVERITY.reject.meaning.toLowerCase()}); ${SEVERITY.warn.glyph} and a dashed bar: ${SEVERITY.warn.word} flags only (${SEVERITY.warn.meaning.toLowerCase()}). Times are local (${escapeHtml(zoneOffset(new Date(args.generatedAt), tz))}).
 α corr, q, V, Re, cl, cd and cm are wall-corrected (${escapeHtml(CORRECTION_WORDS[settings.correction] ?? settings.correction)}); the status column names each run's method.
 cl momentum is on the same corrected basis. Γ by Kutta–Joukowski, Γ = ½·V·c·cl with V and cl corrected.${args.results?.length ? ' Small figures under a value: how far its 95 % Monte Carlo coverage interval (JCGM 101:2008) reaches above (+) and below (−) it, ± when both are the same; same basis as the value.' : ''}</p>`;
+  // Balanced pagination: the table ends the sheet, so its last rows are kept together in a
+  // tbody that does not break (Chromium honours break-inside on table sections): the last page
+  // then holds at least TAIL_FRACTION of a page of rows instead of a line or two. The table's
+  // note is the tail's last row, so it never runs on alone to a page of its own.
+  const noteText = note.replace(/<[^>]*>/g, '');
+  heights.push(Math.ceil(noteText.length / NOTE_CHARS_PER_LINE) * 8 * 1.3 + 2 / 25.4 * 72);
+  const n = tailRows(heights, PAGE_BODY_PT[args.paper] * TAIL_FRACTION) - 1;
+  const noteRow = `<tr class="note"><td colspan="${widths.length}">${note}</td></tr>`;
+  const tbody = n < body.length
+    ? `<tbody>${body.slice(0, body.length - n).join('\n')}</tbody><tbody class="tail">${body.slice(body.length - n).join('\n')}\n${noteRow}</tbody>`
+    : `<tbody class="tail">${body.join('\n')}\n${noteRow}</tbody>`;
+  return `<table class="runs">${head}${tbody}</table>`;
 }
 
 

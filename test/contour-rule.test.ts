@@ -34,10 +34,10 @@ function worst(m: number, n: number, count: number, rule: ContourRule, aMax = 12
 
 describe('the spline contour rule on exact Joukowski sections', () => {
   const rule: ContourRule = 'spline';
-  it('the sections span 9–15 % thickness and 0–4 % camber; linear stays the default rule', () => {
+  it('the sections span 9–15 % thickness and 0–4 % camber; the spline is a setting, not the default', () => {
     // docs/TAP-JUDGEMENT.md §3: spline is not linear in Cp, and as the default it broke the
-    // uncertainty coverage; until that is solved, linear is the default.
-    expect(DEFAULT_SETTINGS.contourRule).toBe('linear');
+    // uncertainty coverage; the default is the 'shape' rule (test/shape-rule.test.ts).
+    expect(DEFAULT_SETTINGS.contourRule).toBe('shape');
     const dims = SECTIONS.map(([, m, n]) => {
       const taps = arcTaps(joukowski(m, n, 0), 400);
       const up = taps.filter((p) => p.surface === 'upper');

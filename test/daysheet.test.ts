@@ -50,7 +50,7 @@ describe('day sheet', () => {
     const table = doc.querySelector('table.runs')!;
     const heads = [...table.querySelectorAll('thead th')].map((th) => th.textContent!.replace(/\u00ad/g, ''));
     expect(heads.join('|')).toMatch(/cl\s*pressure.*cl\s*momentum.*cd\s*wake.*cd\s*pressure.*cm\s*c\/4.*Γ\s*pressure.*Γ\s*momentum/);
-    const rows = [...table.querySelectorAll('tbody tr')];
+    const rows = [...table.querySelectorAll('tbody tr:not(.note)')];
     expect(rows.length).toBe(4);
     const byRun = (n: number) => rows.find((r) => r.querySelector('td')!.textContent!.replace(/[^0-9]/g, '') === String(n))!;
     const r4 = byRun(4).textContent!;

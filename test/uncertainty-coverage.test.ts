@@ -47,10 +47,13 @@ function coverage(taps: number, alphaAndKq: boolean): Record<'cl' | 'cmc4' | 'cd
   return { cl: hits.cl / REPLICATES, cmc4: hits.cmc4 / REPLICATES, cd: hits.cd / REPLICATES };
 }
 
-// Measured here (2026-12-02, scripts/coverage-diagnose.ts with REPS=600 SECTIONS=40 gives the same
-// counts), cl / cm / cd: channel errors only 24 taps 0.947 / 0.962 / 0.963, 48 taps
-// 0.957 / 0.958 / 0.948, 96 taps 0.937 / 0.948 / 0.950; with α and k_q errors 24 taps
-// 0.968 / 0.948 / 0.950, 48 taps 0.947 / 0.953 / 0.933, 96 taps 0.950 / 0.950 / 0.957.
+// Measured here with the default 'shape' contour rule (2026-12-03; docs/TAP-JUDGEMENT.md §3),
+// cl / cm / cd: channel errors only 24 taps 0.948 / 0.963 / 0.963, 48 taps 0.947 / 0.955 / 0.948,
+// 96 taps 0.938 / 0.953 / 0.950; with α and k_q errors 24 taps 0.952 / 0.952 / 0.950, 48 taps
+// 0.952 / 0.935 / 0.933, 96 taps 0.948 / 0.945 / 0.957. With the linear rule (2026-12-02, the
+// model's geometry then a NACA 2412 that the linear rule never reads): 24 taps 0.947 / 0.962 /
+// 0.963, 48 taps 0.957 / 0.958 / 0.948, 96 taps 0.937 / 0.948 / 0.950; with α and k_q errors
+// 0.968 / 0.948 / 0.950, 0.947 / 0.953 / 0.933, 0.950 / 0.950 / 0.957.
 // The integration estimate (app/reductionErrors.ts integrationError: Richardson shift of the rule's
 // order and the leading-edge resolution model for its uncertainty) was calibrated on other pools
 // (seeds taps·7 + 3, 300 runs each at 16–96 taps; docs/UNCERTAINTY.md), not on these.

@@ -233,6 +233,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
   const bad = badTapIds(result);
   const rowTaps = result.taps.filter((t) => t.row === rowName).sort((a, b) => (a.surface === b.surface ? a.x - b.x : a.surface === 'upper' ? -1 : 1));
   const badList = result.taps.filter((t) => bad.has(t.id));
+  const rowLoads = result.rows.find((r) => r.row === rowName);
   const tol = liftTolerance(u.cl, result.settings.liftTolAbs, result.settings.liftTolRel);
   const dCl = result.clMomentum - u.cl;
   const w = result.wake;
@@ -388,6 +389,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
           Bad or bridged taps ({badList.length}):{' '}
           {badList.length ? badList.map((t) => `${t.id} (${t.badReason ?? 'bridged'})`).join(', ') : 'none'}.
         </p>
+        {rowLoads ? <p className="small" data-testid="contour-rule">Loads of row {rowName} integrated by {ruleWords(rowLoads)}.</p> : null}
         <DroppedTaps result={result} working={working} onSettle={settle} />
         <div className="tap-list-scroll">
           <table className="taps">
@@ -512,4 +514,13 @@ export function DroppedTaps({ result, working, onSettle }: {
       <p className="small muted">Confirm: the tap becomes a bad tap of the whole session and every run is re-reduced. Keep: the automatic test no longer drops it in this run only, which is re-reduced. Both are kept in the audit trail with the comment above.</p>
     </div>
   );
+}
+
+/** The contour rule a row's loads were integrated by, in words, with the shape rule's fit. */
+function ruleWords(r: RunResult['rows'][number]): string {
+  if (r.rule === 'shape' && r.shapeFit) {
+    return `the shape rule: Cp linear between taps plus the fitted inviscid shape's own departure from linear (fit over the taps: α_eff ${fix(r.shapeFit.alphaEffDeg, 2)}°, b ${fix(r.shapeFit.b, 3)}, rms ${fix(r.shapeFit.rms, 3)} in Cp)`;
+  }
+  if (r.rule === 'spline') return 'the spline rule: cubic splines of the contour and the surface speed in the square-root plane of the nose';
+  return 'the linear rule: Cp linear between taps on straight segments (the shape rule, the default, falls back to it where the row has too few taps or the taps are off the model\'s contour)';
 }

@@ -4,6 +4,8 @@
 // fine quadrature of the same formula over the whole wake — and its measured form: every channel's
 // reading moved by a normal error of its stated standard uncertainty, optionally α and k_q off by
 // theirs. No walls, no wind-off zeros, correction 'none' (the exact values are free-air values).
+// The model's geometry is the section's own contour (240 panels of it), as a real setup gives the
+// model's: the 'shape' contour rule (app/shapeRule.ts) integrates with it.
 // The facility, model and numbers are invented test data.
 import type { Channel, RunInfo, Setup, ZeroedRun } from '../../app/types';
 import { karmanTrefftz, type ExactAirfoil } from './joukowski';
@@ -101,7 +103,7 @@ export function exactCase(o: ExactOptions): ExactCase {
     session: { title: 'exact-data check', date: '2026-12-02', operators: ['test'] },
     facility: { name: 'test section', sectionHeight: 1.2, sectionWidth: 0.8, qCalibration: KQ, qCalibrationUncertainty: o.alphaAndKq ? U_KQ : 0 },
     model: {
-      name: 'Kármán–Trefftz section', chord: CHORD, span: 0.8, geometry: { kind: 'naca4', code: '2412' },
+      name: 'Kármán–Trefftz section', chord: CHORD, span: 0.8, geometry: { kind: 'coordinates', ...J.nodes(240) },
       alphaUncertaintyDeg: o.alphaAndKq ? U_ALPHA : 0, tapPositionUncertainty: 0,
     },
     taps,
