@@ -129,8 +129,9 @@ export function rowShape(
  * the model's contour between them (the panel midpoints' polygon, with the shape's Cp there)
  * less those of the straight segment with the shape linear along it. Aft of SHAPE_FIT_X, and on
  * the trailing-edge closure, nothing is added: the linear rule stands there. Null when the taps'
- * places on the polygon do not run in contour order.
+ * places on the polygon do not run in contour order (back by more than POS_REVERSAL panels).
  */
+const POS_REVERSAL = 3;
 function departure(
   ordered: readonly { x: number; y: number }[], pos: Float64Array,
   mid: { x: Float64Array; y: Float64Array; cp: Float64Array }, v: Float64Array,
@@ -139,7 +140,11 @@ function departure(
   let dDy = 0;
   let dMom = 0;
   const n = ordered.length;
-  for (let k = 0; k + 1 < n; k++) if (!(pos[k + 1] >= pos[k])) return null;
+  // Two taps at the nose can sit in the other order along the panels than in contour order (a tap
+  // a hair ahead of x/c 0 on a cambered nose, which orderContour's x order puts after the nose
+  // tap): the path then runs back along the panels between them. A larger reversal says the taps
+  // are not in order.
+  for (let k = 0; k + 1 < n; k++) if (!(pos[k + 1] >= pos[k] - POS_REVERSAL)) return null;
   const seg = (px: number, py: number, pf: number, qx: number, qy: number, qf: number, sign: number) => {
     const dx = qx - px;
     const dy = qy - py;
@@ -151,15 +156,22 @@ function departure(
     const p = ordered[k];
     const q = ordered[k + 1];
     if (!(p.x <= SHAPE_FIT_X && q.x <= SHAPE_FIT_X)) continue;
-    // Along the contour: the tap, the midpoints between, the next tap.
+    // Along the contour: the tap, the midpoints between, the next tap (backwards along the panels
+    // when the next tap's place is behind this one's, so that the path covers the contour once
+    // however the taps zigzag).
     let px = p.x;
     let py = p.y;
     let pf = v[k];
-    for (let i = Math.floor(pos[k]) + 1; i <= Math.floor(pos[k + 1]) && i < mid.cp.length; i++) {
+    const step = (i: number) => {
       seg(px, py, pf, mid.x[i], mid.y[i], mid.cp[i], 1);
       px = mid.x[i];
       py = mid.y[i];
       pf = mid.cp[i];
+    };
+    if (pos[k + 1] >= pos[k]) {
+      for (let i = Math.floor(pos[k]) + 1; i <= Math.floor(pos[k + 1]) && i < mid.cp.length; i++) step(i);
+    } else {
+      for (let i = Math.floor(pos[k]); i > Math.floor(pos[k + 1]) && i >= 0; i--) step(i);
     }
     seg(px, py, pf, q.x, q.y, v[k + 1], 1);
     // Less the straight segment.

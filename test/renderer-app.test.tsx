@@ -90,6 +90,12 @@ describe('Rakeline window (renderer/main.tsx, mocked getApi)', () => {
     const reasons = document.querySelector('.flags-box')!.textContent!;
     for (const f of r2.flags) expect(reasons).toContain(f.reason);
     expect(document.querySelector('.panel-coef')!.textContent).toContain('95 % interval');
+    // The taps panel names the contour rule the shown row was integrated by (the result's own).
+    const ruleLine = document.querySelector('[data-testid="contour-rule"]')!.textContent!;
+    const shownRow = /Loads of row (\S+) integrated by/.exec(ruleLine)![1];
+    const loads = r2.rows.find((r) => r.row === shownRow)!;
+    expect(ruleLine).toContain(loads.rule === 'shape' ? 'the shape rule' : loads.rule === 'spline' ? 'the spline rule' : 'the linear rule');
+    if (loads.shapeFit) expect(ruleLine).toContain(`b ${loads.shapeFit.b.toFixed(3)}`);
   });
 
   it('toggles a tap from the Cp chart: re-reduced at once, change shown, then stored', async () => {

@@ -132,6 +132,25 @@ describe('what the shape rule stands on', () => {
     expect(rowShape(own, arcTaps(J, SHAPE_RULE_MIN - 1), 4)).toBeNull();
     expect(rowShape(own, taps.filter((t) => t.surface === 'upper'), 4)).toBeNull();
   });
+  it('a nose tap a hair ahead of its neighbour along the panels (NACA 4412, taps at x/c 0 and −0.0001) is no reason to give up', () => {
+    // Two taps at the cambered nose of a NACA 4412 (coordinates by app/panel.ts naca4Point, the
+    // Abbott & von Doenhoff construction) sit in the other order along the panels than in contour
+    // order; that segment adds nothing, the rest of the row keeps the rule.
+    const g: Geometry = { kind: 'naca4', code: '4412' };
+    const xs = [0.9, 0.7, 0.5, 0.3, 0.2, 0.1, 0.05, 0.02, 0.005, 0.001];
+    const row = [
+      ...xs.map((x, i) => ({ id: `U${i}`, ...naca4Point('4412', x, 'upper'), surface: 'upper' as const })),
+      { id: 'LE', ...naca4Point('4412', 0, 'upper'), surface: 'upper' as const },
+      ...[...xs].reverse().map((x, i) => ({ id: `L${i}`, ...naca4Point('4412', x + 0.001, 'lower'), surface: 'lower' as const })),
+    ];
+    // The upper tap at station 0.001 lies ahead of the leading-edge point (x/c < 0).
+    expect(row.find((t) => t.id === 'U9')!.x).toBeLessThan(0);
+    const cp = (t: { x: number; surface: string }) => (t.surface === 'upper' ? -1.2 * (1 - t.x) : 0.3 * (1 - t.x)) + 0.9 * Math.exp(-t.x * 40);
+    const taps = row.map((t) => ({ ...t, cp: cp(t) }));
+    const s = rowShape(g, taps, 4);
+    expect(s).not.toBeNull();
+    expect(integrateContour(taps, 4, 'shape', s).rule).toBe('shape');
+  });
   it('names its fit: α_eff near α, b near 1 and a small rms on exact data', () => {
     const r = integrateContour(taps, 4, 'shape', rowShape(own, taps, 4));
     expect(r.rule).toBe('shape');
