@@ -47,7 +47,13 @@ export const CORRECTIONS: { value: CorrectionMethod; label: string }[] = [
   { value: 'none', label: 'None (uncorrected)' },
 ];
 
-export type FormValues = Record<NumKey, string> & { correction: CorrectionMethod };
+export const CONTOUR_RULES: { value: Settings['contourRule']; label: string }[] = [
+  { value: 'shape', label: 'Shape (default): Cp linear between taps plus the fitted inviscid shape’s own departure from linear; linear on rows it cannot stand on' },
+  { value: 'linear', label: 'Linear: Cp linear between taps on straight segments' },
+  { value: 'spline', label: 'Spline: cubic splines in the square-root plane of the nose (not linear in the taps’ Cp)' },
+];
+
+export type FormValues = Record<NumKey, string> & { correction: CorrectionMethod; contourRule: Settings['contourRule'] };
 
 /** Round away binary noise from the scale (0.03 × 100 = 3.0000000000000004). */
 function tidy(v: number): string {
@@ -55,7 +61,7 @@ function tidy(v: number): string {
 }
 
 export function formFromSettings(s: Settings): FormValues {
-  const out = { correction: s.correction } as FormValues;
+  const out = { correction: s.correction, contourRule: s.contourRule } as FormValues;
   for (const f of NUM_FIELDS) out[f.key] = tidy(s[f.key] * f.scale);
   return out;
 }
@@ -66,7 +72,7 @@ export interface FormCheck {
   /** Only the fields that changed, in stored units. */
   patch: Partial<Settings>;
   /** Field key → message. */
-  errors: Partial<Record<NumKey | 'correction', string>>;
+  errors: Partial<Record<NumKey | 'correction' | 'contourRule', string>>;
 }
 
 /** Validate typed values: numbers first, then the contract schema on the stored units. */
@@ -88,6 +94,7 @@ export function checkForm(values: FormValues, current: Settings): FormCheck {
     if (v !== current[f.key]) (patch as Record<string, number>)[f.key] = v;
   }
   if (values.correction !== current.correction) patch.correction = values.correction;
+  if (values.contourRule !== current.contourRule) patch.contourRule = values.contourRule;
   const r = settingsPatchSchema.safeParse(patch);
   if (!r.success) {
     for (const issue of r.error.issues) {

@@ -4,7 +4,7 @@
 import { afterEach, describe, expect, it } from 'vitest';
 import { useState } from 'react';
 import { DEFAULT_SETTINGS, type Settings } from '../app/types';
-import { checkForm, formFromSettings } from '../renderer/settingsForm';
+import { CONTOUR_RULES, checkForm, formFromSettings } from '../renderer/settingsForm';
 import { SessionSettings } from '../renderer/screens/SessionSettings';
 import { ApiContext, StatusProvider } from '../renderer/context';
 import type { SessionData } from '../renderer/session';
@@ -48,6 +48,14 @@ describe('settings form check', () => {
     const v = formFromSettings(current);
     v.correction = 'allen-vincenti';
     expect(checkForm(v, current).patch).toEqual({ correction: 'allen-vincenti' });
+  });
+
+  it('offers the three contour rules, the shape rule first, and sends a change of rule', () => {
+    expect(CONTOUR_RULES.map((r) => r.value)).toEqual(['shape', 'linear', 'spline']);
+    const v = formFromSettings(current);
+    expect(v.contourRule).toBe(current.contourRule);
+    v.contourRule = 'linear';
+    expect(checkForm(v, current).patch).toEqual({ contourRule: 'linear' });
   });
 });
 

@@ -4,7 +4,7 @@
 import { staleRunNumbers } from '../../app/stale';
 import { useEffect, useMemo, useState } from 'react';
 import type { SessionData } from '../session';
-import { CORRECTIONS, NUM_FIELDS, checkForm, formFromSettings, type FormValues, type NumField } from '../settingsForm';
+import { CONTOUR_RULES, CORRECTIONS, NUM_FIELDS, checkForm, formFromSettings, type FormValues, type NumField } from '../settingsForm';
 import { useApi, useStatus, quiet } from '../context';
 import { newTaskId, useTaskProgress } from '../hooks';
 import { ProgressBar } from '../components/ProgressBar';
@@ -102,6 +102,15 @@ export function SessionSettings({ data, reload }: { data: SessionData; reload():
             })}
           </fieldset>
         ))}
+        <fieldset>
+          <legend>Surface integration</legend>
+          <div className="set-row">
+            <label htmlFor="set-contour-rule">Contour rule</label>
+            <select id="set-contour-rule" value={values.contourRule} onChange={(e) => setValues((v) => ({ ...v, contourRule: e.target.value as FormValues['contourRule'] }))}>
+              {CONTOUR_RULES.map((c) => <option key={c.value} value={c.value}>{c.label}</option>)}
+            </select>
+          </div>
+        </fieldset>
         <fieldset>
           <legend>Wall corrections</legend>
           <div className="set-row">
