@@ -113,30 +113,42 @@ export function predictTap(
   chain: readonly JudgedTap[], k: number, positionU = 0, s: ArrayLike<number> = arcLength(chain),
   cp: ArrayLike<number> = chain.map((t) => t.cp), uOf: ArrayLike<number> = chain.map((t) => t.u),
 ): TapVerdict | null {
-  const own = predictCore(chain, k, positionU, s, -1, cp, uOf);
-  if (!own) return own;
+  return predictWithCv(chain, k, positionU, s, cp, uOf, 0)?.verdict ?? null;
+}
+
+/** predictTap's verdict from the given side(s), with its cross-validation term on its own. */
+function predictWithCv(
+  chain: readonly JudgedTap[], k: number, positionU: number, s: ArrayLike<number>, cp: ArrayLike<number>, uOf: ArrayLike<number>, side: Side,
+): { verdict: TapVerdict; cv: number } | null {
+  const own = predictCore(chain, k, positionU, s, -1, cp, uOf, side);
+  if (!own) return null;
   // Cross-validation: how well the nearest neighbour on each side is predicted by the same rule
   // without itself and without tap k. Where the neighbours cannot be predicted (a sparse leading
   // edge), tap k cannot be either; a bad tap k does not enter these predictions.
   let cv = 0;
   for (const j of [own.left, own.right]) {
     if (j < 0) continue;
-    const vj = predictCore(chain, j, positionU, s, k, cp, uOf);
+    const vj = predictCore(chain, j, positionU, s, k, cp, uOf, side);
     if (vj) cv = Math.max(cv, Math.abs(vj.residual));
   }
   const u = Math.sqrt(own.u * own.u + cv * cv);
-  return { id: own.id, cp: own.cp, predicted: own.predicted, residual: own.residual, u, score: u > 0 ? Math.abs(own.residual) / u : Infinity };
+  return { verdict: { id: own.id, cp: own.cp, predicted: own.predicted, residual: own.residual, u, score: u > 0 ? Math.abs(own.residual) / u : Infinity }, cv };
 }
+
+/** Which neighbours a prediction uses: both sides (0), or only those before (−1) or after (+1)
+ *  the tap in contour order (the one-sided rule of the row's ends). */
+type Side = -1 | 0 | 1;
 
 function predictCore(
   chain: readonly JudgedTap[], k: number, positionU: number, s: ArrayLike<number>, skip: number, cp: ArrayLike<number>, uOf: ArrayLike<number>,
+  side: Side = 0,
 ): (TapVerdict & { left: number; right: number }) | null {
   const n = chain.length;
   const distinct = (i: number) => i !== skip && Math.abs(s[i] - s[k]) > 1e-9;
   const left: number[] = [];
   const right: number[] = [];
-  for (let i = k - 1; i >= 0 && left.length < 3; i--) if (distinct(i)) left.push(i);
-  for (let i = k + 1; i < n && right.length < 3; i++) if (distinct(i)) right.push(i);
+  if (side <= 0) for (let i = k - 1; i >= 0 && left.length < 3; i--) if (distinct(i)) left.push(i);
+  if (side >= 0) for (let i = k + 1; i < n && right.length < 3; i++) if (distinct(i)) right.push(i);
   let nodes: number[];
   let alternatives: number[][];
   if (!left.length || !right.length) {
@@ -276,7 +288,8 @@ function lineFit(cnt: number, sx: number, sy: number, sxx: number, sxy: number, 
  * run's α, fitted to the row's taps as a + b·Cp_inv(α_eff) (least squares over α_eff within
  * ±SHAPE_ALPHA_SPAN of the run's α, a and b free: the viscous loss of circulation and suction
  * peak, an offset in the references), and the same leave-one-out prediction applied to the
- * difference Cp − fit, which is smooth where Cp itself is steep (behind the leading edge). The
+ * difference Cp − fit (two-sided, or one-sided where that is the less uncertain:
+ * differencePrediction), which is smooth where Cp itself is steep (behind the leading edge). The
  * fit that judges a tap leaves that tap out, so a glitch cannot tilt the shape towards itself;
  * only taps of high leverage (SHAPE_LOO_LEVERAGE) are judged with the fit of the whole row. The
  * difference's taps carry the channel uncertainty and b times the shape's own (app/tapShape.ts).
@@ -344,13 +357,41 @@ function withShape(
     const own = without(k);
     const f = leverage[k] <= SHAPE_LOO_LEVERAGE && own.b > 0 && Number.isFinite(own.sse) ? own : whole;
     differenceFrom(f);
-    const v = predictTap(active, k, 0, s, dCp, dU);
+    const v = differencePrediction(active, k, s, dCp, dU);
     if (!v) return r;
     if (r && !(v.u < r.u)) return r;
     const predicted = v.predicted + f.a + f.b * f.cp[at[k]];
     const residual = active[k].cp - predicted;
     return { id: v.id, cp: active[k].cp, predicted, residual, u: v.u, score: v.u > 0 ? Math.abs(residual) / v.u : Infinity };
   });
+}
+
+/**
+ * The prediction of tap k on the shape difference: the two-sided one (predictTap), or a one-sided
+ * one (the quadratic through the three nearest taps on one side) when that has the smaller
+ * uncertainty. Behind a sparse leading edge the two-sided stencil reaches the nose taps, whose
+ * difference carries the steep shape's position term (|d(b·Cp_inv)/ds|·u_pos, up to 0.1–0.3 at
+ * the nose of a 24-tap row), and its prediction is then too uncertain to find a glitch of 0.3;
+ * the taps on the other side predict the smooth difference with less. A one-sided prediction
+ * extrapolates, so its uncertainty carries, besides its own terms, its disagreement with the
+ * two-sided prediction and the two-sided cross-validation term (where the difference has
+ * structure near the nose, as on a row whose suction peak is softer than the inviscid one, both
+ * are large and the one-sided rule is not taken). As everywhere in the test, the choice is made on
+ * the uncertainty, never on the residual.
+ */
+function differencePrediction(
+  active: readonly JudgedTap[], k: number, s: ArrayLike<number>, dCp: ArrayLike<number>, dU: ArrayLike<number>,
+): TapVerdict | null {
+  const two = predictWithCv(active, k, 0, s, dCp, dU, 0);
+  if (!two) return null;
+  let best = two.verdict;
+  for (const side of [-1, 1] as const) {
+    const one = predictWithCv(active, k, 0, s, dCp, dU, side);
+    if (!one) continue;
+    const u = Math.hypot(one.verdict.u, one.verdict.predicted - two.verdict.predicted, two.cv);
+    if (u < best.u) best = { ...one.verdict, u, score: u > 0 ? Math.abs(one.verdict.residual) / u : Infinity };
+  }
+  return best;
 }
 
 /** |df/ds| at each point of a polygon's samples: the derivative of the parabola through each

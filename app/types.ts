@@ -19,8 +19,10 @@
  *  from the leading-edge resolution, the intervals placed with it and holding the value
  *  (app/reductionErrors.ts; the values themselves unchanged); the spline rule leaves out a tap next
  *  to the trailing edge (app/contourSpline.ts TE_MERGE); 0.9.0: the 'shape' contour rule
- *  (app/shapeRule.ts) is the default, each row naming the rule used and its fit. */
-export const CORE_VERSION = '0.9.0';
+ *  (app/shapeRule.ts) is the default, each row naming the rule used and its fit; 0.9.1: the
+ *  shape-aided tap test predicts a tap's difference from the shape one-sided where that is the less
+ *  uncertain (app/tapCheck.ts differencePrediction). */
+export const CORE_VERSION = '0.9.1';
 
 export type PressureUnit =
   | 'Pa' | 'kPa' | 'hPa' | 'mbar' | 'psi' | 'inH2O' | 'mmH2O' | 'mmHg' | 'torr';

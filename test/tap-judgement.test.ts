@@ -175,7 +175,9 @@ describe('shape-aided prediction (the fitted inviscid shape, app/tapShape.ts), a
     expect(a.wrong).toBe(0);
     expect(b.found).toBeGreaterThan(0.985);
     expect(b.wrong).toBe(0);
-    expect(c.found).toBeGreaterThan(0.9);
+    // 90.8 % before the one-sided prediction of the difference (app/tapCheck.ts
+    // differencePrediction); 95.2 % with it.
+    expect(c.found).toBeGreaterThan(0.95);
     expect(c.wrong).toBe(0);
   }, 60_000);
   it('planted glitches on viscous-like rows: the same cases', () => {
