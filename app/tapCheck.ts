@@ -203,9 +203,10 @@ export function judgeChain(chain: readonly JudgedTap[], positionU = 0): (TapVerd
 }
 
 /** A row's highest Cp at or above this is taken for a stagnation-region reading (ours, no
- *  source: well above any Cp a tap away from the stagnation point reads on an attached section,
- *  below the 1 a tap at the stagnation point reads). */
-export const STAGNATION_REGION_CP = 0.8;
+ *  source: below the 1 a tap at the stagnation point reads, and below what the tap nearest the
+ *  stagnation point of a sparse row reads: 0.64–0.67 on exact 16-tap rows, where 0.8 dropped it;
+ *  docs/TAP-JUDGEMENT.md §1). */
+export const STAGNATION_REGION_CP = 0.5;
 /** … and at most this (ours, no source: a q reading 20 % low; a higher reading is a tap fault,
  *  not a stagnation reading) … */
 export const STAGNATION_REGION_MAX = 1.25;
@@ -241,10 +242,17 @@ export function findRowOutliers(chain: readonly JudgedTap[], o: OutlierOptions):
     const top = active[peak];
     const peakShielded = top.cp >= STAGNATION_REGION_CP && top.cp <= STAGNATION_REGION_MAX
       && top.x - xMin <= STAGNATION_REGION_X * (xMax - xMin);
+    // The same for the suction peak: the row's lowest reading, when it is at the nose, is a peak
+    // narrower than a sparse row's spacing (on exact 12-tap rows the neighbours' cubic missed it
+    // by 0.8–16 Cp and dropped it).
+    let low = 0;
+    for (let k = 0; k < active.length; k++) if (active[k].cp < active[low].cp) low = k;
+    const lowShielded = active[low].x - xMin <= STAGNATION_REGION_X * (xMax - xMin);
     let worst = -1;
     for (let k = 0; k < verdicts.length; k++) {
       const v = verdicts[k];
       if (k === peak && peakShielded && v === raw[k]) continue;
+      if (k === low && lowShielded && v === raw[k]) continue;
       if (v && !o.keep?.has(v.id) && v.score > o.k && (worst < 0 || v.score > verdicts[worst]!.score)) worst = k;
     }
     if (worst < 0) break;
@@ -265,6 +273,10 @@ export const SHAPE_ALPHA_STEP = 0.25;
  *  leading edge fix α_eff, and the others alone predict them poorly where the row is not the
  *  inviscid shape (docs/TAP-JUDGEMENT.md §1). */
 export const SHAPE_LOO_LEVERAGE = 0.35;
+
+/** The leverage the fit's prediction uncertainty s²·h/(1 − h) is taken at, at most (a tap that
+ *  alone fixes a parameter, h → 1, would make it infinite). */
+const SHAPE_LEVERAGE_CAP = 0.95;
 
 interface ShapeFit { sse: number; a: number; b: number; alpha: number; cp: ArrayLike<number> }
 
@@ -292,7 +304,8 @@ function lineFit(cnt: number, sx: number, sy: number, sxx: number, sxy: number, 
  * differencePrediction), which is smooth where Cp itself is steep (behind the leading edge). The
  * fit that judges a tap leaves that tap out, so a glitch cannot tilt the shape towards itself;
  * only taps of high leverage (SHAPE_LOO_LEVERAGE) are judged with the fit of the whole row. The
- * difference's taps carry the channel uncertainty and b times the shape's own (app/tapShape.ts).
+ * difference's taps carry the channel uncertainty and b times the shape's own (app/tapShape.ts);
+ * the prediction adds the fit's own uncertainty at the tap (s²·h/(1 − h)).
  * Tap by tap, the verdict of the two (on Cp itself or on the difference) with the smaller combined
  * uncertainty is taken: the choice is made on the uncertainty, never on the residual.
  */
@@ -357,8 +370,21 @@ function withShape(
     const own = without(k);
     const f = leverage[k] <= SHAPE_LOO_LEVERAGE && own.b > 0 && Number.isFinite(own.sse) ? own : whole;
     differenceFrom(f);
-    const v = differencePrediction(active, k, s, dCp, dU);
+    let v = differencePrediction(active, k, s, dCp, dU);
     if (!v) return r;
+    // The fit's own uncertainty at the tap: the prediction variance s²·h/(1 − h) of a least-squares
+    // fit at a point left out of it (s² the fit's residual variance, h the tap's leverage; any
+    // regression text, e.g. Draper & Smith, Applied Regression Analysis, ch. 8 on deleted
+    // residuals, memory). Near zero where the row is the inviscid shape (exact rows); at the nose
+    // of a row whose peak the shape does not have, where the fitted α_eff places the shape's
+    // stagnation point, large: there the fitted shape predicts the nose taps poorly.
+    {
+      const h = Math.min(leverage[k], SHAPE_LEVERAGE_CAP);
+      const dof = (f === whole ? n : m) - 3;
+      const uFit = dof > 0 ? Math.sqrt(((Math.max(0, f.sse) / dof) * h) / (1 - h)) : 0;
+      const u = Math.hypot(v.u, uFit);
+      v = { ...v, u, score: u > 0 ? Math.abs(v.residual) / u : Infinity };
+    }
     if (r && !(v.u < r.u)) return r;
     const predicted = v.predicted + f.a + f.b * f.cp[at[k]];
     const residual = active[k].cp - predicted;

@@ -21,7 +21,9 @@
  *  to the trailing edge (app/contourSpline.ts TE_MERGE); 0.9.0: the 'shape' contour rule
  *  (app/shapeRule.ts) is the default, each row naming the rule used and its fit; 0.9.1: the
  *  shape-aided tap test predicts a tap's difference from the shape one-sided where that is the less
- *  uncertain (app/tapCheck.ts differencePrediction). */
+ *  uncertain (app/tapCheck.ts differencePrediction) and adds the fit's own uncertainty at the tap;
+ *  the stagnation-region shield from Cp 0.5 (was 0.8), and the row's lowest reading at the nose
+ *  shielded as well. */
 export const CORE_VERSION = '0.9.1';
 
 export type PressureUnit =

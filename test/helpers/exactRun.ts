@@ -41,6 +41,9 @@ export interface ExactOptions {
   uTap?: number;
   uRake?: number;
   uRef?: number;
+  /** The taps, given (e.g. arcTaps of the section picked: a realistic row); else `taps` of them
+   *  evenly spaced in the circle plane with a random phase. */
+  points?: (J: ExactAirfoil) => { x: number; y: number; cp: number; surface: 'upper' | 'lower' }[];
 }
 
 const CHORD = 0.3;
@@ -62,7 +65,7 @@ export function exactCase(o: ExactOptions): ExactCase {
   // A section and a tap phase at random: the reduction's own errors differ run to run.
   const { J, alphaDeg: alphaTrue } = o.sections[Math.floor(U() * o.sections.length)];
   const phase = U();
-  const pts = Array.from({ length: o.taps }, (_, k) => J.at(J.thetaTE + (2 * Math.PI * (k + phase)) / o.taps));
+  const pts = o.points ? o.points(J) : Array.from({ length: o.taps }, (_, k) => J.at(J.thetaTE + (2 * Math.PI * (k + phase)) / o.taps));
   // Gaussian wake: peak deficit D of Cpt, spread s, centre yc.
   const D = 0.1 + 0.2 * U();
   const s = 0.012 + 0.015 * U();
