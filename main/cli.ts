@@ -23,6 +23,11 @@ let deps: typeof CliDeps | undefined;
 export async function loadCliDeps(): Promise<typeof CliDeps> {
   return (deps ??= await import('./cliDeps'));
 }
+/** Whether the command modules have been loaded (scripts/compiled.mjs keeps the code cache of a
+ *  command that ran on them, not of `--version`). */
+export function commandModulesLoaded(): boolean {
+  return deps !== undefined;
+}
 /** The loaded command modules (main() has loaded them before any command runs). */
 function D(): typeof CliDeps {
   if (!deps) throw new Error('internal: the command modules were not loaded');

@@ -98,7 +98,29 @@ export async function buildNode({ quiet = false, outdir = r('dist', 'node', 'man
     metafile: true,
     logLevel: quiet ? 'warning' : 'info',
   });
-  return res.metafile;
+  // The command line once more, as one CommonJS file (cli.cjs): the launcher compiles it through
+  // node:vm with V8's code cache kept beside it (scripts/compiled.mjs loadCli), which Node 20 offers
+  // for scripts but not for ES modules. import.meta.url is the file's own URL, so the worker
+  // threads are found next to it (dist/node/<build>/importWorker.mjs) as from cli.mjs.
+  const cjs = await esbuild({
+    absWorkingDir: root,
+    entryPoints: { cli: r('main', 'cli.ts') },
+    outdir,
+    outExtension: { '.js': '.cjs' },
+    bundle: true,
+    platform: 'node',
+    format: 'cjs',
+    target: 'node20',
+    external: ['better-sqlite3', 'fsevents', 'electron'],
+    plugins: [zodEnglishOnly],
+    define: { 'import.meta.url': '__rakelineFileUrl' },
+    banner: { js: "const __rakelineFileUrl = require('node:url').pathToFileURL(__filename).href;" },
+    sourcemap: true,
+    metafile: true,
+    logLevel: quiet ? 'warning' : 'info',
+    logOverride: { 'empty-import-meta': 'silent' },
+  });
+  return { ...res.metafile, inputs: { ...res.metafile.inputs, ...cjs.metafile.inputs } };
 }
 
 function runTs(file) {

@@ -12,10 +12,11 @@ import { importSessionFolder } from '../main/import';
 import { cleanupTempDirs, comparableContents, miniFolder, tempDir } from './helpers/store-fixtures';
 import { REPO, BIN } from './helpers/cliSession';
 // @ts-expect-error: an untyped JavaScript module of ours
-import { compileNode, currentBuild, ensureCompiled, staleReason } from '../scripts/compiled.mjs';
+import { CLI_CACHE, compileNode, currentBuild, ensureCompiled, staleReason } from '../scripts/compiled.mjs';
 
 const GUARD = join(REPO, 'test', 'helpers', 'no-compiler.mjs');
 const DRIVER = join(REPO, 'test', 'helpers', 'compiled-import.mjs');
+const LAUNCH = join(REPO, 'test', 'helpers', 'compiled-cli.mjs');
 const version = (JSON.parse(readFileSync(join(REPO, 'package.json'), 'utf8')) as { version: string }).version;
 // Inside the repository, so that the build resolves better-sqlite3 from node_modules.
 const dist = join(REPO, 'dist', `node-test-${process.pid}`);
@@ -38,7 +39,7 @@ describe('the compiled build', () => {
   it('is a folder of its own named by current.json, recording every source it was made from', () => {
     const rec = currentBuild(dist);
     expect(join(dist, rec.build)).toBe(build);
-    for (const f of ['cli.mjs', 'serve.mjs', 'importWorker.mjs']) expect(existsSync(join(build, f)), f).toBe(true);
+    for (const f of ['cli.mjs', 'cli.cjs', 'serve.mjs', 'importWorker.mjs']) expect(existsSync(join(build, f)), f).toBe(true);
     const inputs = Object.keys(rec.inputs);
     for (const src of ['main/cli.ts', 'main/cliDeps.ts', 'main/serve.ts', 'main/importWorker.ts', 'main/store.ts', 'app/reduce.ts', 'app/mcPlan.ts', 'scripts/build.mjs', 'package.json']) {
       expect(inputs, src).toContain(src);
@@ -124,6 +125,38 @@ describe('the compiled build', () => {
     const sheet = cli(compiled, 'sheet');
     expect(sheet.code, sheet.stderr).toBe(0);
     expect(sheet.stdout).toMatch(/^<!doctype html>/i);
+  }, 120_000);
+
+  it('the launcher\'s CommonJS build through the code cache prints what the ES-module build prints; a refused cache is made again', () => {
+    const dir = tempDir('rk-cache-');
+    const db = join(dir, 'c.sqlite');
+    const folder = join(REPO, 'resources', 'demo', 'session');
+    const cacheFile = join(build, CLI_CACHE);
+    rmSync(cacheFile, { force: true });
+    const launch = (...args: string[]) => {
+      const r = node(['--import', GUARD, LAUNCH, dist, '--db', db, ...args]);
+      expect(r.code, r.stderr).toBe(0);
+      return { out: r.stdout, cache: /cache: (\w+)\s*$/.exec(r.stderr)?.[1] };
+    };
+    // --version alone runs the split ES-module build and keeps no cache
+    const v = node(['--import', GUARD, LAUNCH, dist, '--version']);
+    expect(v.stdout.trim()).toBe(version);
+    expect(existsSync(cacheFile)).toBe(false);
+    // the first command that loads the command modules writes the cache, the next one uses it
+    expect(launch('ingest', folder).cache).toBe('none');
+    expect(existsSync(cacheFile)).toBe(true);
+    const first = launch('runs', '--format', 'json');
+    expect(first.cache).toBe('used');
+    const esm = node(['--import', GUARD, join(build, 'cli.mjs'), '--db', db, 'runs', '--format', 'json']);
+    expect(esm.code, esm.stderr).toBe(0);
+    expect(first.out).toBe(esm.stdout);
+    expect(JSON.parse(first.out).length).toBeGreaterThan(40);
+    // a damaged cache is refused by V8, the command still right, and the cache made again
+    writeFileSync(cacheFile, readFileSync(cacheFile).subarray(0, 4096));
+    const damaged = launch('runs', '--format', 'json');
+    expect(damaged.cache).toBe('rejected');
+    expect(damaged.out).toBe(esm.stdout);
+    expect(launch('runs', '--format', 'json').cache).toBe('used');
   }, 120_000);
 
   it('its import worker threads store exactly what the sources store on the calling thread', async () => {
