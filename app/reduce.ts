@@ -16,7 +16,7 @@ import { averageRun, applyZeros, unsteadiness } from './samples';
 import { detectBadTaps, reduceSurface, type BadTap, type RowShape } from './surface';
 import { rowShape } from './shapeRule';
 import { keptFor, referenceCheck, type ReferenceFinding } from './tapCheck';
-import { channelFindings, sessionFindings, type ChannelRun } from './sessionFaults';
+import { channelFindings, notedFlags, sessionFindings, type ChannelRun } from './sessionFaults';
 import { inviscidCp } from './panel';
 import { spanLoading, completeRow } from './spanwise';
 import { jonesDrag, interpolateStatic } from './wake';
@@ -1052,10 +1052,17 @@ export function summariseSession(setup: Setup, results: ResultDigest[], infos: R
   const [alphaMin, alphaMax] = range(({ r }) => r.corrected.alphaDeg);
   const [tempMin, tempMax] = range(({ info }) => info.temperatureC);
   const [baroMin, baroMax] = range(({ info }) => info.baro);
+  const found = withChannelFindings(sessionFindings(rows.map(({ r }) => r)), channelRuns ? channelFindings(setup, channelRuns) : []);
+  // The notes and the runs needing a decision from the same, final findings (a channel finding
+  // explains its tap's flags as the tap's own finding did).
+  const noted = notedFlags(rows.map(({ r }) => r), found.findings);
+  const notedCount = new Map(noted.map((x) => [x.run, x.flags.length]));
   return {
     stats,
     flagged: rows.filter(({ r }) => r.flags.length).map(({ r }) => ({ run: r.run, flags: r.flags })),
-    ...withChannelFindings(sessionFindings(rows.map(({ r }) => r)), channelRuns ? channelFindings(setup, channelRuns) : []),
+    findings: found.findings,
+    needsDecision: rows.filter(({ r }) => r.flags.length > (notedCount.get(r.run) ?? 0)).map(({ r }) => r.run),
+    noted,
     conditions: rows.length ? { qMin, qMax, ReMin, ReMax, alphaMin, alphaMax, tempMin, tempMax, baroMin, baroMax } : null,
     polar,
     span,

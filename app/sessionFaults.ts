@@ -10,7 +10,7 @@
 // statistics of every run's samples (mean and standard deviation of each channel, wind-on and
 // wind-off), see channelFindings below. They are reported, never acted on: the tap test of each
 // run still decides what to drop, and the engineer marks the tap bad.
-import type { ChannelStats, Flag, ResultDigest, RunInfo, SessionFinding, Setup } from './types';
+import type { ChannelStats, Flag, ResultDigest, RunInfo, SessionFinding, SessionSummary, Setup } from './types';
 import { PA_PER_UNIT } from './units';
 
 /** Share of the data runs a tap fault must be seen on to be a session finding. */
@@ -81,6 +81,43 @@ export function explainedByFindings(r: Pick<ResultDigest, 'dropped'>, f: Flag, f
   const explains = (x: Pick<SessionFinding, 'code' | 'tap'>, t: string) =>
     x.tap === t && (x.code === f.code || x.code === 'dead-channel' || x.code === 'saturated-channel');
   return taps.length > 0 && taps.every((t) => findings.some((x) => explains(x, t)));
+}
+
+/** Each run's flags that the findings explain, by their index in the run's flags (runs with none
+ *  left out): on the run they are a note, not a decision (SessionSummary.noted). */
+export function notedFlags(
+  results: readonly Pick<ResultDigest, 'run' | 'flags' | 'dropped'>[], findings: readonly Pick<SessionFinding, 'code' | 'tap'>[],
+): { run: number; flags: number[] }[] {
+  if (!findings.length) return [];
+  const out: { run: number; flags: number[] }[] = [];
+  for (const r of results) {
+    const flags = r.flags.flatMap((f, i) => (explainedByFindings(r, f, findings) ? [i] : []));
+    if (flags.length) out.push({ run: r.run, flags });
+  }
+  return out;
+}
+
+/** A flag's identity for telling notes from decisions across copies of a result: code and reason. */
+const flagKey = (f: Pick<Flag, 'code' | 'reason'>) => `${f.code}\u0000${f.reason}`;
+
+/** The summary's notes by run (SessionSummary.noted, resolved against its `flagged` list): for each
+ *  run, the identities of the flags a session finding explains. */
+export function notesByRun(summary: Pick<SessionSummary, 'noted' | 'flagged'> | null | undefined): Map<number, Set<string>> {
+  const out = new Map<number, Set<string>>();
+  if (!summary?.noted?.length) return out;
+  const flags = new Map(summary.flagged.map((x) => [x.run, x.flags]));
+  for (const { run, flags: idx } of summary.noted) {
+    const fs = flags.get(run);
+    if (fs) out.set(run, new Set(idx.filter((i) => i < fs.length).map((i) => flagKey(fs[i]))));
+  }
+  return out;
+}
+
+/** A run's flags split into those that need a decision and the notes (`noted`: that run's entry of
+ *  notesByRun). */
+export function splitFlags<F extends Pick<Flag, 'code' | 'reason'>>(flags: readonly F[], noted: ReadonlySet<string> | undefined): { decision: F[]; notes: F[] } {
+  if (!noted?.size) return { decision: [...flags], notes: [] };
+  return { decision: flags.filter((f) => !noted.has(flagKey(f))), notes: flags.filter((f) => noted.has(flagKey(f))) };
 }
 
 /** What channelFindings reads of a run: its index entry and its channels' sample statistics. */

@@ -665,6 +665,9 @@ export interface SessionSummary {
   findings?: SessionFinding[];
   /** Runs whose flags are not all explained by a session finding: the runs needing a decision. */
   needsDecision?: number[];
+  /** Per run, the indices (in its flags) of the flags a session finding explains: shown as notes
+   *  and not counted as flagged (app/sessionFaults.ts notedFlags). */
+  noted?: { run: number; flags: number[] }[];
   /** Span loading of every run with several rows. */
   span: { run: number; alphaDeg: number; z: number[]; cl: number[]; CL: number }[];
 }

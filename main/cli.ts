@@ -324,7 +324,9 @@ async function reduceAndTell(store: Store, sessionId: number, g: GlobalOpts, opt
   // The findings of the whole session's latest results (not only of the runs just reduced).
   const view = findingsView(summary, flagged);
   const deciding = flagged.filter((r) => view.needsDecision.includes(r.run));
-  out(`session ${sessionId}: reduced ${reduced} run(s) in ${secs} s, ${flagged.length} flagged${view.findings.length ? `, ${deciding.length} of them needing a decision` : ''}`);
+  // A flag a session finding explains is a note, not a decision: it does not count the run as flagged.
+  const notesOnly = flagged.length - deciding.length;
+  out(`session ${sessionId}: reduced ${reduced} run(s) in ${secs} s, ${view.findings.length ? `${deciding.length} flagged (needing a decision)${notesOnly ? `, ${notesOnly} more with only notes of the session findings` : ''}` : `${flagged.length} flagged`}`);
   for (const r of deciding) out(`  ${r.head}, ${flagsText(r.run, r.flags, view)}`);
   for (const line of findingsLines(view)) out(line);
 }
@@ -460,17 +462,20 @@ Examples:
 
   program
     .command('sessions')
-    .description('list the sessions in the database')
+    .description('list the sessions in the database, each with its flagged data runs and those needing a decision')
     .addOption(new Option('--format <format>', 'output format').choices(['table', 'json']).default('table'))
     .action(async (o: { format: string }) => {
       await withStore(g(), 'read', (store) => {
-        const all = store.listSessions();
+        // With each session its data runs needing a decision (flags no session finding explains),
+        // as the app's session list shows them.
+        const all = D().sessionsWithDecisions(store);
         if (o.format === 'json') return out(JSON.stringify(all, null, 2));
         if (!all.length) return out('no sessions');
-        out(`${'id'.padStart(3)}  ${'date'.padEnd(10)}  ${'runs'.padStart(4)}  ${'data'.padStart(4)}  ${'flag'.padStart(4)}  title / model / facility`);
+        out(`${'id'.padStart(3)}  ${'date'.padEnd(10)}  ${'runs'.padStart(4)}  ${'data'.padStart(4)}  ${'flag'.padStart(4)}  ${'decide'.padStart(6)}  title / model / facility`);
         for (const s of all) {
-          out(`${String(s.id).padStart(3)}  ${s.date.padEnd(10)}  ${String(s.runCount).padStart(4)}  ${String(s.dataRunCount).padStart(4)}  ${String(s.flaggedCount).padStart(4)}  ${s.title} / ${s.model} / ${s.facility}`);
+          out(`${String(s.id).padStart(3)}  ${s.date.padEnd(10)}  ${String(s.runCount).padStart(4)}  ${String(s.dataRunCount).padStart(4)}  ${String(s.flaggedCount).padStart(4)}  ${String(s.decisionCount).padStart(6)}  ${s.title} / ${s.model} / ${s.facility}`);
         }
+        out('flag: data runs with any flag; decide: those with a flag no session finding explains (the others carry only notes)');
       });
     });
 

@@ -5,7 +5,7 @@
 export { Store, StoreFullError, isDiskFull } from './store';
 export { runsNeedingReduction } from './repair';
 export { importSessionFolder } from './import';
-export { reduceStoredSession, reduceStoredSessionAsync, SAVE_BATCH, sessionSummary } from './reduceService';
+export { reduceStoredSession, reduceStoredSessionAsync, SAVE_BATCH, sessionSummary, sessionsWithDecisions } from './reduceService';
 export { storedDaySheet } from './daysheetData';
 export { exportResultsCsv, exportResultsJson } from './export';
 export { listRunsMarked, staleRuns } from './stale';

@@ -79,6 +79,8 @@ export type Payload<C extends Channel> = z.infer<(typeof channels)[C]>;
 export interface SessionRowLike {
   id: number; title: string; date: string; facility: string; model: string; folder: string | null;
   runCount: number; dataRunCount: number; flaggedCount: number; importedAt: string;
+  /** Data runs needing a decision (a flag no session finding explains); sessions.list fills it. */
+  decisionCount?: number;
 }
 export interface RunRowLike {
   sessionId: number; run: number; kind: 'zero' | 'data'; alphaDeg: number; time: string; baro: number;

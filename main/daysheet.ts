@@ -10,6 +10,7 @@ import type { SessionRow, RunRow } from './store';
 import type { Flag, Interval, PolarPoint, RunResult, SessionSummary, Settings, Setup } from '../app/types';
 import { CORE_VERSION, DEFAULT_SETTINGS } from '../app/types';
 import { badTapWords, flagLabel, flagShort, severityWord, SEVERITY } from '../app/flags';
+import { notesByRun, splitFlags } from '../app/sessionFaults';
 import { sweepDirections } from '../app/sweeps';
 import { CONTOUR_RULE_TEXT } from '../app/surface';
 import type { StaleMark } from '../app/stale';
@@ -759,7 +760,11 @@ export function daySheetHtml(args: DaySheetArgs): string {
   const dataRuns = args.runs.filter((r) => r.kind === 'data');
   const zeroRuns = args.runs.length - dataRuns.length;
   const settings: Settings = args.settings ?? { ...DEFAULT_SETTINGS, ...setup.settings };
-  const flaggedCount = dataRuns.filter((r) => r.result?.flags.length).length;
+  // A flag a session finding explains is a note on its run, not a decision (app/sessionFaults.ts).
+  const noted = notesByRun(summary);
+  const ownFlags = (r: RunRow) => splitFlags(r.result?.flags ?? [], noted.get(r.run));
+  const flaggedCount = dataRuns.filter((r) => ownFlags(r).decision.length).length;
+  const notesOnly = dataRuns.filter((r) => !ownFlags(r).decision.length && ownFlags(r).notes.length).length;
   const rejectedCount = dataRuns.filter((r) => r.review?.verdict === 'rejected').length;
   const stale = staleByRun(args, settings);
   const common = new Set(commonFlags(args.runs).map((g) => flagKey(g.flag)));
@@ -770,7 +775,7 @@ export function daySheetHtml(args: DaySheetArgs): string {
     fact('Chord / span', `${fmt(setup.model.chord, 3)} m / ${fmt(setup.model.span, 3)} m`),
     fact('Test date', setup.session.date),
     fact('Operators', setup.session.operators.join(', ') || '–'),
-    fact('Runs', `${dataRuns.length} data, ${zeroRuns} wind-off zero, ${flaggedCount} flagged${rejectedCount ? `, ${rejectedCount} rejected by the reviewer` : ''}`),
+    fact('Runs', `${dataRuns.length} data, ${zeroRuns} wind-off zero, ${flaggedCount} flagged (needing a decision)${notesOnly ? `, ${notesOnly} with only notes of the session findings` : ''}${rejectedCount ? `, ${rejectedCount} rejected by the reviewer` : ''}`),
     fact('Dynamic pressure q', c ? range(c.qMin, c.qMax, 1, 'Pa') : '–'),
     fact('Reynolds number', c ? range(c.ReMin / 1e6, c.ReMax / 1e6, 3, '× 10⁶') : '–'),
     fact('α (corrected)', c ? range(c.alphaMin, c.alphaMax, 2, '°') : '–'),

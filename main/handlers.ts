@@ -21,7 +21,7 @@ import { INDEX_FILE, LONG_LOG_DEFAULT, SETUP_FILE } from '../app/log/session';
 import { parseRunIndexDetailed } from '../app/log/runIndex';
 import type { Store, RunRow, ImportProgress, ImportReport } from './store';
 import { folderSource, importSession, importSessionFolder, type SessionSource } from './import';
-import { reduceStoredSessionAsync, SAVE_BATCH, sessionSummary } from './reduceService';
+import { reduceStoredSessionAsync, SAVE_BATCH, sessionSummary, sessionsWithDecisions } from './reduceService';
 import { runsNeedingReduction } from './repair';
 import { verifyResults } from './verify';
 import { zeroRunsFor } from '../app/samples';
@@ -548,7 +548,8 @@ export function createHandlers(ctx: HandlerContext): Handlers {
       if (!ctx.saveFile) return { path: null, supported: false };
       return { path: await ctx.saveFile(suggestedName, kind, Buffer.from(base64, 'base64')), supported: true };
     },
-    'sessions.list': async () => store.listSessions(),
+    // With each session, its runs needing a decision, the count the Day log shows.
+    'sessions.list': async () => sessionsWithDecisions(store),
     'sessions.get': async ({ sessionId }) => ({
       session: store.getSession(sessionId), setup: store.getSetup(sessionId), settings: store.getSettings(sessionId),
     }),

@@ -304,3 +304,13 @@ export function sessionSummary(
   const channelRuns = opts.channels === false ? undefined : opts.averaged ?? store.getAveraged(sessionId);
   return summariseSession(setup, results, store.getIndex(sessionId), channelRuns);
 }
+
+/** Every session with its data runs needing a decision (a flag no session finding explains), the
+ *  count the Day log shows: from the stored digests without the channel statistics (2–10 ms a
+ *  session on the bench sessions; a dead or saturated channel replaces its tap's own finding, so
+ *  the count is the same unless a channel finding is on a tap with no finding of its own). */
+export function sessionsWithDecisions(store: Store): (ReturnType<Store['listSessions']>[number] & { decisionCount: number })[] {
+  return store.listSessions().map((s) => ({
+    ...s, decisionCount: s.dataRunCount ? (sessionSummary(store, s.id, { channels: false }).needsDecision ?? []).length : 0,
+  }));
+}

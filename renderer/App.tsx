@@ -162,7 +162,7 @@ function Shell() {
                 <button type="button" className={`session-item${s.id === sessionId ? ' session-on' : ''}`} aria-current={s.id === sessionId ? 'true' : undefined} onClick={() => openSession(s.id)}>
                   <span className="session-name">{s.title}</span>
                   <span className="session-meta">{s.date} · {s.model}</span>
-                  <span className="session-meta">{s.dataRunCount} data runs{s.flaggedCount ? <> · <span className="warn-text">▲ {s.flaggedCount} flagged</span></> : null}</span>
+                  <span className="session-meta">{s.dataRunCount} data runs{sessionCount(s)}</span>
                 </button>
               </li>
             ))}
@@ -217,4 +217,13 @@ function Shell() {
       </footer>
     </div>
   );
+}
+
+/** The sidebar's count of a session: the runs needing a decision (the flags the session findings
+ *  explain are notes, not decisions), or the flagged runs where the count was not given. */
+function sessionCount(s: SessionRowLike) {
+  const n = s.decisionCount ?? s.flaggedCount;
+  if (!n) return s.decisionCount === 0 && s.flaggedCount ? <> · <span className="muted" title="Every flag of this session is explained by a session finding">none to decide</span></> : null;
+  const words = s.decisionCount !== undefined ? `${n} need${n === 1 ? 's' : ''} a decision` : `${n} flagged`;
+  return <> · <span className="warn-text">▲ {words}</span></>;
 }

@@ -59,7 +59,7 @@ describe('day sheet of a stored session', () => {
     expect(stale).toContain('Lift cross-check, absolute: 0 in cl (now 0.02 in cl)');
     expect(row).toContain('other settings');
     // the run is counted as flagged and as rejected in the facts
-    expect(doc.querySelector('dl.facts')!.textContent).toMatch(/\d+ flagged, 1 rejected by the reviewer/);
+    expect(doc.querySelector('dl.facts')!.textContent).toMatch(/\d+ flagged \(needing a decision\)(, \d+ with only notes of the session findings)?, 1 rejected by the reviewer/);
   });
 
   it('every bad tap with the reason the engineer gave, by name; taps the reduction dropped with its reason', () => {

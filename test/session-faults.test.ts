@@ -5,7 +5,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { demoSession, type DemoSession } from '../resources/demo/scenario';
 import { reduceRawSession, summariseSession } from '../app/reduce';
-import { sessionFindings } from '../app/sessionFaults';
+import { notedFlags, notesByRun, sessionFindings, splitFlags } from '../app/sessionFaults';
 import type { ResultDigest, RunResult, SessionSummary } from '../app/types';
 
 let demo: DemoSession;
@@ -34,6 +34,25 @@ describe('demo day: persistent faults', () => {
     expect(summary.needsDecision).toEqual(results.map((r) => r.run).filter((r) => perRun.has(r)));
     // Every run still carries its own leaking-tap flag in its record.
     expect(results.every((r) => r.flags.some((x) => x.code === 'leaking-tap'))).toBe(true);
+  });
+
+  it('the summary names each run\'s notes: the leaking-tap flag on every data run, never a planted per-run fault', () => {
+    const notes = notesByRun(summary);
+    const leak = demo.faults.find((f) => f.code === 'leaking-tap')!;
+    for (const r of results) {
+      const { decision, notes: n } = splitFlags(r.flags, notes.get(r.run));
+      expect(n.map((f) => f.code), `run ${r.run}`).toEqual(['leaking-tap']);
+      expect(n[0].reason).toContain(leak.tap!);
+      // what is left is what the planted per-run faults raise, and it is what makes a decision
+      const planted = demo.faults.filter((f) => f.code !== 'leaking-tap' && f.runs.includes(r.run)).map((f) => f.code);
+      for (const code of planted) expect(decision.map((f) => f.code), `run ${r.run}`).toContain(code);
+      expect(decision.length > 0, `run ${r.run}`).toBe(summary.needsDecision!.includes(r.run));
+    }
+    // a note is told by its code and reason, so a copy of the result (the inspector's) splits alike
+    const r0 = results[0];
+    expect(splitFlags(r0.flags.map((f) => ({ ...f })), notes.get(r0.run)).notes).toHaveLength(1);
+    // with no findings there are no notes
+    expect(notedFlags(results, [])).toEqual([]);
   });
 
   it('a tap fault on fewer than 80 % of the runs is no finding, and its runs need a decision', () => {

@@ -15,12 +15,26 @@ export function FlagBadge({ flag, long = false }: { flag: Flag; long?: boolean }
   );
 }
 
-export function FlagBadges({ flags, stale }: { flags: readonly Flag[] | null | undefined; stale?: StaleMark | null }) {
-  if ((!flags || flags.length === 0) && !stale) return <span className="badge-none">none</span>;
+/** A flag a session finding explains (SessionSummary.noted): a note on the run, not a decision —
+ *  muted, with the note glyph instead of the severity's, and not counted as flagged. */
+export function NoteBadge({ flag, long = false }: { flag: Flag; long?: boolean }) {
+  const w = flagWords(flag.code, flag.severity);
+  return (
+    <span className="badge badge-note" title={`Note, explained by a session finding (not a decision on this run): ${flag.reason}`} data-note={flag.code}>
+      <span className="badge-glyph" aria-hidden="true">ℹ</span>
+      <span className="badge-text">{long ? w.label : w.short}</span>
+      <span className="sr-only"> (note: session finding)</span>
+    </span>
+  );
+}
+
+export function FlagBadges({ flags, notes, stale }: { flags: readonly Flag[] | null | undefined; notes?: readonly Flag[]; stale?: StaleMark | null }) {
+  if ((!flags || flags.length === 0) && !notes?.length && !stale) return <span className="badge-none">none</span>;
   return (
     <span className="badges">
       {stale ? <StaleBadge mark={stale} /> : null}
       {(flags ?? []).map((f, i) => <FlagBadge key={`${f.code}-${i}`} flag={f} />)}
+      {(notes ?? []).map((f, i) => <NoteBadge key={`note-${f.code}-${i}`} flag={f} />)}
     </span>
   );
 }
@@ -45,10 +59,19 @@ export function StaleReasons({ mark }: { mark: StaleMark | null | undefined }) {
   );
 }
 
-/** Flags with their reasons in words (run inspector, overview side panel). */
-export function FlagReasons({ flags }: { flags: readonly Flag[] | null | undefined }) {
+/** Flags with their reasons in words (run inspector, overview side panel); `notes`: the flags a
+ *  session finding explains, listed after them as notes. */
+export function FlagReasons({ flags, notes }: { flags: readonly Flag[] | null | undefined; notes?: readonly Flag[] }) {
+  const noteItems = (notes ?? []).map((f, i) => (
+    <li key={`note-${f.code}-${i}`} className="flag-reason flag-note">
+      <NoteBadge flag={f} long />
+      <span className="flag-sev">note (session finding, not a decision on this run):</span>{' '}
+      <span className="flag-text">{f.reason}</span>
+    </li>
+  ));
   if (!flags || flags.length === 0) {
-    return <p className="ok-line"><span aria-hidden="true">✓</span> No flags: every check passed.</p>;
+    const ok = <p className="ok-line"><span aria-hidden="true">✓</span> {noteItems.length ? 'No flag of its own: nothing to decide on this run.' : 'No flags: every check passed.'}</p>;
+    return noteItems.length ? <>{ok}<ul className="flag-reasons">{noteItems}</ul></> : ok;
   }
   return (
     <ul className="flag-reasons">
@@ -59,6 +82,7 @@ export function FlagReasons({ flags }: { flags: readonly Flag[] | null | undefin
           <span className="flag-text">{f.reason}</span>
         </li>
       ))}
+      {noteItems}
     </ul>
   );
 }

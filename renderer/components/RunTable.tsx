@@ -3,23 +3,32 @@
 // carry a text badge and a row stripe; the stripe colour only repeats the badge.
 import { useEffect, useMemo, useRef, useState, type KeyboardEvent, type ReactNode } from 'react';
 import type { RunRowLike } from '../../main/contract';
+import type { Flag } from '../../app/types';
+import { splitFlags } from '../../app/sessionFaults';
 import { FlagBadges } from './FlagBadge';
 import { worstSeverity } from '../palette';
 import { clock, fix, reMillions } from '../format';
 
 type Value = number | string | null;
 
+/** Per run, the flags a session finding explains (app/sessionFaults.ts notesByRun). */
+export type NotedFlags = ReadonlyMap<number, ReadonlySet<string>>;
+
 export interface Column {
   key: string;
   head: ReactNode;
   /** Full name for screen readers and the header tooltip. */
   title: string;
-  value(r: RunRowLike): Value;
-  cell(r: RunRowLike): ReactNode;
+  value(r: RunRowLike, noted?: NotedFlags): Value;
+  cell(r: RunRowLike, noted?: NotedFlags): ReactNode;
   numeric?: boolean;
 }
 
 const res = (r: RunRowLike) => r.result;
+/** A run's flags that need a decision, and its notes (flags a session finding explains). */
+export function runFlags(r: RunRowLike, noted?: NotedFlags): { decision: Flag[]; notes: Flag[] } {
+  return splitFlags(r.result?.flags ?? [], noted?.get(r.run));
+}
 
 export const RUN_COLUMNS: Column[] = [
   { key: 'run', head: 'Run', title: 'Run number', value: (r) => r.run, cell: (r) => r.run, numeric: true },
@@ -27,9 +36,18 @@ export const RUN_COLUMNS: Column[] = [
   { key: 'time', head: 'Time', title: 'Start time (local)', value: (r) => r.time, cell: (r) => clock(r.time).slice(0, 5) },
   { key: 'alpha', head: <>α [°]</>, title: 'Geometric angle of attack, degrees', value: (r) => r.alphaDeg, cell: (r) => fix(r.alphaDeg, 2), numeric: true },
   {
-    key: 'flags', head: 'Flags', title: 'Checks that failed',
-    value: (r) => (r.result ? (worstSeverity(r.result.flags) === 'reject' ? 2 : r.result.flags.length ? 1 : 0) * 100 + r.result.flags.length : null),
-    cell: (r) => (r.kind === 'zero' ? <span className="badge-none">–</span> : r.result ? <FlagBadges flags={r.result.flags} stale={r.stale} /> : <span className="badge-none">not reduced</span>),
+    key: 'flags', head: 'Flags', title: 'Checks that failed (ℹ: a note, explained by a session finding, not a decision on this run)',
+    value: (r, noted) => {
+      if (!r.result) return null;
+      const { decision, notes } = runFlags(r, noted);
+      return (worstSeverity(decision) === 'reject' ? 2 : decision.length ? 1 : 0) * 1000 + decision.length * 10 + notes.length;
+    },
+    cell: (r, noted) => {
+      if (r.kind === 'zero') return <span className="badge-none">–</span>;
+      if (!r.result) return <span className="badge-none">not reduced</span>;
+      const { decision, notes } = runFlags(r, noted);
+      return <FlagBadges flags={decision} notes={notes} stale={r.stale} />;
+    },
   },
   { key: 'alphaCorr', head: <>α<sub>c</sub> [°]</>, title: 'Corrected angle of attack, degrees', value: (r) => res(r)?.alphaCorrDeg ?? null, cell: (r) => fix(res(r)?.alphaCorrDeg, 2), numeric: true },
   { key: 'q', head: 'q [Pa]', title: 'Corrected dynamic pressure, Pa', value: (r) => res(r)?.q ?? null, cell: (r) => fix(res(r)?.q, 1), numeric: true },
@@ -54,12 +72,12 @@ export const RUN_COLUMNS: Column[] = [
 export type SortState = { key: string; dir: 'asc' | 'desc' };
 
 /** Sort rows by a column; missing values always last. Ties keep run order. */
-export function sortRuns(rows: readonly RunRowLike[], sort: SortState, columns: Column[] = RUN_COLUMNS): RunRowLike[] {
+export function sortRuns(rows: readonly RunRowLike[], sort: SortState, columns: Column[] = RUN_COLUMNS, noted?: NotedFlags): RunRowLike[] {
   const col = columns.find((c) => c.key === sort.key) ?? columns[0];
   const sign = sort.dir === 'asc' ? 1 : -1;
   return [...rows].sort((a, b) => {
-    const va = col.value(a);
-    const vb = col.value(b);
+    const va = col.value(a, noted);
+    const vb = col.value(b, noted);
     const na = va === null || (typeof va === 'number' && !Number.isFinite(va));
     const nb = vb === null || (typeof vb === 'number' && !Number.isFinite(vb));
     if (na || nb) return na && nb ? a.run - b.run : na ? 1 : -1;
@@ -75,11 +93,13 @@ export interface RunTableProps {
   onOpen(run: number): void;
   /** Table caption (visible). */
   caption?: string;
+  /** The flags session findings explain, by run: shown as notes, no row stripe of their own. */
+  noted?: NotedFlags;
 }
 
-export function RunTable({ runs, selected, onSelect, onOpen, caption = 'Runs' }: RunTableProps) {
+export function RunTable({ runs, selected, onSelect, onOpen, caption = 'Runs', noted }: RunTableProps) {
   const [sort, setSort] = useState<SortState>({ key: 'run', dir: 'asc' });
-  const rows = useMemo(() => sortRuns(runs, sort), [runs, sort]);
+  const rows = useMemo(() => sortRuns(runs, sort, RUN_COLUMNS, noted), [runs, sort, noted]);
   const tableRef = useRef<HTMLTableElement>(null);
 
   useEffect(() => {
@@ -150,7 +170,7 @@ export function RunTable({ runs, selected, onSelect, onOpen, caption = 'Runs' }:
         </thead>
         <tbody>
           {rows.map((r) => {
-            const sev = r.result ? worstSeverity(r.result.flags) : null;
+            const sev = r.result ? worstSeverity(runFlags(r, noted).decision) : null;
             const cls = [
               r.kind === 'zero' ? 'row-zero' : '',
               sev ? `row-${sev}` : '',
@@ -168,7 +188,7 @@ export function RunTable({ runs, selected, onSelect, onOpen, caption = 'Runs' }:
                 onDoubleClick={() => onOpen(r.run)}
               >
                 {RUN_COLUMNS.map((c) => (
-                  <td key={c.key} className={c.numeric ? 'num' : undefined}>{c.cell(r)}</td>
+                  <td key={c.key} className={c.numeric ? 'num' : undefined}>{c.cell(r, noted)}</td>
                 ))}
               </tr>
             );

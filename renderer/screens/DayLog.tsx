@@ -2,9 +2,10 @@
 // table with flags and reviews. The side panel shows the selected run's flags and the review.
 import { useMemo, useState } from 'react';
 import type { SessionData } from '../session';
-import { RunTable } from '../components/RunTable';
+import { RunTable, runFlags, type NotedFlags } from '../components/RunTable';
 import { FlagReasons, StaleReasons } from '../components/FlagBadge';
 import { staleRunNumbers } from '../../app/stale';
+import { notesByRun } from '../../app/sessionFaults';
 import { ReviewPanel } from '../components/ReviewPanel';
 import { useApi, useStatus, quiet } from '../context';
 import { fix, range, reMillions, when } from '../format';
@@ -40,10 +41,16 @@ export function DayLog({ data, selected, onSelect, onOpen, reload, live }: DayLo
   const [task, setTask] = useState<string | null>(null);
   const progress = useTaskProgress(task, false);
 
-  const runs = useMemo(() => data.runs.filter((r) => (showZeros || r.kind === 'data') && (!flaggedOnly || (r.result?.flags.length ?? 0) > 0)), [data.runs, showZeros, flaggedOnly]);
+  // The flags session findings explain are notes, not decisions: they neither count a run as
+  // flagged nor pass the "flagged only" filter.
+  const noted: NotedFlags = useMemo(() => notesByRun(summary), [summary]);
+  const flaggedRun = (r: (typeof data.runs)[number]) => runFlags(r, noted).decision.length > 0;
+  const runs = useMemo(() => data.runs.filter((r) => (showZeros || r.kind === 'data') && (!flaggedOnly || runFlags(r, noted).decision.length > 0)), [data.runs, showZeros, flaggedOnly, noted]);
   const row = data.runs.find((r) => r.run === selected) ?? null;
+  const rowFlags = row ? runFlags(row, noted) : null;
   const c = summary?.conditions ?? null;
-  const flaggedCount = data.runs.filter((r) => (r.result?.flags.length ?? 0) > 0).length;
+  const flaggedCount = data.runs.filter(flaggedRun).length;
+  const notesOnly = data.runs.filter((r) => !flaggedRun(r) && runFlags(r, noted).notes.length > 0).length;
   const reviewed = data.runs.filter((r) => r.review).length;
   const stale = staleRunNumbers(data.runs);
   // The live banner belongs to the session being watched only.
@@ -89,22 +96,22 @@ export function DayLog({ data, selected, onSelect, onOpen, reload, live }: DayLo
           <div><dt>T</dt><dd>{range(c?.tempMin, c?.tempMax, 1, '°C')}</dd></div>
           <div><dt>p<sub>baro</sub></dt><dd>{c ? range(c.baroMin / 100, c.baroMax / 100, 1, 'hPa') : '–'}</dd></div>
           <div><dt>Runs</dt><dd>{session.runCount} ({session.dataRunCount} data)</dd></div>
-          <div><dt>Flagged</dt><dd className={flaggedCount ? 'warn-text' : undefined}>{flaggedCount}</dd></div>
-          {summary?.needsDecision ? <div title="Runs with a flag that no session finding explains"><dt>Need a decision</dt><dd className={summary.needsDecision.length ? 'warn-text' : undefined}>{summary.needsDecision.length}</dd></div> : null}
+          <div title="Data runs with a flag of their own, one that no session finding explains: the runs needing a decision"><dt>Need a decision</dt><dd className={flaggedCount ? 'warn-text' : undefined} data-testid="flagged-count">{flaggedCount}</dd></div>
+          {notesOnly ? <div title="Data runs whose only flags are explained by the session findings (a note on each run, not a decision)"><dt>Notes only</dt><dd data-testid="notes-only-count">{notesOnly}</dd></div> : null}
           <div><dt>Reviewed</dt><dd>{reviewed}</dd></div>
           <div><dt>Stale</dt><dd className={stale.length ? 'warn-text' : undefined} data-testid="stale-count">{stale.length}</dd></div>
         </dl>
       </header>
       {summary?.findings?.length ? (
         <div className="notice session-findings" role="status">
-          <b>Session findings</b> (reported once; on each run they are a note, not a decision):
+          <b>Session findings</b> (reported once; on each run they are a note, ℹ, not a decision, and do not count the run as flagged):
           <ul>{summary.findings.map((f) => <li key={`${f.code}:${f.tap}`}>{f.text}</li>)}</ul>
         </div>
       ) : null}
 
       <div className="toolbar" role="toolbar" aria-label="Run table tools">
         <label><input type="checkbox" checked={showZeros} onChange={(e) => setShowZeros(e.target.checked)} /> wind-off zeros</label>
-        <label><input type="checkbox" checked={flaggedOnly} onChange={(e) => setFlaggedOnly(e.target.checked)} /> flagged only</label>
+        <label title="Runs with a flag of their own (the notes of the session findings left out)"><input type="checkbox" checked={flaggedOnly} onChange={(e) => setFlaggedOnly(e.target.checked)} /> flagged only</label>
         <span className="toolbar-gap" />
         {liveHere ? <span className="live-chip" title={live.folder ?? undefined}><span aria-hidden="true">●</span> Live: watching {live.folder}{live.lastRun !== null ? `, last run ${live.lastRun}` : ''}</span> : null}
         <span className="hint">α<sub>c</sub>, q, Re, c<sub>l</sub>, c<sub>d</sub>, c<sub>m</sub> and Γ wall-corrected · ↑/↓ select · Enter opens · click a header to sort</span>
@@ -118,7 +125,7 @@ export function DayLog({ data, selected, onSelect, onOpen, reload, live }: DayLo
       {task ? <ProgressBar fraction={progress?.fraction ?? null} label={progress?.label ?? 'Starting…'} name="Reduction progress" /> : null}
 
       <div className="daylog-body">
-        <RunTable runs={runs} selected={selected} onSelect={onSelect} onOpen={onOpen} caption={`Runs of ${session.title}`} />
+        <RunTable runs={runs} selected={selected} onSelect={onSelect} onOpen={onOpen} caption={`Runs of ${session.title}`} noted={noted} />
         <aside className="side-panel" aria-label="Selected run">
           {row ? (
             <>
@@ -126,7 +133,7 @@ export function DayLog({ data, selected, onSelect, onOpen, reload, live }: DayLo
               <p className="muted small">{when(row.time)} · {fix(row.temperatureC, 1)} °C · {fix(row.baro / 100, 1)} hPa · RH {fix(row.humidity, 0)} %</p>
               {row.kind === 'data' ? (
                 <>
-                  {row.result ? <FlagReasons flags={row.result.flags} /> : <p>Not reduced yet.</p>}
+                  {row.result ? <FlagReasons flags={rowFlags!.decision} notes={rowFlags!.notes} /> : <p>Not reduced yet.</p>}
                   <StaleReasons mark={row.stale} />
                   <button type="button" className="btn-primary" onClick={() => onOpen(row.run)}>Open in Run inspector ↵</button>
                   <ReviewPanel row={row} onSaved={() => void reload()} />

@@ -10,10 +10,11 @@
 // ←/→ and Page Up/Page Down step to the previous/next data run.
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import type { RunRowLike, Results } from '../../main/contract';
-import type { Interval, RunResult, TapCp } from '../../app/types';
+import type { Flag, Interval, RunResult, TapCp } from '../../app/types';
 import { correctedMomentumCl } from '../../app/reduce';
 import { liftTolerance } from '../../app/crosscheck';
 import { badTapWords, flagLine } from '../../app/flags';
+import { notesByRun, splitFlags } from '../../app/sessionFaults';
 import type { SessionData } from '../session';
 import { useApi, useStatus, quiet } from '../context';
 import { reduceInWorker } from '../workerClient';
@@ -74,6 +75,8 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
   const { track } = useStatus();
   const sessionId = data.session.id;
   const dataRuns = useMemo(() => data.runs.filter((r) => r.kind === 'data'), [data.runs]);
+  // The flags session findings explain are notes on the run, not decisions (app/sessionFaults.ts).
+  const noted = useMemo(() => notesByRun(data.summary), [data.summary]);
   const current = run !== null && dataRuns.some((r) => r.run === run) ? run : dataRuns[0]?.run ?? null;
   const [got, setGot] = useState<Results['runs.get'] | null>(null);
   const [shown, setShown] = useState<RunResult | null>(null);
@@ -210,7 +213,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
         <select value={current ?? ''} onChange={(e) => onRun(Number(e.target.value))} aria-label="Run to inspect">
           {dataRuns.map((r) => (
             <option key={r.run} value={r.run}>
-              {r.run} · α {fix(r.alphaDeg, 1)}°{r.result?.flags.length ? ` · ${r.result.flags.length} flag${r.result.flags.length > 1 ? 's' : ''}` : ''}
+              {r.run} · α {fix(r.alphaDeg, 1)}°{runChoiceFlags(r.result?.flags ?? [], noted.get(r.run))}
             </option>
           ))}
         </select>
@@ -258,7 +261,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
 
       <section className="flags-box" aria-label="Flags">
         <h3>Flags</h3>
-        <FlagReasons flags={result.flags} />
+        <FlagReasons {...(() => { const f = splitFlags(result.flags, noted.get(current)); return { flags: f.decision, notes: f.notes }; })()} />
       </section>
 
       {/* One slot of fixed height for the override line, the progress of the other runs and the
@@ -523,4 +526,15 @@ function ruleWords(r: RunResult['rows'][number]): string {
   }
   if (r.rule === 'spline') return 'the spline rule: cubic splines of the contour and the surface speed in the square-root plane of the nose';
   return 'the linear rule: Cp linear between taps on straight segments (the shape rule, the default, falls back to it where the row has too few taps or the taps are off the model\'s contour)';
+}
+
+/** The run picker's words for a run's flags: its own flags, then its notes (flags a session
+ *  finding explains), e.g. " · 1 flag + 1 note". */
+function runChoiceFlags(flags: readonly Flag[], noted: ReadonlySet<string> | undefined): string {
+  const { decision, notes } = splitFlags(flags, noted);
+  const parts = [
+    decision.length ? `${decision.length} flag${decision.length > 1 ? 's' : ''}` : '',
+    notes.length ? `${notes.length} note${notes.length > 1 ? 's' : ''}` : '',
+  ].filter(Boolean);
+  return parts.length ? ` · ${parts.join(' + ')}` : '';
 }
