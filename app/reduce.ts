@@ -1013,6 +1013,11 @@ export function summariseSession(setup: Setup, results: ResultDigest[], infos: R
     .map((r) => ({ r, info: byRun.get(r.run) }))
     .filter((x): x is { r: ResultDigest; info: RunInfo } => x.info !== undefined)
     .sort((a, b) => timeOrder.compare(a.info.time, b.info.time));
+  const found = withChannelFindings(sessionFindings(rows.map(({ r }) => r)), channelRuns ? channelFindings(setup, channelRuns) : []);
+  // The notes and the runs needing a decision from the same, final findings (a channel finding
+  // explains its tap's flags as the tap's own finding did).
+  const noted = notedFlags(rows.map(({ r }) => r), found.findings);
+  const notedCount = new Map(noted.map((x) => [x.run, x.flags.length]));
   const polar: PolarPoint[] = rows.map(({ r, info }) => ({
     run: r.run,
     alphaDeg: r.corrected.alphaDeg,
@@ -1022,7 +1027,8 @@ export function summariseSession(setup: Setup, results: ResultDigest[], infos: R
     cdp: r.corrected.cdp,
     cmc4: r.corrected.cmc4,
     time: info.time,
-    flagged: r.flags.length > 0,
+    // a flag of its own: the notes of the session findings do not count
+    flagged: r.flags.length > (notedCount.get(r.run) ?? 0),
     ...intervalsOf(r),
   }));
   // Statistics from the runs nobody should reject (runs with a 'reject' flag are left out).
@@ -1052,11 +1058,6 @@ export function summariseSession(setup: Setup, results: ResultDigest[], infos: R
   const [alphaMin, alphaMax] = range(({ r }) => r.corrected.alphaDeg);
   const [tempMin, tempMax] = range(({ info }) => info.temperatureC);
   const [baroMin, baroMax] = range(({ info }) => info.baro);
-  const found = withChannelFindings(sessionFindings(rows.map(({ r }) => r)), channelRuns ? channelFindings(setup, channelRuns) : []);
-  // The notes and the runs needing a decision from the same, final findings (a channel finding
-  // explains its tap's flags as the tap's own finding did).
-  const noted = notedFlags(rows.map(({ r }) => r), found.findings);
-  const notedCount = new Map(noted.map((x) => [x.run, x.flags.length]));
   return {
     stats,
     flagged: rows.filter(({ r }) => r.flags.length).map(({ r }) => ({ run: r.run, flags: r.flags })),

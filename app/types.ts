@@ -625,6 +625,7 @@ export interface PolarPoint {
   cdp: number;
   cmc4: number;
   time: string;
+  /** The run has a flag of its own (one no session finding explains: SessionSummary.noted). */
   flagged: boolean;
 }
 

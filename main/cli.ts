@@ -11,7 +11,7 @@ import type * as CliDeps from './cliDeps';
 import pkg from '../package.json';
 import { isLogError } from '../app/log/errors';
 import { flagShort, flagsLine } from '../app/flags';
-import { explainedByFindings } from '../app/sessionFaults';
+import { explainedByFindings, notesByRun, splitFlags } from '../app/sessionFaults';
 import { staleRunNumbers } from '../app/stale';
 import { DEFAULT_SETTINGS, type Flag, type ResultDigest, type RunResult, type SessionFinding, type SessionSummary, type Settings } from '../app/types';
 
@@ -610,21 +610,24 @@ Examples:
     .command('runs')
     .description('list the runs with their latest coefficients, wall-correction method, flags, verdicts and stale marks')
     .addOption(new Option('--format <format>', 'output format').choices(['table', 'csv', 'json']).default('table'))
-    .option('--flagged', 'only runs with flags')
+    .option('--flagged', 'only runs with a flag of their own (a flag a session finding explains is a note, not counted)')
     .option('--stale', 'only runs whose result is stale')
     .action(async (o: { format: string; flagged?: boolean; stale?: boolean }) => {
       await withStore(g(), 'read', (store) => {
         const sid = pickSession(store, g());
         let rows = D().listRunsMarked(store, sid);
-        if (o.flagged) rows = rows.filter((r) => r.result && r.result.flags.length);
-        if (o.stale) rows = rows.filter((r) => r.stale);
-        if (o.format === 'json') return out(JSON.stringify(rows, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2));
-        if (o.format === 'csv') return void process.stdout.write(D().exportResultsCsv(rows, store.getSetup(sid), store.latestResults(sid)));
         const digests = store.latestDigests(sid);
         // The tap findings and the runs needing a decision, as the day log has them; its dead and
         // saturated channels are for `reduce`, the day log and the sheet (start-up: reading every
         // run's statistics would add a quarter to this command).
         const summary = D().sessionSummary(store, sid, { digests, channels: false });
+        if (o.flagged) {
+          const noted = notesByRun(summary);
+          rows = rows.filter((r) => r.result && splitFlags(r.result.flags, noted.get(r.run)).decision.length);
+        }
+        if (o.stale) rows = rows.filter((r) => r.stale);
+        if (o.format === 'json') return out(JSON.stringify(rows, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2));
+        if (o.format === 'csv') return void process.stdout.write(D().exportResultsCsv(rows, store.getSetup(sid), store.latestResults(sid)));
         out(runsTable(rows, new Map(digests.map((d) => [d.run, d.correction.method])), findingsView(summary, digests)));
       });
     });

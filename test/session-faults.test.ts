@@ -53,6 +53,8 @@ describe('demo day: persistent faults', () => {
     expect(splitFlags(r0.flags.map((f) => ({ ...f })), notes.get(r0.run)).notes).toHaveLength(1);
     // with no findings there are no notes
     expect(notedFlags(results, [])).toEqual([]);
+    // the polars mark as flagged only the runs with a flag of their own
+    expect(summary.polar.filter((p) => p.flagged).map((p) => p.run)).toEqual(summary.needsDecision);
   });
 
   it('a tap fault on fewer than 80 % of the runs is no finding, and its runs need a decision', () => {
