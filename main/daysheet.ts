@@ -676,10 +676,19 @@ function flaggedList(args: DaySheetArgs, tz: string): string {
   const reviewText = (row: RunRow) =>
     row.review ? `Reviewer ${escapeHtml(personName(row.review.actor))} <b>${escapeHtml(row.review.verdict)}</b> this run${row.review.comment ? `: ${escapeHtml(row.review.comment)}` : ''} (${escapeHtml(localTime(row.review.at, tz))})` : '';
   const parts: string[] = [];
-  if (common.length) {
-    parts.push(`<p>Flags raised identically on several runs:</p><ul class="common">${common
-      .map((g) => `<li><span class="sevtag">${severityWord(g.flag.severity)}</span> ${reasonWords(g.flag)} <b>${escapeHtml(runsWord(g.runs).replace(/^r/, 'R'))}.</b></li>`)
-      .join('\n')}</ul>`);
+  // A common flag that a session finding explains on every run carrying it is a note there, not
+  // a decision (app/sessionFaults.ts): listed apart, tagged "note".
+  const noted = notesByRun(args.summary);
+  const isNote = (g: { flag: Flag; runs: number[] }) => g.runs.every((run) => splitFlags([g.flag], noted.get(run)).notes.length === 1);
+  const notes = common.filter(isNote);
+  const decisions = common.filter((g) => !isNote(g));
+  const groupItem = (tag: string) => (g: { flag: Flag; runs: number[] }) =>
+    `<li><span class="sevtag">${tag}</span> ${reasonWords(g.flag)} <b>${escapeHtml(runsWord(g.runs).replace(/^r/, 'R'))}.</b></li>`;
+  if (decisions.length) {
+    parts.push(`<p>Flags raised identically on several runs:</p><ul class="common">${decisions.map((g) => groupItem(severityWord(g.flag.severity))(g)).join('\n')}</ul>`);
+  }
+  if (notes.length) {
+    parts.push(`<p>Notes of the session findings, raised identically on several runs (on each run a note, not a decision; see the session-level findings):</p><ul class="common">${notes.map(groupItem('note')).join('\n')}</ul>`);
   }
   const items: string[] = [];
   for (const row of flagged) {

@@ -35,6 +35,21 @@ afterAll(() => {
 });
 
 describe('day sheet of a stored session', () => {
+  it('a flag the session findings explain is listed as a note, apart from the flags to decide on', () => {
+    const summary = sessionSummary(store, 1);
+    const leak = summary.findings?.find((f) => f.code === 'leaking-tap');
+    expect(leak, 'the tiny demo day has its leaking tap as a session finding').toBeDefined();
+    const { doc } = sheet();
+    const lists = [...doc.querySelectorAll('ul.common')];
+    const noteList = lists.find((ul) => /Notes of the session findings/.test(ul.previousElementSibling?.textContent ?? ''));
+    expect(noteList, 'a list of the notes').toBeDefined();
+    const noteItems = [...noteList!.querySelectorAll('li')].map((li) => li.textContent ?? '');
+    expect(noteItems.some((t) => t.startsWith('note') && t.includes(leak!.tap))).toBe(true);
+    // nowhere among the flags to decide on
+    for (const ul of lists.filter((x) => x !== noteList)) expect(ul.textContent).not.toContain(`Leaking tap ${leak!.tap}`);
+    expect(doc.querySelector('dl.facts')!.textContent).toMatch(/\d+ flagged \(needing a decision\)/);
+  });
+
   it('a rejected run keeps its flags beside the verdict; one run is "run N"', () => {
     const run = data[1];
     // give the run a flag of its own by reducing it with a lift tolerance nothing meets
