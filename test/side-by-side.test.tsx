@@ -3,6 +3,7 @@
 import { describe, expect, it } from 'vitest';
 import { Window } from 'happy-dom';
 import { filterRuns } from '../renderer/screens/SideBySide';
+import { notesByRun } from '../app/sessionFaults';
 import { parseRuns } from '../renderer/screens/DaySheet';
 import { cpOverlayConfig, OVERLAY_STYLE, polarOverlayConfig, wakeOverlayConfig } from '../renderer/compareCharts';
 import { exportName, specFromConfig, svgDocument } from '../renderer/plotExport';
@@ -20,6 +21,10 @@ describe('side by side', () => {
     expect(runs('leaking-tap')).toEqual([3, 4]);
     expect(runs('any', 0, 5)).toEqual([3]); // corrected α: 4 × 1.01
     expect(runs('any', null, 4.03)).toEqual([2]); // 4.04 is above 4.03
+    // with the leak a note of the session findings (a finding explains it), run 3 has no flag of its own
+    const noted = notesByRun({ flagged: [{ run: 3, flags: [LEAK] }, { run: 4, flags: [LIFT, LEAK] }], noted: [{ run: 3, flags: [0] }, { run: 4, flags: [1] }] });
+    expect(filterRuns(rows, 'none', null, null, noted).map((r) => r.run)).toEqual([2, 3]);
+    expect(filterRuns(rows, 'leaking-tap', null, null, noted).map((r) => r.run)).toEqual([3, 4]);
   });
 
   it('Cp overlay: each run one colour and one marker, upper filled, lower open and dashed, axis inverted', () => {

@@ -5,8 +5,9 @@
 // Everything comes through the typed contract: sessions.list, runs.list, runs.get, session.summary.
 import { useEffect, useMemo, useState } from 'react';
 import type { RunRowLike, SessionRowLike } from '../../main/contract';
-import type { PolarPoint, RunResult, SessionSummary } from '../../app/types';
+import type { Flag, PolarPoint, RunResult, SessionSummary } from '../../app/types';
 import { FLAG_CODES, flagLabel, flagShort, SEVERITY } from '../../app/flags';
+import { notesByRun, splitFlags } from '../../app/sessionFaults';
 import { polarDifferences } from '../../app/compare';
 import { useApi, useStatus, quiet } from '../context';
 import { Plot } from '../components/Plot';
@@ -19,14 +20,15 @@ interface Pick { sessionId: number; run: number }
 const same = (a: Pick, b: Pick) => a.sessionId === b.sessionId && a.run === b.run;
 
 /** Runs of a session that pass the filters: a flag code ('any', 'none' or a code) and an α range
- *  on the corrected α (geometric where a run is not reduced). */
-export function filterRuns(rows: readonly RunRowLike[], flag: string, aMin: number | null, aMax: number | null): RunRowLike[] {
+ *  on the corrected α (geometric where a run is not reduced). 'none': no flag of its own (the notes
+ *  of the session findings, `noted`, do not count). */
+export function filterRuns(rows: readonly RunRowLike[], flag: string, aMin: number | null, aMax: number | null, noted?: ReadonlyMap<number, ReadonlySet<string>>): RunRowLike[] {
   return rows.filter((r) => {
     if (r.kind !== 'data' || !r.result) return false;
     const a = r.result.alphaCorrDeg ?? r.alphaDeg;
     if (aMin !== null && a < aMin) return false;
     if (aMax !== null && a > aMax) return false;
-    if (flag === 'none') return r.result.flags.length === 0;
+    if (flag === 'none') return splitFlags(r.result.flags, noted?.get(r.run)).decision.length === 0;
     if (flag === 'hold') return r.result.flags.some((f) => f.severity === 'reject');
     if (flag !== 'any') return r.result.flags.some((f) => f.code === flag);
     return true;
@@ -45,6 +47,8 @@ export function SideBySide({ sessions, currentSessionId }: { sessions: SessionRo
   const { track } = useStatus();
   const [browse, setBrowse] = useState<number | null>(currentSessionId ?? sessions[0]?.id ?? null);
   const [rows, setRows] = useState<RunRowLike[]>([]);
+  // The browsed session's notes (flags its session findings explain: a note, not a decision).
+  const [noted, setNoted] = useState<Map<number, Set<string>>>(new Map());
   const [flag, setFlag] = useState('any');
   const [aMin, setAMin] = useState('');
   const [aMax, setAMax] = useState('');
@@ -59,8 +63,14 @@ export function SideBySide({ sessions, currentSessionId }: { sessions: SessionRo
     if (browse === null) return;
     let live = true;
     quiet(track('Loading runs', async () => {
-      const r = await api.call('runs.list', { sessionId: browse });
-      if (live) setRows(r);
+      const [r, summary] = await Promise.all([
+        api.call('runs.list', { sessionId: browse }),
+        api.call('session.summary', { sessionId: browse }).catch(() => null),
+      ]);
+      if (live) {
+        setRows(r);
+        setNoted(notesByRun(summary));
+      }
     }));
     return () => { live = false; };
   }, [api, browse, track]);
@@ -91,7 +101,7 @@ export function SideBySide({ sessions, currentSessionId }: { sessions: SessionRo
     }));
   }, [api, polarSessions, summaries, track]);
 
-  const shown = useMemo(() => filterRuns(rows, flag, numberOrNull(aMin), numberOrNull(aMax)), [rows, flag, aMin, aMax]);
+  const shown = useMemo(() => filterRuns(rows, flag, numberOrNull(aMin), numberOrNull(aMax), noted), [rows, flag, aMin, aMax, noted]);
   const sessionWords = (id: number) => {
     const s = byId.get(id);
     return s ? `${s.date} ${s.model}` : `session ${id}`;
@@ -159,7 +169,7 @@ export function SideBySide({ sessions, currentSessionId }: { sessions: SessionRo
                     <td className="num">{fix(r.result!.alphaCorrDeg, 2)}</td>
                     <td className="num">{fix(r.result!.cl, 4)}</td>
                     <td className="num">{fix(r.result!.cd, 5)}</td>
-                    <td>{r.result!.flags.map((f) => `${SEVERITY[f.severity].glyph} ${flagShort(f.code)}`).join('; ') || '—'}</td>
+                    <td>{flagsWords(r.result!.flags, noted.get(r.run))}</td>
                     <td><button type="button" className="btn-small" disabled={picked || picks.length >= MAX_OVERLAY} onClick={() => add(r.run)} aria-label={`Add run ${r.run} of ${sessionWords(browse!)}`}>{picked ? 'added' : 'add'}</button></td>
                   </tr>
                 );
@@ -226,4 +236,11 @@ export function SideBySide({ sessions, currentSessionId }: { sessions: SessionRo
       </section>
     </div>
   );
+}
+
+/** A run's flags in the list: its own with their severity glyph, then its notes (flags a session
+ *  finding explains), e.g. "✖ wake not captured; ℹ leaking tap (note)". */
+function flagsWords(flags: readonly Flag[], noted: ReadonlySet<string> | undefined): string {
+  const { decision, notes } = splitFlags(flags, noted);
+  return [...decision.map((f) => `${SEVERITY[f.severity].glyph} ${flagShort(f.code)}`), ...notes.map((f) => `ℹ ${flagShort(f.code)} (note)`)].join('; ') || '—';
 }
