@@ -241,6 +241,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
   const dCl = result.clMomentum - u.cl;
   const w = result.wake;
   const last = changes[0];
+  const flagSplit = splitFlags(result.flags, noted.get(current));
 
   return (
     <div className="inspector">
@@ -261,7 +262,7 @@ export function RunInspector({ data, run, onRun, reload }: RunInspectorProps) {
 
       <section className="flags-box" aria-label="Flags">
         <h3>Flags</h3>
-        <FlagReasons {...(() => { const f = splitFlags(result.flags, noted.get(current)); return { flags: f.decision, notes: f.notes }; })()} />
+        <FlagReasons flags={flagSplit.decision} notes={flagSplit.notes} />
       </section>
 
       {/* One slot of fixed height for the override line, the progress of the other runs and the
