@@ -4,7 +4,7 @@ import { availableParallelism } from 'node:os';
 import type { ResultDigest, RunResult, SessionSummary, Settings, Setup, ZeroedRun } from '../app/types';
 import { averageRuns, prepareRuns, reduceRun, summariseSession } from '../app/reduce';
 import { zeroRunsFor } from '../app/samples';
-import { isDiskFull, StoreFullError, type ImportProgress, type Store } from './store';
+import { isDiskFull, StoreFullError, type ImportProgress, type SessionRow, type Store } from './store';
 import { ImportPool } from './importPool';
 
 type Averaged = ReturnType<Store['getAveraged']>[number];
@@ -309,7 +309,7 @@ export function sessionSummary(
  *  count the Day log shows: from the stored digests without the channel statistics (2–10 ms a
  *  session on the bench sessions; a dead or saturated channel replaces its tap's own finding, so
  *  the count is the same unless a channel finding is on a tap with no finding of its own). */
-export function sessionsWithDecisions(store: Store): (ReturnType<Store['listSessions']>[number] & { decisionCount: number })[] {
+export function sessionsWithDecisions(store: Store): (SessionRow & { decisionCount: number })[] {
   return store.listSessions().map((s) => ({
     ...s, decisionCount: s.dataRunCount ? (sessionSummary(store, s.id, { channels: false }).needsDecision ?? []).length : 0,
   }));
