@@ -1,6 +1,6 @@
 // Issue 9, tests: whole runs on exact Joukowski sections (REDUCTION.md §11 case 2; conformal
 // mapping with the Kutta condition, Milne-Thomson ch. 7 and Katz & Plotkin §6.5, memory;
-// test/helpers/joukowski.ts), α −8…16° in 1° steps, at 16, 24, 48 and 96 taps with realistic
+// test/helpers/joukowski.ts), α −8…16° in 1° steps, at 12, 16, 24, 48 and 96 taps with realistic
 // spacing (cosine in arc length from a leading-edge tap, a 3 % gap at the trailing edge:
 // arcTaps), reduced as the app reduces them (reduceRun, default settings, the model's geometry the
 // section's own coordinates so that the shape-aided tap test and the shape contour rule run):
